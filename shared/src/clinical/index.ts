@@ -1,0 +1,2 @@
+// Filled in by the clinical work; see shared/src/index.ts.
+export {};

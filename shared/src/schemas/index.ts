@@ -1,0 +1,2 @@
+// Filled in by the schemas work; see shared/src/index.ts.
+export {};

@@ -1,0 +1,2 @@
+// Filled in by the sync work; see shared/src/index.ts.
+export {};
