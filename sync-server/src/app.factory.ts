@@ -1,0 +1,96 @@
+// Builds the HTTP application the same way for `npm start` and for the tests: security headers,
+// CORS for the app's own origin, body limits, the /api prefix, OpenAPI, and the built PWA at /.
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { ConsoleLogger, type LoggerService } from '@nestjs/common';
+import { NestFactory } from '@nestjs/core';
+import type { NestExpressApplication } from '@nestjs/platform-express';
+import { DocumentBuilder, SwaggerModule, type OpenAPIObject } from '@nestjs/swagger';
+import type { NextFunction, Request, Response } from 'express';
+import helmet from 'helmet';
+import { AppModule } from './app.module';
+import type { CoreOverrides } from './common/core.module';
+import type { AppConfig } from './config/app-config';
+
+export interface CreateAppOptions extends CoreOverrides {
+  logger?: LoggerService | false;
+}
+
+export async function createApp(
+  config: AppConfig,
+  options: CreateAppOptions = {},
+): Promise<NestExpressApplication> {
+  const logger =
+    options.logger ?? new ConsoleLogger({ json: config.env === 'production', colors: false });
+  const app = await NestFactory.create<NestExpressApplication>(
+    AppModule.forRoot(config, options),
+    { logger, bodyParser: false },
+  );
+  app.useBodyParser('json', { limit: config.bodyLimitBytes });
+  // Body-parser failures happen before Nest's router, so they are answered here.
+  app.use((error: unknown, _req: Request, res: Response, next: NextFunction) => {
+    const type = (error as { type?: string } | null)?.type;
+    if (type === 'entity.too.large') {
+      res.status(413).json({
+        statusCode: 413,
+        error: 'Payload Too Large',
+        message: `body: larger than the ${Math.round(config.bodyLimitBytes / 1024 / 1024)} MB the server accepts; send fewer changes at once.`,
+      });
+    } else if (type === 'entity.parse.failed') {
+      res.status(400).json({ statusCode: 400, error: 'Bad Request', message: 'body: not valid JSON' });
+    } else {
+      next(error);
+    }
+  });
+  app.set('trust proxy', 'loopback');
+  app.disable('x-powered-by');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'media-src': ["'self'", 'blob:'],
+          'worker-src': ["'self'", 'blob:'],
+        },
+      },
+      crossOriginEmbedderPolicy: false,
+    }),
+  );
+  app.enableCors({ origin: config.appOrigin, credentials: false });
+  app.setGlobalPrefix('api');
+  SwaggerModule.setup('api/docs', app, () => buildOpenApiDocument(app), {
+    jsonDocumentUrl: 'api/docs-json',
+  });
+  if (config.pwaDist && existsSync(join(config.pwaDist, 'index.html'))) servePwa(app, config.pwaDist);
+  return app;
+}
+
+export function buildOpenApiDocument(app: NestExpressApplication): OpenAPIObject {
+  const document = new DocumentBuilder()
+    .setTitle('Fuselight clinic server')
+    .setDescription('Sign-in, tablets, sync (protocol 1), disputes, records, letters and attachments.')
+    .setVersion('1')
+    .addBearerAuth()
+    .build();
+  return SwaggerModule.createDocument(app, document);
+}
+
+/** The built PWA at `/`; any other non-API GET that wants HTML gets the app shell. */
+function servePwa(app: NestExpressApplication, dist: string): void {
+  app.useStaticAssets(dist, {
+    index: 'index.html',
+    setHeaders: (res, path) => {
+      // The service worker and the shell must be revalidated so an update is seen at once.
+      if (/(sw\.js|index\.html|manifest\.webmanifest)$/.test(path)) {
+        res.setHeader('Cache-Control', 'no-cache');
+      } else if (path.includes(`${join(dist, 'assets')}`)) {
+        res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+      }
+    },
+  });
+  app.use((req: Request, res: Response, next: NextFunction) => {
+    if (req.method !== 'GET' || req.path.startsWith('/api') || !req.accepts('html')) return next();
+    res.setHeader('Cache-Control', 'no-cache');
+    res.sendFile(join(dist, 'index.html'));
+  });
+}

@@ -1,0 +1,23 @@
+import { defineConfig, type Options } from '@mikro-orm/postgresql';
+import { Migrator } from '@mikro-orm/migrations';
+import { migrationsList } from '../migrations/index';
+
+/**
+ * MikroORM options shared by the server, the migrate command and the tests. Timeouts bound how
+ * long a stuck transaction can hold back pull cursors (sync-protocol.md, guarantee 4).
+ */
+export function ormOptions(databaseUrl: string, extra: Partial<Options> = {}): Options {
+  return defineConfig({
+    clientUrl: databaseUrl,
+    extensions: [Migrator],
+    migrations: { migrationsList, transactional: true, allOrNothing: true, snapshot: false },
+    discovery: { warnWhenNoEntities: false },
+    pool: { min: 0, max: 10 },
+    driverOptions: {
+      connection: { statement_timeout: 15_000, idle_in_transaction_session_timeout: 15_000 },
+    },
+    allowGlobalContext: false,
+    debug: false,
+    ...extra,
+  });
+}

@@ -1,0 +1,8 @@
+// Every committed migration, in order. The server is bundled, so MikroORM's migrator gets this
+// list instead of scanning a folder. Add a new migration at the end; never edit an applied one.
+import type { MigrationObject } from '@mikro-orm/core';
+import { Migration20261201000000Sites } from './Migration20261201000000Sites';
+
+export const migrationsList: MigrationObject[] = [
+  { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
+];

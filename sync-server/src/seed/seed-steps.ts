@@ -1,0 +1,5 @@
+// The demo seed, in order. To grow the scenario, add an idempotent step class and list it here.
+import type { SeedStepClass } from './seed-step';
+import { SitesSeed } from './sites.seed';
+
+export const seedSteps: SeedStepClass[] = [SitesSeed];
