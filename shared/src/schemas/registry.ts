@@ -1,0 +1,270 @@
+// The list of synced collections and their record schemas, with the validation the server runs on
+// every pushed change and the form helpers (defaults, labels, units) the tablet screens use.
+// `id`, `version` and `deleted` are the record envelope, never fields.
+import { type z } from 'zod';
+import {
+  accommodationSchema,
+  nearPointConvergenceSchema,
+  stereoacuitySchema,
+} from './near-vision.schema';
+import {
+  amblyoscopeAnglesSchema,
+  amblyoscopeSetupSchema,
+  fusionalRangesSchema,
+  fusionSchema,
+  grossStereopsisSchema,
+  simultaneousPerceptionSchema,
+  suppressionScotomaSchema,
+} from './amblyoscope.schema';
+import { attachmentSchema } from './attachment.schema';
+import { coverTestSchema, prismCoverTestSchema } from './cover-test.schema';
+import { type FieldMeta, metaOfSchema } from './field-types.schema';
+import { letterSchema } from './letter.schema';
+import { motilitySchema } from './motility.schema';
+import { patientSchema } from './patient.schema';
+import { planSchema } from './plan.schema';
+import { SECTION_PLACEMENT_KEYS, type SectionPlacementKey } from './section.schema';
+import { visualAcuitySchema } from './acuity.schema';
+import { visitSchema } from './visit.schema';
+
+/** Version of these record schemas; a device sends it with every push. */
+export const SCHEMA_VERSION = 1;
+
+export const SECTION_COLLECTIONS = [
+  'amblyoscopeSetup',
+  'simultaneousPerception',
+  'amblyoscopeAngles',
+  'suppressionScotoma',
+  'fusion',
+  'fusionalRanges',
+  'grossStereopsis',
+  'visualAcuity',
+  'coverTest',
+  'prismCoverTest',
+  'nearPointConvergence',
+  'accommodation',
+  'stereoacuity',
+  'motility',
+  'plan',
+] as const;
+export type SectionCollectionName = (typeof SECTION_COLLECTIONS)[number];
+
+export const COLLECTIONS = [
+  'patient',
+  'visit',
+  ...SECTION_COLLECTIONS,
+  'attachment',
+  'letter',
+] as const;
+export type CollectionName = (typeof COLLECTIONS)[number];
+
+export const recordSchemas = {
+  patient: patientSchema,
+  visit: visitSchema,
+  amblyoscopeSetup: amblyoscopeSetupSchema,
+  simultaneousPerception: simultaneousPerceptionSchema,
+  amblyoscopeAngles: amblyoscopeAnglesSchema,
+  suppressionScotoma: suppressionScotomaSchema,
+  fusion: fusionSchema,
+  fusionalRanges: fusionalRangesSchema,
+  grossStereopsis: grossStereopsisSchema,
+  visualAcuity: visualAcuitySchema,
+  coverTest: coverTestSchema,
+  prismCoverTest: prismCoverTestSchema,
+  nearPointConvergence: nearPointConvergenceSchema,
+  accommodation: accommodationSchema,
+  stereoacuity: stereoacuitySchema,
+  motility: motilitySchema,
+  plan: planSchema,
+  attachment: attachmentSchema,
+  letter: letterSchema,
+} as const satisfies Record<CollectionName, z.ZodObject>;
+
+export type RecordSchemas = typeof recordSchemas;
+/** The fields of a full record of collection C. */
+export type RecordFields<C extends CollectionName> = z.infer<RecordSchemas[C]>;
+/** What a form holds before parsing (same as RecordFields here: no transforms change types). */
+export type RecordFieldsInput<C extends CollectionName> = z.input<RecordSchemas[C]>;
+export type FieldName<C extends CollectionName> = keyof RecordSchemas[C]['shape'] & string;
+
+export const ENVELOPE_KEYS = ['id', 'version', 'deleted'] as const;
+
+const collectionSet: ReadonlySet<string> = new Set(COLLECTIONS);
+const sectionSet: ReadonlySet<string> = new Set(SECTION_COLLECTIONS);
+
+export function isCollectionName(value: unknown): value is CollectionName {
+  return typeof value === 'string' && collectionSet.has(value);
+}
+
+export function isSectionCollection(value: unknown): value is SectionCollectionName {
+  return typeof value === 'string' && sectionSet.has(value);
+}
+
+function shapeOf(collection: CollectionName): Readonly<Record<string, z.ZodType>> {
+  return recordSchemas[collection].shape as Readonly<Record<string, z.ZodType>>;
+}
+
+function isRequired(schema: z.ZodType): boolean {
+  return !schema.safeParse(undefined).success;
+}
+
+function buildFieldMeta(collection: CollectionName): Record<string, FieldMeta> {
+  const entries = Object.entries(shapeOf(collection)).map(([field, schema]) => {
+    const meta = metaOfSchema(schema) ?? { label: field, unit: null, kind: 'text' as const };
+    return [field, { ...meta, required: isRequired(schema) }] as const;
+  });
+  return Object.fromEntries(entries);
+}
+
+/** Label (the trade's words), unit and kind of every field, for screens and the review desk. */
+export const fieldMeta = Object.fromEntries(
+  COLLECTIONS.map((collection) => [collection, buildFieldMeta(collection)]),
+) as { readonly [C in CollectionName]: Readonly<Record<FieldName<C>, FieldMeta>> };
+
+/** Field names a full record of the collection must carry. */
+export function requiredFields(collection: CollectionName): readonly string[] {
+  return Object.entries(fieldMeta[collection] as Record<string, FieldMeta>)
+    .filter(([, meta]) => meta.required)
+    .map(([field]) => field);
+}
+
+export type SectionDefaults<C extends SectionCollectionName> = Omit<
+  RecordFieldsInput<C>,
+  SectionPlacementKey
+>;
+
+// Every finding starts as "not recorded" (null) rather than a guess: a default of false for
+// "dials zeroed" would chart a fact nobody observed. Lists start empty.
+function buildSectionDefaults(collection: SectionCollectionName): Record<string, unknown> {
+  const placement: ReadonlySet<string> = new Set(SECTION_PLACEMENT_KEYS);
+  const defaults: Record<string, unknown> = {};
+  for (const [field, meta] of Object.entries(fieldMeta[collection] as Record<string, FieldMeta>)) {
+    if (placement.has(field)) continue;
+    defaults[field] = meta.kind === 'list' || meta.kind === 'choices' ? [] : null;
+  }
+  return defaults;
+}
+
+/** Default form values per section (placement keys siteId, visitId, patientId left to the caller). */
+export const sectionDefaults = Object.fromEntries(
+  SECTION_COLLECTIONS.map((collection) => [collection, buildSectionDefaults(collection)]),
+) as { readonly [C in SectionCollectionName]: Readonly<SectionDefaults<C>> };
+
+export interface FieldError {
+  field: string;
+  message: string;
+}
+
+export type FieldValidation<T> = { ok: true; fields: T } | { ok: false; errors: FieldError[] };
+
+function isPlainObject(value: unknown): value is Record<string, unknown> {
+  return typeof value === 'object' && value !== null && !Array.isArray(value);
+}
+
+function unknownFieldError(collection: string, field: string): FieldError {
+  const envelope = (ENVELOPE_KEYS as readonly string[]).includes(field);
+  return {
+    field,
+    message: envelope
+      ? `${field} is part of the record envelope, not a field of collection ${collection}`
+      : `unknown field ${field} for collection ${collection}`,
+  };
+}
+
+function issuesToErrors(field: string, error: z.ZodError): FieldError[] {
+  return error.issues.map((issue) => ({
+    field: [field, ...issue.path.map(String)].join('.'),
+    message: issue.message,
+  }));
+}
+
+function labelOf(collection: CollectionName, field: string): string {
+  return (fieldMeta[collection] as Record<string, FieldMeta>)[field]?.label ?? field;
+}
+
+/**
+ * Validates the changed fields of a push (a partial record): unknown fields are errors, each value
+ * is checked by its field's schema, and null clears an optional field.
+ */
+export function validateFields<C extends CollectionName>(
+  collection: C,
+  fields: unknown,
+): FieldValidation<Partial<RecordFields<C>>>;
+export function validateFields(
+  collection: string,
+  fields: unknown,
+): FieldValidation<Record<string, unknown>>;
+export function validateFields(
+  collection: string,
+  fields: unknown,
+): FieldValidation<Record<string, unknown>> {
+  if (!isCollectionName(collection)) {
+    return { ok: false, errors: [{ field: '', message: `unknown collection ${collection}` }] };
+  }
+  if (!isPlainObject(fields)) {
+    return {
+      ok: false,
+      errors: [{ field: '', message: `fields for collection ${collection} must be an object` }],
+    };
+  }
+  const shape = shapeOf(collection);
+  const errors: FieldError[] = [];
+  const parsed: Record<string, unknown> = {};
+  for (const [field, value] of Object.entries(fields)) {
+    const schema = Object.hasOwn(shape, field) ? shape[field] : undefined;
+    if (schema === undefined) {
+      errors.push(unknownFieldError(collection, field));
+      continue;
+    }
+    const label = labelOf(collection, field);
+    if (value === undefined) {
+      errors.push({ field, message: `${label} has no value; send null to clear it` });
+      continue;
+    }
+    if (value === null && isRequired(schema)) {
+      errors.push({ field, message: `${label} is required and cannot be cleared` });
+      continue;
+    }
+    const result = schema.safeParse(value);
+    if (result.success) parsed[field] = result.data;
+    else errors.push(...issuesToErrors(field, result.error));
+  }
+  return errors.length > 0 ? { ok: false, errors } : { ok: true, fields: parsed };
+}
+
+/** Validates a full record, as when it is created: lists missing required fields too. */
+export function validateRecord<C extends CollectionName>(
+  collection: C,
+  record: unknown,
+): FieldValidation<RecordFields<C>>;
+export function validateRecord(
+  collection: string,
+  record: unknown,
+): FieldValidation<Record<string, unknown>>;
+export function validateRecord(
+  collection: string,
+  record: unknown,
+): FieldValidation<Record<string, unknown>> {
+  if (!isCollectionName(collection)) {
+    return { ok: false, errors: [{ field: '', message: `unknown collection ${collection}` }] };
+  }
+  if (!isPlainObject(record)) {
+    return {
+      ok: false,
+      errors: [{ field: '', message: `a ${collection} record must be an object` }],
+    };
+  }
+  // An undefined value in a full record is the same as an absent key.
+  const given = Object.fromEntries(
+    Object.entries(record).filter(([, value]) => value !== undefined),
+  );
+  const present = validateFields(collection, given);
+  const errors: FieldError[] = present.ok ? [] : [...present.errors];
+  for (const field of requiredFields(collection)) {
+    if (given[field] === undefined) {
+      errors.push({ field, message: `${labelOf(collection, field)} is required` });
+    }
+  }
+  if (errors.length > 0 || !present.ok) return { ok: false, errors };
+  return { ok: true, fields: present.fields };
+}
