@@ -1,2 +1,14 @@
-// Filled in by the clinical work; see shared/src/index.ts.
-export {};
+// Orthoptic computation: pure functions over recorded findings (no I/O, no clock). Every
+// interpretation carries CLINICAL_CAUTION; invalid input throws ClinicalInputError.
+export * from './clinical-input.error';
+export * from './caution';
+export * from './prism-dioptre';
+export * from './correspondence';
+export * from './deviation';
+export * from './bsv-grades';
+export * from './stereo-trials';
+export * from './stereo-disparity';
+export * from './visual-acuity';
+export * from './accommodation';
+export * from './near-point-of-convergence';
+export * from './finding-series';
