@@ -95,7 +95,8 @@ export function describeRange(
   const signed = options.signed ?? false;
   const low = formatNumber(min, digits, signed);
   const high = formatNumber(max, digits, signed);
-  if (unit === null) return `between ${low} and ${high}`;
+  // A grade is a count of steps; "between −4 and +4 grade" reads worse than no unit.
+  if (unit === null || unit === 'grade') return `between ${low} and ${high}`;
   if (SYMBOL_UNITS.has(unit)) return `between ${low}${unit} and ${high}${unit}`;
   return `between ${low} and ${high} ${unit}`;
 }

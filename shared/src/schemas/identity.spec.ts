@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { loginRequestSchema, roleSchema, sessionUserSchema } from './identity.schema';
-import { SITE_ID, CLINICIAN_ID } from './test-ids';
+import { SITE_ID, CLINICIAN_ID } from './test-ids.fixture';
 
 describe('identity wire schemas', () => {
   it('accepts a login with or without a device secret', () => {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { dateOfBirthProblem, patientSchema, patientSchemaAsOf } from './patient.schema';
 import { visitSchema } from './visit.schema';
-import { CLINICIAN_ID, PATIENT_ID, SITE_ID } from './test-ids';
+import { CLINICIAN_ID, PATIENT_ID, SITE_ID } from './test-ids.fixture';
 
 const patient = {
   siteId: SITE_ID,

@@ -11,7 +11,7 @@ import {
   validateFields,
   validateRecord,
 } from './registry';
-import { CLINICIAN_ID, PATIENT_ID, SITE_ID, placement } from './test-ids';
+import { CLINICIAN_ID, PATIENT_ID, SITE_ID, placement } from './test-ids.fixture';
 
 function errorsOf(result: ReturnType<typeof validateFields>) {
   if (result.ok) throw new Error('expected the validation to fail');

@@ -11,7 +11,7 @@ import {
   resolveConflictRequestSchema,
   type PushChange,
 } from './sync-wire.schema';
-import { CHANGE_ID, RECORD_ID } from './test-ids';
+import { CHANGE_ID, RECORD_ID } from './test-ids.fixture';
 
 const HLC = '001733011200000-00000-0190c6a0-0000-7000-8000-000000000001';
 
