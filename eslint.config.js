@@ -6,7 +6,14 @@ import globals from 'globals';
 
 export default tseslint.config(
   {
-    ignores: ['**/node_modules/**', '**/dist/**', '**/dev-dist/**', '.fuselight/**', 'artifacts/**', 'test-results/**'],
+    ignores: [
+      '**/node_modules/**',
+      '**/dist/**',
+      '**/dev-dist/**',
+      '.fuselight/**',
+      'artifacts/**',
+      'test-results/**',
+    ],
   },
   js.configs.recommended,
   ...tseslint.configs.recommended,
@@ -18,12 +25,31 @@ export default tseslint.config(
     },
     rules: {
       '@typescript-eslint/no-floating-promises': 'error',
-      '@typescript-eslint/switch-exhaustiveness-check': 'error',
-      '@typescript-eslint/consistent-type-imports': ['error', { fixStyle: 'inline-type-imports', disallowTypeAnnotations: false }],
-      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
+      '@typescript-eslint/switch-exhaustiveness-check': ['error', { considerDefaultExhaustiveForUnions: true }],
+      '@typescript-eslint/consistent-type-imports': [
+        'error',
+        { fixStyle: 'inline-type-imports', disallowTypeAnnotations: false },
+      ],
+      '@typescript-eslint/no-unused-vars': [
+        'error',
+        { argsIgnorePattern: '^_', varsIgnorePattern: '^_' },
+      ],
       'no-restricted-imports': [
         'error',
-        { patterns: [{ group: ['../../shared/*', '../../pwa/*', '../../sync-server/*', '../../conflict-tests/*', '../../../*'], message: 'Import another workspace by its package name, not a relative path.' }] },
+        {
+          patterns: [
+            {
+              group: [
+                '../../shared/*',
+                '../../pwa/*',
+                '../../sync-server/*',
+                '../../conflict-tests/*',
+                '../../../*',
+              ],
+              message: 'Import another workspace by its package name, not a relative path.',
+            },
+          ],
+        },
       ],
     },
   },
@@ -36,11 +62,22 @@ export default tseslint.config(
     rules: {
       'no-restricted-imports': [
         'error',
-        { paths: ['dexie', '@nestjs/common', '@nestjs/core', 'fs', 'node:fs', 'http', 'node:http'], patterns: [{ group: ['@nestjs/*', '@mikro-orm/*', 'dexie*'], message: 'shared/ is pure: no I/O, no framework.' }] },
+        {
+          paths: ['dexie', '@nestjs/common', '@nestjs/core', 'fs', 'node:fs', 'http', 'node:http'],
+          patterns: [
+            {
+              group: ['@nestjs/*', '@mikro-orm/*', 'dexie*'],
+              message: 'shared/ is pure: no I/O, no framework.',
+            },
+          ],
+        },
       ],
       'no-restricted-syntax': [
         'error',
-        { selector: "CallExpression[callee.object.name='Date'][callee.property.name='now']", message: 'shared/ takes time as a parameter; no Date.now().' },
+        {
+          selector: "CallExpression[callee.object.name='Date'][callee.property.name='now']",
+          message: 'shared/ takes time as a parameter; no Date.now().',
+        },
         { selector: "CallExpression[callee.name='fetch']", message: 'shared/ does no I/O.' },
       ],
     },
@@ -53,7 +90,14 @@ export default tseslint.config(
   {
     files: ['pwa/src/**/*.tsx', 'pwa/src/screens/**', 'pwa/src/components/**'],
     rules: {
-      'no-restricted-imports': ['error', { paths: [{ name: 'dexie', message: 'Components use repositories in pwa/src/data, never Dexie.' }] }],
+      'no-restricted-imports': [
+        'error',
+        {
+          paths: [
+            { name: 'dexie', message: 'Components use repositories in pwa/src/data, never Dexie.' },
+          ],
+        },
+      ],
     },
   },
   {

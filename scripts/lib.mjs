@@ -2,7 +2,14 @@
 // Debian packages, and a private PostgreSQL cluster on 127.0.0.1.
 import { spawn, spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, readdirSync, writeFileSync, chmodSync } from 'node:fs';
+import {
+  existsSync,
+  mkdirSync,
+  readFileSync,
+  readdirSync,
+  writeFileSync,
+  chmodSync,
+} from 'node:fs';
 import { createServer } from 'node:net';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -23,7 +30,9 @@ export async function step(name, fn) {
     return result;
   } catch (error) {
     const reason = error instanceof Error ? error.message : String(error);
-    process.stderr.write(`✗ Step "${name}" failed: ${reason.split('\n').filter(Boolean).slice(-3).join(' | ')}\n`);
+    process.stderr.write(
+      `✗ Step "${name}" failed: ${reason.split('\n').filter(Boolean).slice(-3).join(' | ')}\n`,
+    );
     throw new StepError(reason);
   }
 }
@@ -45,13 +54,17 @@ export function capture(command, args, options = {}) {
   const result = spawnSync(command, args, { cwd: repoRoot, encoding: 'utf8', ...options });
   if (result.error) throw result.error;
   if (result.status !== 0) {
-    throw new Error(`${command} ${args.join(' ')}: ${(result.stderr || result.stdout || '').trim()}`);
+    throw new Error(
+      `${command} ${args.join(' ')}: ${(result.stderr || result.stdout || '').trim()}`,
+    );
   }
   return result.stdout;
 }
 
 function lockHash() {
-  return createHash('sha256').update(readFileSync(join(repoRoot, 'package-lock.json'))).digest('hex');
+  return createHash('sha256')
+    .update(readFileSync(join(repoRoot, 'package-lock.json')))
+    .digest('hex');
 }
 
 /** `npm ci` when node_modules is missing or was installed from another lock file. */
@@ -68,10 +81,14 @@ export async function ensureNodeModules() {
 export async function ensureDebianPackage(pkg, present) {
   if (present()) return 'present';
   if (!isRoot) {
-    throw new Error(`Debian package "${pkg}" is missing: run  sudo apt-get update && sudo apt-get install -y ${pkg}`);
+    throw new Error(
+      `Debian package "${pkg}" is missing: run  sudo apt-get update && sudo apt-get install -y ${pkg}`,
+    );
   }
   await run('apt-get', ['update', '-qq']);
-  await run('apt-get', ['install', '-y', '-qq', pkg], { env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' } });
+  await run('apt-get', ['install', '-y', '-qq', pkg], {
+    env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' },
+  });
   if (!present()) throw new Error(`apt-get installed ${pkg} but it is still not usable`);
   return 'installed';
 }
@@ -85,8 +102,10 @@ export function findPostgresBin() {
   return majors.length ? join(base, majors[0], 'bin') : null;
 }
 
-export const ensurePostgres = () => ensureDebianPackage('postgresql', () => findPostgresBin() !== null);
-export const ensureChromium = () => ensureDebianPackage('chromium', () => existsSync('/usr/bin/chromium'));
+export const ensurePostgres = () =>
+  ensureDebianPackage('postgresql', () => findPostgresBin() !== null);
+export const ensureChromium = () =>
+  ensureDebianPackage('chromium', () => existsSync('/usr/bin/chromium'));
 
 /** Runs a PostgreSQL binary as the unprivileged `postgres` user when we are root. */
 function pgCommand(bin, args) {
@@ -141,14 +160,30 @@ export function startCluster({ dir, port, fast = false }) {
   if (!existsSync(join(data, 'PG_VERSION'))) {
     pgRun('initdb', ['-D', data, '-U', 'postgres', '-A', 'trust', '-E', 'UTF8', '--no-locale']);
   }
-  const options = [`-p ${port}`, `-k ${dir}`, `-c listen_addresses=127.0.0.1`, '-c max_connections=200'];
+  const options = [
+    `-p ${port}`,
+    `-k ${dir}`,
+    `-c listen_addresses=127.0.0.1`,
+    '-c max_connections=200',
+  ];
   if (fast) options.push('-c fsync=off', '-c synchronous_commit=off', '-c full_page_writes=off');
   const status = spawnSync(...pgCommand('pg_ctl', ['-D', data, 'status']));
   if (status.status === 0) {
     // Already running (an earlier start that was not stopped): restart on the wanted port.
     pgRun('pg_ctl', ['-D', data, '-m', 'fast', '-w', 'stop']);
   }
-  pgRun('pg_ctl', ['-D', data, '-l', join(dir, 'server.log'), '-w', '-t', '30', '-o', options.join(' '), 'start']);
+  pgRun('pg_ctl', [
+    '-D',
+    data,
+    '-l',
+    join(dir, 'server.log'),
+    '-w',
+    '-t',
+    '30',
+    '-o',
+    options.join(' '),
+    'start',
+  ]);
   return `postgres://postgres@127.0.0.1:${port}/postgres`;
 }
 

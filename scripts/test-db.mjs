@@ -10,7 +10,11 @@ const dir = join('/var/tmp', `fuselight-testdb-${process.pid}`);
 const port = Number(process.env.PORT) || (await freePort());
 const url = startCluster({ dir, port, fast: true });
 console.log(`export FUSELIGHT_TEST_PG_URL=${url}`);
-const stop = () => { stopCluster(dir); rmSync(dir, { recursive: true, force: true }); process.exit(0); };
+const stop = () => {
+  stopCluster(dir);
+  rmSync(dir, { recursive: true, force: true });
+  process.exit(0);
+};
 process.on('SIGINT', stop);
 process.on('SIGTERM', stop);
 setInterval(() => undefined, 1 << 30);

@@ -22,10 +22,10 @@ export async function createApp(
 ): Promise<NestExpressApplication> {
   const logger =
     options.logger ?? new ConsoleLogger({ json: config.env === 'production', colors: false });
-  const app = await NestFactory.create<NestExpressApplication>(
-    AppModule.forRoot(config, options),
-    { logger, bodyParser: false },
-  );
+  const app = await NestFactory.create<NestExpressApplication>(AppModule.forRoot(config, options), {
+    logger,
+    bodyParser: false,
+  });
   app.useBodyParser('json', { limit: config.bodyLimitBytes });
   // Body-parser failures happen before Nest's router, so they are answered here.
   app.use((error: unknown, _req: Request, res: Response, next: NextFunction) => {
@@ -37,7 +37,9 @@ export async function createApp(
         message: `body: larger than the ${Math.round(config.bodyLimitBytes / 1024 / 1024)} MB the server accepts; send fewer changes at once.`,
       });
     } else if (type === 'entity.parse.failed') {
-      res.status(400).json({ statusCode: 400, error: 'Bad Request', message: 'body: not valid JSON' });
+      res
+        .status(400)
+        .json({ statusCode: 400, error: 'Bad Request', message: 'body: not valid JSON' });
     } else {
       next(error);
     }
@@ -61,14 +63,17 @@ export async function createApp(
   SwaggerModule.setup('api/docs', app, () => buildOpenApiDocument(app), {
     jsonDocumentUrl: 'api/docs-json',
   });
-  if (config.pwaDist && existsSync(join(config.pwaDist, 'index.html'))) servePwa(app, config.pwaDist);
+  if (config.pwaDist && existsSync(join(config.pwaDist, 'index.html')))
+    servePwa(app, config.pwaDist);
   return app;
 }
 
 export function buildOpenApiDocument(app: NestExpressApplication): OpenAPIObject {
   const document = new DocumentBuilder()
     .setTitle('Fuselight clinic server')
-    .setDescription('Sign-in, tablets, sync (protocol 1), disputes, records, letters and attachments.')
+    .setDescription(
+      'Sign-in, tablets, sync (protocol 1), disputes, records, letters and attachments.',
+    )
     .setVersion('1')
     .addBearerAuth()
     .build();

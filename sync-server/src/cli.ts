@@ -12,12 +12,18 @@ async function main(command: string | undefined): Promise<void> {
   switch (command) {
     case 'migrate': {
       const applied = await migrateDatabase(config.databaseUrl);
-      console.log(applied.length ? `Applied migrations: ${applied.join(', ')}` : 'Database schema is up to date.');
+      console.log(
+        applied.length
+          ? `Applied migrations: ${applied.join(', ')}`
+          : 'Database schema is up to date.',
+      );
       return;
     }
     case 'seed': {
       if (config.env === 'production') throw new Error('The demo seed never runs in production.');
-      const app = await NestFactory.createApplicationContext(AppModule.forRoot(config), { logger: ['error', 'warn'] });
+      const app = await NestFactory.createApplicationContext(AppModule.forRoot(config), {
+        logger: ['error', 'warn'],
+      });
       try {
         const lines = await app.get(SeedService).run();
         for (const line of lines) console.log(line);

@@ -23,12 +23,14 @@ export class AllExceptionsFilter implements ExceptionFilter {
 
   catch(exception: unknown, host: ArgumentsHost): void {
     const response = host.switchToHttp().getResponse<Response>();
-    const parserError = (exception as { cause?: BodyParserError })?.cause ?? (exception as BodyParserError);
+    const parserError =
+      (exception as { cause?: BodyParserError })?.cause ?? (exception as BodyParserError);
     if (parserError?.type === 'entity.too.large') {
       response.status(413).json({
         statusCode: 413,
         error: 'Payload Too Large',
-        message: 'The request body is larger than the server accepts (5 MB); send fewer changes at once.',
+        message:
+          'The request body is larger than the server accepts (5 MB); send fewer changes at once.',
       });
       return;
     }
@@ -55,7 +57,9 @@ export class AllExceptionsFilter implements ExceptionFilter {
       });
       return;
     }
-    this.logger.error(exception instanceof Error ? (exception.stack ?? exception.message) : String(exception));
+    this.logger.error(
+      exception instanceof Error ? (exception.stack ?? exception.message) : String(exception),
+    );
     response.status(500).json({
       statusCode: 500,
       error: 'Internal Server Error',

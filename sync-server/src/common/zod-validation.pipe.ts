@@ -27,7 +27,11 @@ export function describeZodError(error: z.ZodError, root: string): string {
     .join('; ');
 }
 
-export function parseWith<T extends z.ZodType>(schema: T, value: unknown, root: string): z.infer<T> {
+export function parseWith<T extends z.ZodType>(
+  schema: T,
+  value: unknown,
+  root: string,
+): z.infer<T> {
   const result = schema.safeParse(value);
   if (!result.success) {
     throw new BadRequestException(describeZodError(result.error, root));
@@ -42,7 +46,8 @@ export class ZodValidationPipe implements PipeTransform {
     const schema =
       this.schema ?? (metadata.metatype as Partial<ZodDtoClass> | undefined)?.zodSchema ?? null;
     if (!schema) return value;
-    const root = metadata.type === 'custom' ? '' : metadata.type === 'param' ? 'params' : metadata.type;
+    const root =
+      metadata.type === 'custom' ? '' : metadata.type === 'param' ? 'params' : metadata.type;
     return parseWith(schema, value, metadata.data ? `${root}.${metadata.data}` : root);
   }
 }

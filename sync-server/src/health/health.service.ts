@@ -24,6 +24,11 @@ export class HealthService {
         db: 'error',
       });
     }
-    return { status: 'ok', db: 'ok', version: serverPackage.version, schemaVersion: SCHEMA_VERSION };
+    return {
+      status: 'ok',
+      db: 'ok',
+      version: serverPackage.version,
+      schemaVersion: SCHEMA_VERSION,
+    };
   }
 }

@@ -1,0 +1,44 @@
+// Debian's Chromium through playwright-core (never a downloaded browser), with the flags that
+// keep it off the closed network, a fresh profile per launch, and screenshots as artifacts.
+import { mkdtempSync, mkdirSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+
+export const baseUrl = (): string => {
+  const url = process.env.FUSELIGHT_E2E_BASE_URL;
+  if (!url)
+    throw new Error('FUSELIGHT_E2E_BASE_URL is not set: run end-to-end tests through `npm test`.');
+  return url;
+};
+
+export const TABLET_LANDSCAPE = { width: 1280, height: 800 };
+export const TABLET_PORTRAIT = { width: 768, height: 1024 };
+
+export async function launchTablet(viewport = TABLET_LANDSCAPE): Promise<BrowserContext> {
+  const profile = mkdtempSync(join(tmpdir(), 'fuselight-e2e-'));
+  return chromium.launchPersistentContext(profile, {
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    headless: true,
+    viewport,
+    hasTouch: true,
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+  });
+}
+
+const artifacts = resolve(import.meta.dirname, '..', '..', 'artifacts', 'screenshots');
+
+export async function screenshot(page: Page, name: string): Promise<string> {
+  mkdirSync(artifacts, { recursive: true });
+  const path = join(artifacts, `${name}.png`);
+  await page.screenshot({ path, fullPage: false });
+  return path;
+}
