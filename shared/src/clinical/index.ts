@@ -12,3 +12,6 @@ export * from './visual-acuity';
 export * from './accommodation';
 export * from './near-point-of-convergence';
 export * from './finding-series';
+export * from './fusional-norms';
+export * from './fusional-ranges';
+export * from './suppression-scotoma';
