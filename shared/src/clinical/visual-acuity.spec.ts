@@ -39,6 +39,15 @@ describe('Snellen and decimal to logMAR', () => {
     expect(snellenToLogMAR(' 20 / 40 ')).toBeCloseTo(snellenToLogMAR('6/12'), 12);
   });
 
+  it('reads a chart fraction with a decimal denominator such as 6/7.5', () => {
+    // −log10(6/7.5) = log10(1.25) ≈ 0.0969, the 0.1 line (one line = 0.1 log unit).
+    expect(snellenToLogMAR('6/7.5')).toBeCloseTo(0.09691, 5);
+  });
+
+  it('rejects a decimal acuity beyond any chart with the decimal range in the message', () => {
+    expect(() => decimalToLogMAR(0.0001)).toThrow(/decimal: must lie between 0\.001 and 10/);
+  });
+
   it.each(['6-12', '6/', '/12', 'six/twelve', '6/0', '0/6', '', '6/12/24'])(
     'rejects %j as not a Snellen fraction',
     (entry) => {

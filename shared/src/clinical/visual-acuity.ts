@@ -22,7 +22,12 @@ export function decimalToLogMAR(decimal: number): number {
   if (decimal <= 0)
     throw new ClinicalInputError('decimal', `must be greater than zero (got ${decimal})`);
   const logMAR = -Math.log10(decimal);
-  requireLogMAR('decimal', logMAR);
+  if (logMAR < LOGMAR_MIN || logMAR > LOGMAR_MAX) {
+    throw new ClinicalInputError(
+      'decimal',
+      `must lie between ${10 ** -LOGMAR_MAX} and ${10 ** -LOGMAR_MIN} (got ${decimal})`,
+    );
+  }
   return logMAR;
 }
 
