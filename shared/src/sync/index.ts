@@ -1,2 +1,4 @@
-// Filled in by the sync work; see shared/src/index.ts.
-export {};
+// The sync rules the tablet and the server must agree on: the hybrid logical clock and the
+// field-level merge decision (sync-protocol.md). Pure functions; time is always a parameter.
+export * from './hlc';
+export * from './merge';
