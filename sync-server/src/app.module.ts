@@ -1,6 +1,8 @@
 import { MikroOrmModule } from '@mikro-orm/nestjs';
 import { Module, type DynamicModule } from '@nestjs/common';
 import { APP_FILTER, APP_GUARD, APP_PIPE } from '@nestjs/core';
+import { AdminModule } from './admin/admin.module';
+import { AuditModule } from './audit/audit.module';
 import { AuthCoreModule } from './auth/auth-core.module';
 import { AuthModule } from './auth/auth.module';
 import { JwtAuthGuard } from './auth/jwt-auth.guard';
@@ -9,9 +11,11 @@ import { AllExceptionsFilter } from './common/http-exception.filter';
 import { ZodValidationPipe } from './common/zod-validation.pipe';
 import type { AppConfig } from './config/app-config';
 import { ormOptions } from './database/orm-options';
+import { DevicesModule } from './devices/devices.module';
 import { HealthModule } from './health/health.module';
 import { SeedModule } from './seed/seed.module';
 import { SitesModule } from './sites/sites.module';
+import { UsersModule } from './users/users.module';
 
 @Module({})
 export class AppModule {
@@ -27,6 +31,10 @@ export class AppModule {
         SitesModule,
         SeedModule,
         // Feature modules (one per bounded context) are listed below this line.
+        AuditModule,
+        UsersModule,
+        DevicesModule,
+        AdminModule,
       ],
       providers: [
         { provide: APP_GUARD, useClass: JwtAuthGuard },

@@ -1,13 +1,31 @@
+// Identity's core, global so every module can check scopes, revoke sessions and sign tokens:
+// the real SESSION_CHECK used by the global guard, token issue and rotation, the DB-backed
+// attempt limiter, injectable crypto and the ScopeService.
+import { MikroOrmModule } from '@mikro-orm/nestjs';
 import { Global, Module } from '@nestjs/common';
-import { SESSION_CHECK, type SessionCheck } from './session-check';
-
-// Foundation seam: until sessions and tablets are stored, a validly signed token is active.
-// The identity work replaces this with checks of the session family, person and tablet.
-const signatureOnlyCheck: SessionCheck = { assertActive: async () => undefined };
+import { AttemptLimiter } from './attempt-limiter.service';
+import { AuthSession } from './auth-session.entity';
+import { AuthController } from './auth.controller';
+import { AuthService } from './auth.service';
+import { DbSessionCheck } from './db-session-check';
+import { RefreshToken } from './refresh-token.entity';
+import { ScopeService } from './scope';
+import { SECRETS, nodeSecrets } from './secrets.provider';
+import { SESSION_CHECK } from './session-check';
+import { TokenService } from './token.service';
 
 @Global()
 @Module({
-  providers: [{ provide: SESSION_CHECK, useValue: signatureOnlyCheck }],
-  exports: [SESSION_CHECK],
+  imports: [MikroOrmModule.forFeature([AuthSession, RefreshToken])],
+  controllers: [AuthController],
+  providers: [
+    { provide: SECRETS, useValue: nodeSecrets },
+    { provide: SESSION_CHECK, useClass: DbSessionCheck },
+    AttemptLimiter,
+    AuthService,
+    TokenService,
+    ScopeService,
+  ],
+  exports: [SESSION_CHECK, SECRETS, AttemptLimiter, AuthService, TokenService, ScopeService],
 })
 export class AuthModule {}

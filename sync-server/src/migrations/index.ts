@@ -2,7 +2,9 @@
 // list instead of scanning a folder. Add a new migration at the end; never edit an applied one.
 import type { MigrationObject } from '@mikro-orm/core';
 import { Migration20261201000000Sites } from './Migration20261201000000Sites';
+import { Migration20261201010000Identity } from './Migration20261201010000Identity';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
+  { name: 'Migration20261201010000Identity', class: Migration20261201010000Identity },
 ];

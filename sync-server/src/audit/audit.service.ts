@@ -1,0 +1,66 @@
+// The audit trail. Other modules call `record(em, event)` with their own transactional entity
+// manager, so an event commits or rolls back with the change it describes (the sync engine
+// records every clinical record change this way). Account events (sign-ins, tablets, people,
+// sites) are read by admins; clinical events by supervisors of the event's site.
+import type { EntityManager } from '@mikro-orm/core';
+import { Inject, Injectable } from '@nestjs/common';
+import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
+import { AuditEvent, type AuditScope } from './audit-event.entity';
+
+export interface AuditInput {
+  /** What happened, dotted: `auth.sign_in`, `device.revoked`, `record.changed`, … */
+  kind: string;
+  actorId?: string | null;
+  deviceId?: string | null;
+  siteId?: string | null;
+  subjectType: string;
+  subjectId?: string | null;
+  /** Facts worth keeping. Never a password, hash, token or secret: such keys are dropped. */
+  detail?: Record<string, unknown>;
+  /** Defaults from the kind: `auth.`, `user.`, `device.` and `site.` kinds are account events. */
+  scope?: AuditScope;
+}
+
+const ACCOUNT_KIND_PREFIXES = ['auth.', 'user.', 'device.', 'site.'];
+const SECRET_KEY = /password|secret|token|hash|enrolment_?code/i;
+
+export function scopeOfKind(kind: string): AuditScope {
+  return ACCOUNT_KIND_PREFIXES.some((prefix) => kind.startsWith(prefix)) ? 'account' : 'clinical';
+}
+
+/** Drops any key that looks like it could carry a credential, at any depth. */
+export function withoutSecrets(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(withoutSecrets);
+  if (value && typeof value === 'object' && !(value instanceof Date)) {
+    return Object.fromEntries(
+      Object.entries(value)
+        .filter(([key]) => !SECRET_KEY.test(key))
+        .map(([key, inner]) => [key, withoutSecrets(inner)]),
+    );
+  }
+  return value;
+}
+
+@Injectable()
+export class AuditService {
+  constructor(
+    @Inject(CLOCK) private readonly clock: Clock,
+    @Inject(IDS) private readonly ids: IdGenerator,
+  ) {}
+
+  /** Appends one event inside the caller's transaction (`em` is its transactional manager). */
+  async record(em: EntityManager, event: AuditInput): Promise<void> {
+    await em.insert(AuditEvent, {
+      id: this.ids.uuid(),
+      occurredAt: this.clock.now(),
+      scope: event.scope ?? scopeOfKind(event.kind),
+      kind: event.kind,
+      actorId: event.actorId ?? null,
+      deviceId: event.deviceId ?? null,
+      siteId: event.siteId ?? null,
+      subjectType: event.subjectType,
+      subjectId: event.subjectId ?? null,
+      detail: (withoutSecrets(event.detail ?? {}) as Record<string, unknown>) ?? {},
+    });
+  }
+}

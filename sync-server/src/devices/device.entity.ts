@@ -1,0 +1,55 @@
+import { Entity, PrimaryKey, Property } from '@mikro-orm/core';
+
+/**
+ * A tablet of the Fleet. `pending` until enrolled with its code; `active` once it holds a device
+ * secret; `retired` may still push (to empty its outbox) and then erases itself; `revoked` is
+ * refused at once and told to erase.
+ */
+export type DeviceState = 'pending' | 'active' | 'retired' | 'revoked';
+
+@Entity({ tableName: 'device' })
+export class Device {
+  @PrimaryKey({ type: 'uuid' })
+  id!: string;
+
+  @Property({ type: 'text' })
+  label!: string;
+
+  @Property({ type: 'text' })
+  state: DeviceState = 'pending';
+
+  /** SHA-256 of the single-use enrolment code; null once used. */
+  @Property({ type: 'text', nullable: true, hidden: true })
+  enrolmentCodeHash: string | null = null;
+
+  @Property({ type: 'timestamptz', nullable: true })
+  enrolmentExpiresAt: Date | null = null;
+
+  /** SHA-256 of the device secret the tablet presents at sign-in. */
+  @Property({ type: 'text', nullable: true, hidden: true })
+  secretHash: string | null = null;
+
+  @Property({ type: 'timestamptz', nullable: true })
+  enrolledAt: Date | null = null;
+
+  @Property({ type: 'timestamptz', nullable: true })
+  lastSeenAt: Date | null = null;
+
+  @Property({ type: 'text', nullable: true })
+  appVersion: string | null = null;
+
+  @Property({ type: 'integer', nullable: true })
+  outboxSize: number | null = null;
+
+  @Property({ type: 'uuid', nullable: true })
+  createdBy: string | null = null;
+
+  @Property({ type: 'timestamptz' })
+  createdAt!: Date;
+
+  @Property({ type: 'timestamptz', nullable: true })
+  retiredAt: Date | null = null;
+
+  @Property({ type: 'timestamptz', nullable: true })
+  revokedAt: Date | null = null;
+}
