@@ -1,27 +1,41 @@
+import Dexie from 'dexie';
 import { afterEach, describe, expect, it } from 'vitest';
-import { FuselightDb } from './db';
+import { DEXIE_SCHEMA_VERSION, FuselightDb } from './db';
 
-let db: FuselightDb | null = null;
+const opened: Dexie[] = [];
 
 afterEach(async () => {
-  await db?.delete();
-  db = null;
+  for (const db of opened.splice(0)) {
+    db.close();
+    await db.delete();
+  }
 });
+
+function fresh(): FuselightDb {
+  const db = new FuselightDb(`test-${crypto.randomUUID()}`);
+  opened.push(db);
+  return db;
+}
 
 describe('the tablet database', () => {
   it('opens on fake-indexeddb with its versioned schema', async () => {
-    db = new FuselightDb(`test-${crypto.randomUUID()}`);
+    const db = fresh();
     await db.open();
-    expect(db.verno).toBe(1);
-    expect(db.tables.map((t) => t.name).sort()).toEqual(['meta', 'outbox', 'records']);
+    expect(db.verno).toBe(DEXIE_SCHEMA_VERSION);
+    expect(db.tables.map((t) => t.name).sort()).toEqual([
+      'meta',
+      'outbox',
+      'patientSearch',
+      'records',
+    ]);
   });
 
   it('writes a record and its outbox entry in one transaction, or neither', async () => {
-    db = new FuselightDb(`test-${crypto.randomUUID()}`);
+    const db = fresh();
     const id = crypto.randomUUID();
     await expect(
       db.transaction('rw', db.records, db.outbox, async () => {
-        await db!.records.put({
+        await db.records.put({
           collection: 'patient',
           id,
           version: 0,
@@ -29,11 +43,76 @@ describe('the tablet database', () => {
           fields: { familyName: 'Ardent' },
           conflicts: [],
           pendingFields: ['familyName'],
+          serverFields: {},
           updatedAt: 1,
         });
         throw new Error('the outbox write failed');
       }),
     ).rejects.toThrow('the outbox write failed');
     expect(await db.records.count()).toBe(0);
+  });
+
+  it('upgrades a version 1 database and keeps every outbox entry, in creation order', async () => {
+    const name = `test-v1-${crypto.randomUUID()}`;
+    // The schema exactly as version 1 shipped it.
+    const v1 = new Dexie(name);
+    v1.version(1).stores({
+      records: '[collection+id], collection, id, version, updatedAt',
+      outbox: 'changeId, [collection+recordId], state, authorId, createdAt',
+      meta: 'key',
+    });
+    const patientId = '0190c6a0-0000-7000-8000-00000000b001';
+    await v1.table('records').put({
+      collection: 'patient',
+      id: patientId,
+      version: 0,
+      deleted: false,
+      fields: {
+        givenName: 'Amara',
+        familyName: 'Okafor',
+        clinicNumber: 'FL-1',
+        dateOfBirth: '2016-04-09',
+      },
+      conflicts: [],
+      pendingFields: ['givenName', 'familyName'],
+      updatedAt: 5,
+    });
+    const entries = [3, 1, 2].map((n) => ({
+      changeId: `0190c6a0-0000-7000-8000-0000000e000${n}`,
+      collection: 'patient',
+      recordId: patientId,
+      baseVersion: 0,
+      hlc: `000000000000${n}00-00000-device-one`,
+      fields: { familyName: `Name ${n}` },
+      deleted: n === 2,
+      authorId: 'author',
+      createdAt: n * 100,
+      state: n === 3 ? 'rejected' : 'pending',
+      error: n === 3 ? 'Family name is too long' : null,
+      attempts: 0,
+    }));
+    await v1.table('outbox').bulkPut(entries);
+    v1.close();
+
+    const db = new FuselightDb(name);
+    opened.push(db);
+    await db.open();
+    expect(db.verno).toBe(2);
+    const migrated = await db.outbox.orderBy('seq').toArray();
+    expect(migrated.map((entry) => entry.changeId)).toEqual([
+      entries[1]!.changeId,
+      entries[2]!.changeId,
+      entries[0]!.changeId,
+    ]);
+    expect(migrated.map((entry) => entry.seq)).toEqual([1, 2, 3]);
+    expect(migrated.map((entry) => entry.deleted)).toEqual([undefined, true, undefined]);
+    expect(migrated[2]).toMatchObject({ state: 'rejected', error: 'Family name is too long' });
+    expect(migrated.every((entry) => entry.deviceId === 'device-one')).toBe(true);
+    expect((await db.meta.get('outboxSeq'))?.value).toBe(3);
+    const record = await db.records.get(['patient', patientId] as unknown as string);
+    expect(record?.serverFields).toEqual({});
+    expect((await db.patientSearch.get(patientId))?.terms).toEqual(
+      expect.arrayContaining(['amara', 'okafor', 'fl-1', '2016-04-09']),
+    );
   });
 });

@@ -1,0 +1,347 @@
+// The charting screens' domain queries and edits (Today, Chart, Visit), built on the generic
+// records repository: today's visits at a site, a patient's visits newest first, a visit's
+// Sections, saving a Section field, signing, countersigning and addenda. The visit's lock lives
+// here as well as on screen, so a signed visit's content cannot change through this layer.
+import {
+  SECTION_COLLECTIONS,
+  type RecordFieldsInput,
+  type SectionCollectionName,
+  type SessionUser,
+} from '@fuselight/shared';
+import { type EditContext, type LocalRecord, type RecordsRepository } from '../records-repository';
+import {
+  ADDENDUM_PREFIX,
+  canAddAddendum,
+  canCountersign,
+  canEditSections,
+  canSign,
+  parseAddendum,
+  writeAddendumImpression,
+  type Addendum,
+} from './visit-rules';
+
+export interface TodayEntry {
+  visit: LocalRecord<'visit'>;
+  patient: LocalRecord<'patient'> | null;
+}
+
+export type VisitSectionRecords = {
+  [C in SectionCollectionName]?: LocalRecord<C>;
+};
+
+export interface VisitBundle {
+  visit: LocalRecord<'visit'>;
+  patient: LocalRecord<'patient'> | null;
+  sections: VisitSectionRecords;
+  addenda: Addendum[];
+}
+
+/** Thrown when an edit would change a signed visit's content. */
+export class VisitLockedError extends Error {
+  override readonly name = 'VisitLockedError';
+}
+
+/** An edit the visit's state or the person's role does not allow, in words. */
+export class VisitRuleError extends Error {
+  override readonly name = 'VisitRuleError';
+}
+
+/** Today's date on this tablet as YYYY-MM-DD (the tablet's own time zone). */
+export function localDate(now: Date = new Date()): string {
+  const y = now.getFullYear();
+  const m = String(now.getMonth() + 1).padStart(2, '0');
+  const d = String(now.getDate()).padStart(2, '0');
+  return `${y}-${m}-${d}`;
+}
+
+const DATE_QUERY = /^\d{4}(-\d{1,2}(-\d{1,2})?)?$/;
+const DAY_FIRST_DATE = /^(\d{1,2})[/.](\d{1,2})[/.](\d{4})$/;
+
+/** Reads a typed date of birth ("2016-04-09", "2016-04", "9/4/2016") as a YYYY-MM-DD prefix. */
+export function dateQueryPrefix(query: string): string | null {
+  const trimmed = query.trim();
+  const dayFirst = DAY_FIRST_DATE.exec(trimmed);
+  if (dayFirst) {
+    const [, d, m, y] = dayFirst;
+    return `${y}-${m!.padStart(2, '0')}-${d!.padStart(2, '0')}`;
+  }
+  if (!DATE_QUERY.test(trimmed)) return null;
+  const [y, m, d] = trimmed.split('-');
+  return [y, m?.padStart(2, '0'), d?.padStart(2, '0')].filter(Boolean).join('-');
+}
+
+function byIdAscending<T extends { id: string }>(a: T, b: T): number {
+  return a.id < b.id ? -1 : a.id > b.id ? 1 : 0;
+}
+
+function patientName(patient: LocalRecord<'patient'> | null): string {
+  return patient ? `${patient.fields.familyName} ${patient.fields.givenName}` : '';
+}
+
+export class ChartingRepository {
+  /** One chain of writes per Section, so a first edit's create lands before the next update. */
+  private readonly sectionWrites = new Map<string, Promise<unknown>>();
+
+  constructor(private readonly records: RecordsRepository) {}
+
+  /** Visits dated today at a site (drafts first, then by patient name), with their patients. */
+  async todaysVisits(siteId: string, today: string): Promise<TodayEntry[]> {
+    const visits = (await this.records.list('visit', { siteId })).filter(
+      (visit) => visit.fields.date === today,
+    );
+    const entries = await Promise.all(
+      visits.map(async (visit) => ({
+        visit,
+        patient: (await this.records.get('patient', visit.fields.patientId)) ?? null,
+      })),
+    );
+    return entries.sort(
+      (a, b) =>
+        Number(a.visit.fields.status !== 'draft') - Number(b.visit.fields.status !== 'draft') ||
+        patientName(a.patient).localeCompare(patientName(b.patient)),
+    );
+  }
+
+  /**
+   * Patients on the tablet matching what was typed: name words and clinic number through the
+   * search index; a date of birth (whole or in part) through the same index as one term.
+   */
+  async searchPatients(query: string, limit = 30): Promise<LocalRecord<'patient'>[]> {
+    const datePrefix = dateQueryPrefix(query);
+    if (datePrefix === null) return this.records.searchPatients(query, { limit });
+    // The generic search splits typed words at hyphens, which breaks a date into pieces; a date
+    // of birth is one term in the index, so look it up as one prefix here.
+    const db = this.records.db;
+    const rows = await db.patientSearch.where('terms').startsWith(datePrefix).limit(limit).toArray();
+    const found = await Promise.all(rows.map((row) => this.records.get('patient', row.id)));
+    return found.filter(
+      (p): p is LocalRecord<'patient'> => p !== undefined && !p.deleted,
+    );
+  }
+
+  async patient(patientId: string): Promise<LocalRecord<'patient'> | null> {
+    return (await this.records.get('patient', patientId)) ?? null;
+  }
+
+  /** A patient's visits, newest first (same-day visits: the later-made first). */
+  async patientVisits(patientId: string): Promise<LocalRecord<'visit'>[]> {
+    const visits = await this.records.listByField('visit', 'patientId', patientId);
+    return visits.sort(
+      (a, b) => b.fields.date.localeCompare(a.fields.date) || -byIdAscending(a, b),
+    );
+  }
+
+  /** Every record of some Section collections for a patient, keyed by visit id. */
+  async patientSections<C extends SectionCollectionName>(
+    patientId: string,
+    collections: readonly C[],
+  ): Promise<Map<string, VisitSectionRecords>> {
+    const byVisit = new Map<string, VisitSectionRecords>();
+    for (const collection of collections) {
+      const records = (await this.records.listByField(collection, 'patientId', patientId)).sort(
+        byIdAscending,
+      );
+      for (const record of records) {
+        if (collection === 'plan' && parseAddendum(record as LocalRecord<'plan'>) !== null) continue;
+        const visitId = (record.fields as { visitId: string }).visitId;
+        const sections = byVisit.get(visitId) ?? {};
+        // The earliest-made record is the visit's Section; a second one made elsewhere
+        // offline is shown by the sync's Disputes, not silently mixed in here.
+        if (!sections[collection]) (sections as Record<string, unknown>)[collection] = record;
+        byVisit.set(visitId, sections);
+      }
+    }
+    return byVisit;
+  }
+
+  /** A visit with its patient, its Sections (one record per collection) and its addenda. */
+  async visitBundle(visitId: string): Promise<VisitBundle | null> {
+    const visit = await this.records.get('visit', visitId);
+    if (!visit || visit.deleted) return null;
+    const patient = (await this.records.get('patient', visit.fields.patientId)) ?? null;
+    const sections: VisitSectionRecords = {};
+    const addenda: Addendum[] = [];
+    await Promise.all(
+      SECTION_COLLECTIONS.map(async (collection) => {
+        const records = (await this.records.listByField(collection, 'visitId', visitId)).sort(
+          byIdAscending,
+        );
+        for (const record of records) {
+          if (collection === 'plan') {
+            const addendum = parseAddendum(record as LocalRecord<'plan'>);
+            if (addendum) {
+              addenda.push(addendum);
+              continue;
+            }
+          }
+          if (!sections[collection]) (sections as Record<string, unknown>)[collection] = record;
+        }
+      }),
+    );
+    addenda.sort((a, b) => a.writtenAt.localeCompare(b.writtenAt));
+    return { visit, patient, sections, addenda };
+  }
+
+  async createPatient(fields: RecordFieldsInput<'patient'>, ctx: EditContext): Promise<string> {
+    return this.records.create('patient', fields, ctx);
+  }
+
+  async updatePatient(
+    patientId: string,
+    fields: Partial<RecordFieldsInput<'patient'>>,
+    ctx: EditContext,
+  ): Promise<void> {
+    await this.records.update('patient', patientId, fields, ctx);
+  }
+
+  /** Starts a draft visit today for a patient at the active site. */
+  async startVisit(
+    input: { patientId: string; siteId: string; clinicianId: string; date: string; reason?: string },
+    ctx: EditContext,
+  ): Promise<string> {
+    return this.records.create(
+      'visit',
+      {
+        siteId: input.siteId,
+        patientId: input.patientId,
+        date: input.date,
+        clinicianId: input.clinicianId,
+        status: 'draft',
+        needsCountersign: false,
+        ...(input.reason ? { reason: input.reason } : {}),
+      },
+      ctx,
+    );
+  }
+
+  /** Changes fields of the visit itself (reason, needs countersigning) while it is a draft. */
+  async updateDraftVisit(
+    visitId: string,
+    fields: Pick<Partial<RecordFieldsInput<'visit'>>, 'reason' | 'needsCountersign'>,
+    ctx: EditContext,
+  ): Promise<void> {
+    const visit = await this.requireVisit(visitId);
+    if (!canEditSections(visit)) {
+      throw new VisitLockedError('This visit is signed; write an Addendum instead.');
+    }
+    await this.records.update('visit', visitId, fields, ctx);
+  }
+
+  /**
+   * Saves changed fields of one Section of a draft visit, creating the Section on its first
+   * edit. Resolves once the edit and its Outbox entry are in IndexedDB.
+   */
+  async saveSection<C extends SectionCollectionName>(
+    visitId: string,
+    collection: C,
+    fields: Record<string, unknown>,
+    ctx: EditContext,
+  ): Promise<string> {
+    const key = `${visitId}:${collection}`;
+    const previous = this.sectionWrites.get(key) ?? Promise.resolve();
+    const next = previous
+      .catch(() => undefined)
+      .then(() => this.writeSection(visitId, collection, fields, ctx));
+    this.sectionWrites.set(key, next);
+    try {
+      return await next;
+    } finally {
+      if (this.sectionWrites.get(key) === next) this.sectionWrites.delete(key);
+    }
+  }
+
+  private async writeSection<C extends SectionCollectionName>(
+    visitId: string,
+    collection: C,
+    fields: Record<string, unknown>,
+    ctx: EditContext,
+  ): Promise<string> {
+    const visit = await this.requireVisit(visitId);
+    if (!canEditSections(visit)) {
+      throw new VisitLockedError('This visit is signed; its Sections are locked. Write an Addendum.');
+    }
+    const existing = (await this.records.listByField(collection, 'visitId', visitId))
+      .filter((r) => collection !== 'plan' || parseAddendum(r as LocalRecord<'plan'>) === null)
+      .sort(byIdAscending)[0];
+    if (existing) {
+      await this.records.update(collection, existing.id, fields as never, ctx);
+      return existing.id;
+    }
+    return this.records.create(
+      collection,
+      {
+        siteId: visit.fields.siteId,
+        visitId,
+        patientId: visit.fields.patientId,
+        ...fields,
+      } as never,
+      ctx,
+    );
+  }
+
+  /** Signs a draft visit: status signed, signedBy and signedAt; its content is locked after. */
+  async sign(visitId: string, user: SessionUser, ctx: EditContext): Promise<void> {
+    const visit = await this.requireVisit(visitId);
+    const why = canSign(visit, user);
+    if (why !== true) throw new VisitRuleError(why);
+    await this.records.update(
+      'visit',
+      visitId,
+      { status: 'signed', signedBy: user.id, signedAt: new Date(ctx.nowMs).toISOString() },
+      ctx,
+    );
+  }
+
+  /** A supervisor's countersignature on a signed visit that needs it. */
+  async countersign(visitId: string, user: SessionUser, ctx: EditContext): Promise<void> {
+    const visit = await this.requireVisit(visitId);
+    const why = canCountersign(visit, user);
+    if (why !== true) throw new VisitRuleError(why);
+    await this.records.update(
+      'visit',
+      visitId,
+      {
+        status: 'countersigned',
+        countersignedBy: user.id,
+        countersignedAt: new Date(ctx.nowMs).toISOString(),
+      },
+      ctx,
+    );
+  }
+
+  /** An Addendum to a signed visit: a new record beside the signed content, never an edit of it. */
+  async addAddendum(
+    visitId: string,
+    input: { text: string; author: SessionUser },
+    ctx: EditContext,
+  ): Promise<string> {
+    const visit = await this.requireVisit(visitId);
+    const why = canAddAddendum(visit);
+    if (why !== true) throw new VisitRuleError(why);
+    const text = input.text.trim();
+    if (text === '') throw new VisitRuleError('Write what the Addendum adds or corrects.');
+    return this.records.create(
+      'plan',
+      {
+        siteId: visit.fields.siteId,
+        visitId,
+        patientId: visit.fields.patientId,
+        impression: writeAddendumImpression({
+          authorId: input.author.id,
+          authorName: input.author.name,
+          writtenAt: new Date(ctx.nowMs).toISOString(),
+          text,
+        }),
+      },
+      ctx,
+    );
+  }
+
+  private async requireVisit(visitId: string): Promise<LocalRecord<'visit'>> {
+    const visit = await this.records.get('visit', visitId);
+    if (!visit || visit.deleted) throw new VisitRuleError('This visit is not on this tablet.');
+    return visit;
+  }
+}
+
+export { ADDENDUM_PREFIX };
