@@ -1,0 +1,67 @@
+// The tablet's own identity store, kept apart from the records database (pwa/src/data/db.ts):
+// the enrolled tablet's credentials, each person's tokens, their PIN hash (never the PIN), and
+// the unlock policy. Only pwa/src/auth talks to it.
+import Dexie, { type EntityTable } from 'dexie';
+import type { SessionUser } from '@fuselight/shared';
+
+export const AUTH_DB_NAME = 'fuselight-auth';
+
+/** The enrolled tablet. One row, key 'tablet'. */
+export interface TabletCredentials {
+  key: 'tablet';
+  deviceId: string;
+  /** Presented at every sign-in on this tablet; the server stores only its hash. */
+  deviceSecret: string;
+  enrolledAt: number;
+  /** 'retired' once the server said so: the tablet empties its Outbox, then erases itself. */
+  state: 'active' | 'retired';
+}
+
+/** A person who signed in on this tablet, with their own session (kept per author). */
+export interface PersonSession {
+  userId: string;
+  user: SessionUser;
+  accessToken: string | null;
+  /** Epoch ms at which the access token stops being accepted (from its `exp` claim). */
+  accessExpiresAt: number;
+  refreshToken: string | null;
+  /** Last time the server confirmed this person (sign-in or successful refresh). */
+  confirmedAt: number;
+  /** Set when the server refused this person's session: they must sign in again online. */
+  signInRequired: { reason: string; at: number } | null;
+  activeSiteId: string | null;
+}
+
+/** A PIN for offline unlock, as a PBKDF2 hash with a per-person salt. */
+export interface PinRecord {
+  userId: string;
+  /** base64 */
+  salt: string;
+  /** base64 of the derived bits */
+  hash: string;
+  iterations: number;
+  failedAttempts: number;
+  setAt: number;
+}
+
+export interface AuthSetting {
+  key: string;
+  value: unknown;
+}
+
+export class AuthDb extends Dexie {
+  tablet!: EntityTable<TabletCredentials, 'key'>;
+  people!: EntityTable<PersonSession, 'userId'>;
+  pins!: EntityTable<PinRecord, 'userId'>;
+  settings!: EntityTable<AuthSetting, 'key'>;
+
+  constructor(name = AUTH_DB_NAME) {
+    super(name);
+    this.version(1).stores({
+      tablet: 'key',
+      people: 'userId',
+      pins: 'userId',
+      settings: 'key',
+    });
+  }
+}

@@ -1,0 +1,149 @@
+// A stand-in for the clinic server's identity routes, for unit tests: issues JWT-shaped access
+// tokens that expire on the test's clock, rotating refresh tokens, tablet enrolment, and can be
+// told to refuse refreshes or to answer as for a revoked or retired tablet.
+import type { SessionUser } from '@fuselight/shared';
+import type { FetchLike } from './identity-api';
+
+export const SITE_A = '0190c6a0-0000-7000-8000-00000000a001';
+export const SITE_B = '0190c6a0-0000-7000-8000-00000000a002';
+
+export const AMARA: SessionUser = {
+  id: '0190c6a0-0000-7000-8000-000000000011',
+  name: 'Amara Lindqvist',
+  email: 'amara@harbourview.test',
+  role: 'orthoptist',
+  siteIds: [SITE_A, SITE_B],
+};
+export const TOMASZ: SessionUser = {
+  id: '0190c6a0-0000-7000-8000-000000000012',
+  name: 'Tomasz Okonjo',
+  email: 'tomasz@harbourview.test',
+  role: 'supervisor',
+  siteIds: [SITE_A],
+};
+
+const PASSWORD = 'correct horse battery';
+export const PASSWORDS: Record<string, string> = {
+  [AMARA.email]: PASSWORD,
+  [TOMASZ.email]: PASSWORD,
+};
+
+function jwtFor(userId: string, exp: number, serial: number): string {
+  const enc = (value: object) =>
+    btoa(JSON.stringify(value)).replace(/=+$/, '').replace(/\+/g, '-').replace(/\//g, '_');
+  return `${enc({ alg: 'HS256', typ: 'JWT' })}.${enc({ sub: userId, exp, n: serial })}.signature`;
+}
+
+export interface FakeClinicServer {
+  fetch: FetchLike;
+  /** Every request seen, as "METHOD /path" with the bearer's user id if any. */
+  calls: { route: string; userId: string | null; body: unknown }[];
+  refuseRefresh: 'no' | 'unauthorized' | 'revoked' | 'offline';
+  deviceState: 'active' | 'retired' | 'revoked';
+  enrolmentCode: string;
+  accessTtlSeconds: number;
+  /** The user id a currently valid access token belongs to. */
+  whoseToken(token: string): string | null;
+}
+
+export function fakeClinicServer(now: () => number): FakeClinicServer {
+  let serial = 0;
+  const access = new Map<string, { userId: string; exp: number }>();
+  const refresh = new Map<string, { userId: string; spent: boolean }>();
+  const users = new Map([AMARA, TOMASZ].map((u) => [u.email, u]));
+  const byId = new Map([AMARA, TOMASZ].map((u) => [u.id, u]));
+  const deviceSecret = 'tablet-secret-for-tests';
+
+  const json = (status: number, body: unknown) =>
+    new Response(JSON.stringify(body), {
+      status,
+      headers: { 'content-type': 'application/json' },
+    });
+
+  const issue = (user: SessionUser) => {
+    serial += 1;
+    const exp = Math.floor(now() / 1000) + server.accessTtlSeconds;
+    const accessToken = jwtFor(user.id, exp, serial);
+    access.set(accessToken, { userId: user.id, exp: exp * 1000 });
+    const refreshToken = `refresh-${user.id}-${serial}`;
+    refresh.set(refreshToken, { userId: user.id, spent: false });
+    return { accessToken, refreshToken, user };
+  };
+
+  const server: FakeClinicServer = {
+    calls: [],
+    refuseRefresh: 'no',
+    deviceState: 'active',
+    enrolmentCode: 'K7Q2M9XD',
+    accessTtlSeconds: 600,
+    whoseToken(token) {
+      const entry = access.get(token);
+      return entry && entry.exp > now() ? entry.userId : null;
+    },
+    async fetch(input, init) {
+      const path = new URL(input, 'http://tablet.test').pathname;
+      const method = init?.method ?? 'GET';
+      const body: unknown = init?.body ? JSON.parse(String(init.body)) : undefined;
+      const bearer = (
+        (init?.headers as Record<string, string> | undefined)?.authorization ?? ''
+      ).replace(/^Bearer /, '');
+      const caller = bearer ? server.whoseToken(bearer) : null;
+      server.calls.push({ route: `${method} ${path}`, userId: caller, body });
+      const revoked = () =>
+        json(401, {
+          message: 'This tablet has been revoked; it must erase its local data.',
+          erase: true,
+        });
+
+      switch (`${method} ${path}`) {
+        case 'POST /api/auth/login': {
+          const { email, password, deviceSecret: secret } = body as Record<string, string>;
+          if (secret !== undefined && server.deviceState === 'revoked') return revoked();
+          const user = users.get(email ?? '');
+          if (!user || PASSWORDS[user.email] !== password) {
+            return json(401, {
+              message: 'That e-mail address and password do not match an active account.',
+            });
+          }
+          return json(201, issue(user));
+        }
+        case 'POST /api/auth/refresh': {
+          if (server.refuseRefresh === 'offline') throw new TypeError('Failed to fetch');
+          if (server.refuseRefresh === 'revoked' || server.deviceState === 'revoked')
+            return revoked();
+          const presented = (body as { refreshToken: string }).refreshToken;
+          const entry = refresh.get(presented);
+          if (server.refuseRefresh === 'unauthorized' || !entry) {
+            return json(401, { message: 'This refresh token is not valid; sign in again.' });
+          }
+          if (entry.spent)
+            return json(401, {
+              message:
+                'This sign-in was ended because its refresh token was used twice; sign in again.',
+            });
+          entry.spent = true;
+          return json(201, issue(byId.get(entry.userId)!));
+        }
+        case 'POST /api/auth/logout':
+          return new Response(null, { status: caller ? 204 : 401 });
+        case 'POST /api/devices/enrol': {
+          const { code } = body as { code: string };
+          if (code !== server.enrolmentCode) {
+            return json(400, { message: 'code: this enrolment code is not valid or has expired.' });
+          }
+          return json(201, { deviceId: '0190c6a0-0000-7000-8000-0000000000d1', deviceSecret });
+        }
+        case 'GET /api/devices/me':
+          if (server.deviceState === 'revoked') return revoked();
+          if (!caller) return json(401, { message: 'Sign in first.' });
+          return json(200, { state: server.deviceState });
+        case 'POST /api/devices/heartbeat':
+          if (server.deviceState === 'revoked') return revoked();
+          return caller ? json(201, { ok: true }) : json(401, { message: 'Sign in first.' });
+        default:
+          return json(404, { message: `No route ${method} ${path}` });
+      }
+    },
+  };
+  return server;
+}

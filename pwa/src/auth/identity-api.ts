@@ -1,0 +1,255 @@
+// The identity routes of the clinic server (auth, devices, admin), over an injectable fetch so
+// tests can stand in for the network. Errors carry the server's words and its `erase` flag
+// (a revoked tablet); nothing here logs a token or a secret.
+import {
+  sessionUserSchema,
+  type LoginRequest,
+  type Role,
+  type SessionUser,
+} from '@fuselight/shared';
+
+export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
+
+export class ApiError extends Error {
+  constructor(
+    readonly status: number,
+    message: string,
+    /** The server told this tablet to erase its data (it was revoked). */
+    readonly erase: boolean,
+    readonly body: unknown,
+  ) {
+    super(message);
+    this.name = 'ApiError';
+  }
+}
+
+/** No answer at all (offline, DNS, server down): distinct from a refusal. */
+export class NetworkError extends Error {
+  constructor(cause: unknown) {
+    super('The clinic server could not be reached; check the network and try again.', { cause });
+    this.name = 'NetworkError';
+  }
+}
+
+export interface SignInResponse {
+  accessToken: string;
+  refreshToken: string;
+  user: SessionUser;
+}
+export interface EnrolResponse {
+  deviceId: string;
+  deviceSecret: string;
+}
+export interface DeviceStatus {
+  state: 'pending' | 'active' | 'retired' | 'revoked';
+  /** Optional clinic policy the server may send for offline unlock. */
+  offlineUnlockHours?: number;
+  maxPinAttempts?: number;
+}
+
+export interface AdminUser {
+  id: string;
+  name: string;
+  email: string;
+  role: Role;
+  siteIds: string[];
+  active: boolean;
+  lastSignInAt?: string | null;
+}
+export interface NewPerson {
+  name: string;
+  email: string;
+  role: Role;
+  siteIds: string[];
+}
+export type PersonChange = Partial<Pick<AdminUser, 'name' | 'role' | 'siteIds' | 'active'>>;
+
+export type SiteKind = 'clinic' | 'outreach';
+export interface AdminSite {
+  id: string;
+  name: string;
+  kind: SiteKind;
+  address: string | null;
+  timeZone: string;
+}
+export interface NewSite {
+  name: string;
+  kind: SiteKind;
+  address?: string | null;
+  timeZone?: string;
+}
+
+export interface FleetDevice {
+  id: string;
+  label: string;
+  state: 'pending' | 'active' | 'retired' | 'revoked';
+  siteIds: string[];
+  lastSeenAt: string | null;
+  appVersion: string | null;
+  outboxSize: number | null;
+  enrolledAt?: string | null;
+  enrolmentExpiresAt?: string | null;
+}
+export interface RegisteredDevice {
+  deviceId: string;
+  enrolmentCode: string;
+  expiresAt: string;
+  qrPayload: string;
+}
+
+async function readBody(response: Response): Promise<unknown> {
+  const text = await response.text();
+  if (!text) return null;
+  try {
+    return JSON.parse(text) as unknown;
+  } catch {
+    return text;
+  }
+}
+
+function messageOf(body: unknown, status: number): string {
+  if (body && typeof body === 'object' && 'message' in body) {
+    const { message } = body as { message: unknown };
+    if (typeof message === 'string' && message) return message;
+    if (Array.isArray(message)) return message.join('; ');
+  }
+  if (status === 0 || status >= 500) return 'The clinic server had a problem; try again shortly.';
+  return `The server refused the request (${status}).`;
+}
+
+/** Turns a list from the server into an array whether it came bare or as { items }. */
+function itemsOf<T>(body: unknown): T[] {
+  if (Array.isArray(body)) return body as T[];
+  if (body && typeof body === 'object' && 'items' in body) return (body as { items: T[] }).items;
+  return [];
+}
+
+export interface IdentityApiOptions {
+  fetch?: FetchLike;
+  /** Prefix of every route; '' means the page's own origin. */
+  baseUrl?: string;
+}
+
+export class IdentityApi {
+  private readonly fetcher: FetchLike;
+  private readonly baseUrl: string;
+
+  constructor(options: IdentityApiOptions = {}) {
+    this.fetcher = options.fetch ?? ((input, init) => globalThis.fetch(input, init));
+    this.baseUrl = options.baseUrl ?? '';
+  }
+
+  async request<T>(
+    method: string,
+    path: string,
+    options: { body?: unknown; token?: string | null } = {},
+  ): Promise<T> {
+    const headers: Record<string, string> = { accept: 'application/json' };
+    if (options.body !== undefined) headers['content-type'] = 'application/json';
+    if (options.token) headers.authorization = `Bearer ${options.token}`;
+    let response: Response;
+    try {
+      response = await this.fetcher(`${this.baseUrl}${path}`, {
+        method,
+        headers,
+        body: options.body === undefined ? undefined : JSON.stringify(options.body),
+        cache: 'no-store',
+      });
+    } catch (error) {
+      throw new NetworkError(error);
+    }
+    const body = await readBody(response);
+    if (!response.ok) {
+      const erase =
+        response.status === 401 &&
+        !!body &&
+        typeof body === 'object' &&
+        (body as { erase?: unknown }).erase === true;
+      throw new ApiError(response.status, messageOf(body, response.status), erase, body);
+    }
+    return body as T;
+  }
+
+  async signIn(request: LoginRequest): Promise<SignInResponse> {
+    const answer = await this.request<SignInResponse>('POST', '/api/auth/login', { body: request });
+    return { ...answer, user: sessionUserSchema.parse(answer.user) };
+  }
+
+  async refresh(refreshToken: string): Promise<SignInResponse> {
+    const answer = await this.request<SignInResponse>('POST', '/api/auth/refresh', {
+      body: { refreshToken },
+    });
+    return { ...answer, user: sessionUserSchema.parse(answer.user) };
+  }
+
+  signOut(token: string): Promise<void> {
+    return this.request('POST', '/api/auth/logout', { token });
+  }
+
+  enrol(code: string): Promise<EnrolResponse> {
+    return this.request('POST', '/api/devices/enrol', { body: { code } });
+  }
+
+  deviceStatus(token: string): Promise<DeviceStatus> {
+    return this.request('GET', '/api/devices/me', { token });
+  }
+
+  heartbeat(token: string, report: { appVersion: string; outboxSize: number }): Promise<unknown> {
+    return this.request('POST', '/api/devices/heartbeat', { token, body: report });
+  }
+
+  async listPeople(token: string): Promise<AdminUser[]> {
+    return itemsOf<AdminUser>(await this.request('GET', '/api/admin/users', { token }));
+  }
+  invitePerson(token: string, person: NewPerson): Promise<AdminUser> {
+    return this.request('POST', '/api/admin/users', { token, body: person });
+  }
+  changePerson(token: string, id: string, change: PersonChange): Promise<AdminUser> {
+    return this.request('PATCH', `/api/admin/users/${encodeURIComponent(id)}`, {
+      token,
+      body: change,
+    });
+  }
+
+  async listSites(token: string): Promise<AdminSite[]> {
+    return itemsOf<AdminSite>(await this.request('GET', '/api/admin/sites', { token }));
+  }
+  addSite(token: string, site: NewSite): Promise<AdminSite> {
+    return this.request('POST', '/api/admin/sites', { token, body: site });
+  }
+  changeSite(token: string, id: string, change: Partial<NewSite>): Promise<AdminSite> {
+    return this.request('PATCH', `/api/admin/sites/${encodeURIComponent(id)}`, {
+      token,
+      body: change,
+    });
+  }
+
+  async listDevices(token: string): Promise<FleetDevice[]> {
+    return itemsOf<FleetDevice>(await this.request('GET', '/api/admin/devices', { token }));
+  }
+  registerDevice(
+    token: string,
+    device: { label: string; siteIds: string[] },
+  ): Promise<RegisteredDevice> {
+    return this.request('POST', '/api/admin/devices', { token, body: device });
+  }
+  revokeDevice(token: string, id: string): Promise<unknown> {
+    return this.request('POST', `/api/admin/devices/${encodeURIComponent(id)}/revoke`, { token });
+  }
+  retireDevice(token: string, id: string): Promise<unknown> {
+    return this.request('POST', `/api/admin/devices/${encodeURIComponent(id)}/retire`, { token });
+  }
+}
+
+/** Epoch ms of a JWT's `exp`, read without verifying (the server verifies); null if unreadable. */
+export function tokenExpiry(token: string): number | null {
+  const payload = token.split('.')[1];
+  if (!payload) return null;
+  try {
+    const json = atob(payload.replace(/-/g, '+').replace(/_/g, '/'));
+    const { exp } = JSON.parse(json) as { exp?: unknown };
+    return typeof exp === 'number' ? exp * 1000 : null;
+  } catch {
+    return null;
+  }
+}

@@ -1,0 +1,176 @@
+import { beforeEach, describe, expect, it } from 'vitest';
+import { AuthDb } from './auth-db';
+import {
+  AMARA,
+  PASSWORDS,
+  TOMASZ,
+  SITE_B,
+  fakeClinicServer,
+  type FakeClinicServer,
+} from './fake-clinic-server.fixture';
+import { IdentityApi } from './identity-api';
+import { SessionStore } from './session-store';
+import { eraseAllDatabases } from './tablet-erasure';
+
+const HOUR = 3_600_000;
+
+function setUp(options: { countOutbox?: (authorId?: string) => Promise<number> } = {}) {
+  const clock = { now: Date.UTC(2026, 11, 1, 8, 0) };
+  const server: FakeClinicServer = fakeClinicServer(() => clock.now);
+  const make = () =>
+    new SessionStore({
+      api: new IdentityApi({ fetch: server.fetch }),
+      now: () => clock.now,
+      countOutbox: options.countOutbox ?? (async () => 0),
+    });
+  return { clock, server, store: make(), make };
+}
+
+async function enrolledWithPin(pin = '482913') {
+  const setup = setUp();
+  await setup.store.load();
+  await setup.store.enrol(setup.server.enrolmentCode);
+  await setup.store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+  await setup.store.setPin(pin);
+  await setup.store.switchPerson();
+  return setup;
+}
+
+beforeEach(async () => {
+  await eraseAllDatabases();
+  localStorage.clear();
+});
+
+describe('offline unlock with a PIN', () => {
+  it('unlocks with the PIN while offline within the offline window', async () => {
+    const { store, server, clock } = await enrolledWithPin();
+    server.refuseRefresh = 'offline';
+    clock.now += 71 * HOUR;
+    expect(store.getSnapshot().activeUser).toBeNull();
+    const result = await store.unlock(AMARA.id, '482913');
+    expect(result).toEqual({ ok: true });
+    expect(store.getSnapshot().activeUser?.id).toBe(AMARA.id);
+  });
+
+  it('refuses the right PIN once the offline window has closed', async () => {
+    const { store, clock } = await enrolledWithPin();
+    clock.now += 72 * HOUR + 1;
+    const result = await store.unlock(AMARA.id, '482913');
+    expect(result).toMatchObject({ ok: false, reason: 'window-closed' });
+    expect(store.getSnapshot().activeUser).toBeNull();
+    expect(store.getSnapshot().people[0]?.canUnlockWithPin).toBe(false);
+  });
+
+  it('measures the window in the hours the clinic set', async () => {
+    const { store, clock } = await enrolledWithPin();
+    await store.setPolicy({ offlineUnlockHours: 8 });
+    clock.now += 9 * HOUR;
+    expect(await store.unlock(AMARA.id, '482913')).toMatchObject({
+      ok: false,
+      reason: 'window-closed',
+    });
+  });
+
+  it('locks the PIN out after five wrong tries, even for the right PIN, until an online sign-in', async () => {
+    const { store } = await enrolledWithPin();
+    const answers = [];
+    for (let i = 0; i < 5; i += 1) answers.push(await store.unlock(AMARA.id, '000000'));
+    expect(answers.map((a) => (a.ok ? 'ok' : a.attemptsLeft))).toEqual([4, 3, 2, 1, 0]);
+    expect(answers[4]).toMatchObject({ reason: 'locked-out' });
+    expect(await store.unlock(AMARA.id, '482913')).toMatchObject({
+      ok: false,
+      reason: 'locked-out',
+    });
+
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    await store.switchPerson();
+    expect(await store.unlock(AMARA.id, '482913')).toEqual({ ok: true });
+  });
+
+  it('keeps the attempt count across a reload of the app', async () => {
+    const { store, make } = await enrolledWithPin();
+    await store.unlock(AMARA.id, '111111');
+    await store.unlock(AMARA.id, '222222');
+    const reloaded = make();
+    await reloaded.load();
+    expect(reloaded.getSnapshot().people[0]?.pinAttemptsLeft).toBe(3);
+  });
+
+  it('stores only a salted PBKDF2 hash of the PIN, never the PIN', async () => {
+    await enrolledWithPin('482913');
+    const db = new AuthDb();
+    const [row] = await db.pins.toArray();
+    db.close();
+    expect(row?.iterations).toBeGreaterThanOrEqual(100_000);
+    expect(JSON.stringify(row)).not.toContain('482913');
+    expect(atob(row!.salt)).toHaveLength(16);
+  });
+
+  it('refuses a PIN that is not 4 to 8 digits', async () => {
+    const { store } = setUp();
+    await store.load();
+    await store.enrol('K7Q2M9XD');
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    await expect(store.setPin('12a4')).rejects.toThrow();
+    await expect(store.setPin('123')).rejects.toThrow();
+  });
+});
+
+describe('sessions on a shared tablet', () => {
+  it('binds a sign-in on an enrolled tablet to the tablet with its device secret', async () => {
+    const { store, server } = setUp();
+    await store.load();
+    await store.enrol('K7Q2M9XD');
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    const login = server.calls.find((c) => c.route === 'POST /api/auth/login');
+    expect(login?.body).toMatchObject({
+      email: AMARA.email,
+      deviceSecret: 'tablet-secret-for-tests',
+    });
+  });
+
+  it('survives a reload with the same person, tablet and site', async () => {
+    const { store, make } = setUp();
+    await store.load();
+    await store.enrol('K7Q2M9XD');
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    await store.setActiveSite(SITE_B);
+    const reloaded = make();
+    await reloaded.load();
+    const snapshot = reloaded.getSnapshot();
+    expect(snapshot.activeUser?.id).toBe(AMARA.id);
+    expect(snapshot.activeSiteId).toBe(SITE_B);
+    expect(snapshot.tablet?.deviceId).toBe('0190c6a0-0000-7000-8000-0000000000d1');
+  });
+
+  it('will not make a site active that is not one of the person’s', async () => {
+    const { store } = setUp();
+    await store.load();
+    await store.signIn({ email: TOMASZ.email, password: PASSWORDS[TOMASZ.email]! });
+    await expect(store.setActiveSite(SITE_B)).rejects.toThrow(/not one of yours/);
+  });
+
+  it('refreshes one person’s token only once when asked twice at the same time', async () => {
+    const { store, server, clock } = setUp();
+    await store.load();
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    clock.now += 11 * 60_000;
+    const [first, second] = await Promise.all([store.tokenFor(AMARA.id), store.tokenFor(AMARA.id)]);
+    expect(first).not.toBeNull();
+    expect(first).toBe(second);
+    expect(server.calls.filter((c) => c.route === 'POST /api/auth/refresh')).toHaveLength(1);
+    expect(store.getSnapshot().prompts).toEqual([]);
+  });
+
+  it('keeps a person listed with a prompt when they sign out with changes still waiting', async () => {
+    const { store } = setUp({ countOutbox: async (authorId) => (authorId === AMARA.id ? 2 : 0) });
+    await store.load();
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    await store.signOut();
+    const snapshot = store.getSnapshot();
+    expect(snapshot.activeUser).toBeNull();
+    expect(snapshot.prompts).toEqual([
+      expect.objectContaining({ userId: AMARA.id, waitingChanges: 2 }),
+    ]);
+  });
+});
