@@ -3,3 +3,4 @@
 export * from './schemas/index';
 export * from './clinical/index';
 export * from './sync/index';
+export * from './letters/index';
