@@ -1,0 +1,245 @@
+import request from 'supertest';
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { ATTEMPT_LIMITS } from '../auth/attempt-limiter.service';
+import {
+  bearer,
+  createSite,
+  createUser,
+  signIn,
+  type TestSession,
+  type TestUser,
+} from '../testing/identity-factory';
+import { createTestApp, type TestApp } from '../testing/test-app';
+
+describe('the Fleet: registering, enrolling, revoking and retiring tablets', () => {
+  let t: TestApp;
+  let siteId: string;
+  let admin: TestSession;
+  let adminUser: TestUser;
+  const server = () => t.app.getHttpServer();
+  const register = (label = 'Room 2 tablet', siteIds = [siteId]) =>
+    request(server())
+      .post('/api/admin/devices')
+      .set(bearer(admin.accessToken))
+      .send({ label, siteIds });
+  const enrol = (code: string, address = '10.9.0.1') =>
+    request(server()).post('/api/devices/enrol').set('X-Forwarded-For', address).send({ code });
+
+  beforeAll(async () => {
+    t = await createTestApp();
+    siteId = (await createSite(t)).id;
+    adminUser = await createUser(t, { role: 'admin', siteIds: [] });
+  });
+  // Some tests move the clock past a token's lifetime; each test starts with a fresh sign-in.
+  beforeEach(async () => {
+    admin = await signIn(t, { user: adminUser });
+  });
+  afterAll(async () => {
+    await t.close();
+  });
+
+  async function enrolledTabletSession(): Promise<{
+    deviceId: string;
+    session: TestSession;
+    secret: string;
+  }> {
+    const ticket = await register();
+    const enrolled = await enrol(ticket.body.enrolmentCode);
+    expect(enrolled.status).toBe(200);
+    const person = await createUser(t, { role: 'orthoptist', siteIds: [siteId] });
+    const session = await signIn(t, {
+      user: person,
+      device: { deviceId: enrolled.body.deviceId, deviceSecret: enrolled.body.deviceSecret },
+    });
+    return { deviceId: enrolled.body.deviceId, session, secret: enrolled.body.deviceSecret };
+  }
+
+  it('registers a tablet with a 24-hour single-use code and a QR payload carrying it', async () => {
+    const res = await register();
+    expect(res.status).toBe(201);
+    expect(res.body).toEqual({
+      deviceId: expect.any(String),
+      enrolmentCode: expect.stringMatching(/^[0-9A-Z]{4}-[0-9A-Z]{4}-[0-9A-Z]{4}$/),
+      expiresAt: new Date(t.clock.now().getTime() + 24 * 3600 * 1000).toISOString(),
+      qrPayload: expect.stringContaining(res.body.enrolmentCode),
+    });
+    const list = await request(server()).get('/api/admin/devices').set(bearer(admin.accessToken));
+    const row = list.body.find((d: { id: string }) => d.id === res.body.deviceId);
+    expect(row).toMatchObject({ state: 'pending', siteIds: [siteId], label: 'Room 2 tablet' });
+    expect(JSON.stringify(list.body)).not.toContain(res.body.enrolmentCode);
+  });
+
+  it('names the field when a registration is malformed or names an unknown site', async () => {
+    const blank = await register('', [siteId]);
+    expect(blank.status).toBe(400);
+    expect(blank.body.message).toContain('body.label');
+    const unknown = await register('Tablet', ['01935a00-0000-7000-8000-00000000dead']);
+    expect(unknown.status).toBe(400);
+    expect(unknown.body.message).toContain('body.siteIds.0');
+  });
+
+  it('enrols with a code once; the same code a second time is refused', async () => {
+    const ticket = await register();
+    const first = await enrol(ticket.body.enrolmentCode.toLowerCase().replaceAll('-', ' '));
+    expect(first.status).toBe(200);
+    expect(first.body).toEqual({
+      deviceId: ticket.body.deviceId,
+      deviceSecret: expect.any(String),
+    });
+    const second = await enrol(ticket.body.enrolmentCode);
+    expect(second.status).toBe(400);
+    expect(second.body.message).toContain('code:');
+    expect(second.body).not.toHaveProperty('deviceSecret');
+  });
+
+  it('refuses a code after 24 hours', async () => {
+    const ticket = await register();
+    t.clock.advance(24 * 3600 * 1000 + 1000);
+    const res = await enrol(ticket.body.enrolmentCode);
+    expect(res.status).toBe(400);
+    expect(res.body.message).toContain('expired');
+  });
+
+  it('records a heartbeat and shows it in the Fleet list', async () => {
+    const { deviceId, session } = await enrolledTabletSession();
+    const beat = await request(server())
+      .post('/api/devices/heartbeat')
+      .set(bearer(session.accessToken))
+      .send({ appVersion: '0.3.1', outboxSize: 7 });
+    expect(beat.status).toBe(200);
+    expect(beat.body).toMatchObject({ deviceId, state: 'active' });
+    const list = await request(server()).get('/api/admin/devices').set(bearer(admin.accessToken));
+    expect(list.body.find((d: { id: string }) => d.id === deviceId)).toMatchObject({
+      state: 'active',
+      appVersion: '0.3.1',
+      outboxSize: 7,
+      lastSeenAt: t.clock.now().toISOString(),
+    });
+  });
+
+  it('names the field of a malformed heartbeat', async () => {
+    const { session } = await enrolledTabletSession();
+    const res = await request(server())
+      .post('/api/devices/heartbeat')
+      .set(bearer(session.accessToken))
+      .send({ appVersion: '0.3.1', outboxSize: -1 });
+    expect(res.status).toBe(400);
+    expect(res.body.message).toContain('body.outboxSize');
+  });
+
+  it('refuses a revoked tablet on its very next request and tells it to erase', async () => {
+    const { deviceId, session, secret } = await enrolledTabletSession();
+    expect(
+      (await request(server()).get('/api/devices/me').set(bearer(session.accessToken))).status,
+    ).toBe(200);
+    const revoke = await request(server())
+      .post(`/api/admin/devices/${deviceId}/revoke`)
+      .set(bearer(admin.accessToken));
+    expect(revoke.status).toBe(200);
+    expect(revoke.body.state).toBe('revoked');
+
+    const next = await request(server()).get('/api/devices/me').set(bearer(session.accessToken));
+    expect(next.status).toBe(401);
+    expect(next.body).toMatchObject({ statusCode: 401, erase: true });
+    const refresh = await request(server())
+      .post('/api/auth/refresh')
+      .send({ refreshToken: session.refreshToken });
+    expect(refresh.status).toBe(401);
+    const person = session.user;
+    const login = await request(server())
+      .post('/api/auth/login')
+      .send({
+        email: person.email,
+        password: 'a-test-password-of-decent-length',
+        deviceSecret: secret,
+      });
+    expect(login.status).toBe(401);
+    expect(login.body.erase).toBe(true);
+    const again = await request(server())
+      .post(`/api/admin/devices/${deviceId}/revoke`)
+      .set(bearer(admin.accessToken));
+    expect(again.status).toBe(409);
+  });
+
+  it('lets a retired tablet keep its session to empty its outbox, and tells it it is retired', async () => {
+    const { deviceId, session } = await enrolledTabletSession();
+    const retire = await request(server())
+      .post(`/api/admin/devices/${deviceId}/retire`)
+      .set(bearer(admin.accessToken));
+    expect(retire.status).toBe(200);
+    const me = await request(server()).get('/api/devices/me').set(bearer(session.accessToken));
+    expect(me.status).toBe(200);
+    expect(me.body.state).toBe('retired');
+    const beat = await request(server())
+      .post('/api/devices/heartbeat')
+      .set(bearer(session.accessToken))
+      .send({ appVersion: '0.3.1', outboxSize: 0 });
+    expect(beat.body.state).toBe('retired');
+    const again = await request(server())
+      .post(`/api/admin/devices/${deviceId}/retire`)
+      .set(bearer(admin.accessToken));
+    expect(again.status).toBe(409);
+  });
+
+  it('re-enrols a tablet with a new code: the old secret and its sessions stop working', async () => {
+    const { deviceId, session, secret } = await enrolledTabletSession();
+    const code = await request(server())
+      .post(`/api/admin/devices/${deviceId}/enrolment-code`)
+      .set(bearer(admin.accessToken));
+    expect(code.status).toBe(201);
+    const enrolled = await enrol(code.body.enrolmentCode);
+    expect(enrolled.status).toBe(200);
+    expect(enrolled.body.deviceSecret).not.toBe(secret);
+    expect(
+      (await request(server()).get('/api/devices/me').set(bearer(session.accessToken))).status,
+    ).toBe(401);
+  });
+
+  it('answers 404 for an unknown tablet and 400 for an id that is not a UUID', async () => {
+    const missing = await request(server())
+      .post('/api/admin/devices/01935a00-0000-7000-8000-00000000beef/revoke')
+      .set(bearer(admin.accessToken));
+    expect(missing.status).toBe(404);
+    const malformed = await request(server())
+      .post('/api/admin/devices/42/revoke')
+      .set(bearer(admin.accessToken));
+    expect(malformed.status).toBe(400);
+    expect(malformed.body.message).toContain('params.id');
+  });
+
+  it('refuses a desk session on the tablet-only routes', async () => {
+    const desk = await signIn(t, {
+      user: await createUser(t, { role: 'orthoptist', siteIds: [siteId] }),
+    });
+    const res = await request(server()).get('/api/devices/me').set(bearer(desk.accessToken));
+    expect(res.status).toBe(403);
+  });
+
+  it('limits failed enrolments from one address', async () => {
+    for (let i = 0; i < ATTEMPT_LIMITS.enrolPerAddress.max; i++) {
+      expect((await enrol(`WRONG-CODE-${i}`, '10.9.9.9')).status).toBe(400);
+    }
+    const ticket = await register();
+    const limited = await enrol(ticket.body.enrolmentCode, '10.9.9.9');
+    expect(limited.status).toBe(429);
+    expect(limited.body.message).toContain('enrolments from this address');
+    expect((await enrol(ticket.body.enrolmentCode, '10.9.9.10')).status).toBe(200);
+  });
+
+  it('writes enrolments, revocations and retirements to the account audit', async () => {
+    const audit = await request(server())
+      .get('/api/audit?scope=account&limit=200')
+      .set(bearer(admin.accessToken));
+    expect(audit.status).toBe(200);
+    const kinds = new Set(audit.body.items.map((e: { kind: string }) => e.kind));
+    for (const kind of [
+      'device.registered',
+      'device.enrolled',
+      'device.revoked',
+      'device.retired',
+      'auth.sign_in',
+    ]) {
+      expect(kinds).toContain(kind);
+    }
+  });
+});
