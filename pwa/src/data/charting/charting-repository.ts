@@ -10,7 +10,6 @@ import {
 } from '@fuselight/shared';
 import { type EditContext, type LocalRecord, type RecordsRepository } from '../records-repository';
 import {
-  ADDENDUM_PREFIX,
   canAddAddendum,
   canCountersign,
   canEditSections,
@@ -112,11 +111,13 @@ export class ChartingRepository {
     // The generic search splits typed words at hyphens, which breaks a date into pieces; a date
     // of birth is one term in the index, so look it up as one prefix here.
     const db = this.records.db;
-    const rows = await db.patientSearch.where('terms').startsWith(datePrefix).limit(limit).toArray();
+    const rows = await db.patientSearch
+      .where('terms')
+      .startsWith(datePrefix)
+      .limit(limit)
+      .toArray();
     const found = await Promise.all(rows.map((row) => this.records.get('patient', row.id)));
-    return found.filter(
-      (p): p is LocalRecord<'patient'> => p !== undefined && !p.deleted,
-    );
+    return found.filter((p): p is LocalRecord<'patient'> => p !== undefined && !p.deleted);
   }
 
   async patient(patientId: string): Promise<LocalRecord<'patient'> | null> {
@@ -142,7 +143,8 @@ export class ChartingRepository {
         byIdAscending,
       );
       for (const record of records) {
-        if (collection === 'plan' && parseAddendum(record as LocalRecord<'plan'>) !== null) continue;
+        if (collection === 'plan' && parseAddendum(record as LocalRecord<'plan'>) !== null)
+          continue;
         const visitId = (record.fields as { visitId: string }).visitId;
         const sections = byVisit.get(visitId) ?? {};
         // The earliest-made record is the visit's Section; a second one made elsewhere
@@ -196,7 +198,13 @@ export class ChartingRepository {
 
   /** Starts a draft visit today for a patient at the active site. */
   async startVisit(
-    input: { patientId: string; siteId: string; clinicianId: string; date: string; reason?: string },
+    input: {
+      patientId: string;
+      siteId: string;
+      clinicianId: string;
+      date: string;
+      reason?: string;
+    },
     ctx: EditContext,
   ): Promise<string> {
     return this.records.create(
@@ -258,7 +266,9 @@ export class ChartingRepository {
   ): Promise<string> {
     const visit = await this.requireVisit(visitId);
     if (!canEditSections(visit)) {
-      throw new VisitLockedError('This visit is signed; its Sections are locked. Write an Addendum.');
+      throw new VisitLockedError(
+        'This visit is signed; its Sections are locked. Write an Addendum.',
+      );
     }
     const existing = (await this.records.listByField(collection, 'visitId', visitId))
       .filter((r) => collection !== 'plan' || parseAddendum(r as LocalRecord<'plan'>) === null)
@@ -343,5 +353,3 @@ export class ChartingRepository {
     return visit;
   }
 }
-
-export { ADDENDUM_PREFIX };

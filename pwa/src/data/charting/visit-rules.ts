@@ -35,7 +35,8 @@ export function canSign(visit: Visit, user: SessionUser | null): RuleAnswer {
 
 export function canCountersign(visit: Visit, user: SessionUser | null): RuleAnswer {
   if (!user) return 'Sign in to countersign.';
-  if (visit.fields.status === 'draft') return 'The visit must be signed before it is countersigned.';
+  if (visit.fields.status === 'draft')
+    return 'The visit must be signed before it is countersigned.';
   if (visit.fields.status === 'countersigned') return 'This visit is already countersigned.';
   if (visit.fields.needsCountersign !== true) return 'This visit does not need countersigning.';
   if (user.role !== 'supervisor') return 'Only a supervisor can countersign.';

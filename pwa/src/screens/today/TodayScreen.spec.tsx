@@ -1,0 +1,183 @@
+import { screen, waitFor, within } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { afterEach, describe, expect, it } from 'vitest';
+import {
+  TEST_SITE_ID,
+  editContext,
+  freshRepositories,
+  renderScreen,
+} from '../../components/charting/test-support';
+import { localDate } from '../../data/charting';
+import TodayScreen from './TodayScreen';
+
+const opened: ReturnType<typeof freshRepositories>[] = [];
+afterEach(async () => {
+  for (const repos of opened.splice(0)) {
+    repos.db.close();
+    await repos.db.delete();
+  }
+});
+
+function setup() {
+  const repos = freshRepositories();
+  opened.push(repos);
+  return repos;
+}
+
+async function addPatient(
+  repos: ReturnType<typeof freshRepositories>,
+  fields: { givenName: string; familyName: string; dateOfBirth: string; clinicNumber: string },
+) {
+  return repos.records.create('patient', { siteId: TEST_SITE_ID, ...fields }, editContext());
+}
+
+describe('the Today screen', () => {
+  it('says plainly when nothing is booked today', async () => {
+    const repos = setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    expect(
+      await screen.findByText('No visits booked or seen today at this site yet.'),
+    ).toBeTruthy();
+  });
+
+  it('finds patients by the start of a name, a clinic number and a date of birth', async () => {
+    const repos = setup();
+    await addPatient(repos, {
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+    });
+    await addPatient(repos, {
+      givenName: 'Oswin',
+      familyName: 'Belgrave',
+      dateOfBirth: '1979-11-30',
+      clinicNumber: 'QX-9921',
+    });
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    const box = screen.getByLabelText('Name, clinic number or date of birth');
+
+    await user.type(box, 'altam');
+    const results = await screen.findByRole('list', { name: 'Search results' });
+    await waitFor(() => expect(within(results).getAllByRole('listitem')).toHaveLength(1));
+    expect(within(results).getByText('Wren Altamira')).toBeTruthy();
+
+    await user.clear(box);
+    await user.type(box, 'qx-99');
+    await waitFor(() => expect(screen.getByText('Oswin Belgrave')).toBeTruthy());
+    expect(screen.queryByText('Wren Altamira')).toBeNull();
+
+    await user.clear(box);
+    await user.type(box, '2016-04-09');
+    await waitFor(() => expect(screen.getByText('Wren Altamira')).toBeTruthy());
+    expect(screen.queryByText('Oswin Belgrave')).toBeNull();
+
+    await user.clear(box);
+    await user.type(box, 'zzz');
+    expect(await screen.findByText('No patient on this tablet matches “zzz”.')).toBeTruthy();
+  });
+
+  it('starts a draft visit for a found patient and lists it as today’s, ready to resume', async () => {
+    const repos = setup();
+    const patientId = await addPatient(repos, {
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+    });
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    await user.type(screen.getByLabelText('Name, clinic number or date of birth'), 'wren');
+    await user.click(await screen.findByRole('button', { name: 'Start visit: Wren Altamira' }));
+
+    await waitFor(() => expect(screen.getByTestId('location').textContent).toMatch(/^\/visit\//));
+    const visits = await repos.records.listByField('visit', 'patientId', patientId);
+    expect(visits).toHaveLength(1);
+    expect(visits[0]!.fields).toMatchObject({
+      status: 'draft',
+      date: localDate(),
+      siteId: TEST_SITE_ID,
+    });
+    expect((await repos.outbox.listEntries()).some((e) => e.recordId === visits[0]!.id)).toBe(true);
+  });
+
+  it('offers to resume an unfinished visit of today instead of starting a second', async () => {
+    const repos = setup();
+    const patientId = await addPatient(repos, {
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+    });
+    const visitId = await repos.records.create(
+      'visit',
+      {
+        siteId: TEST_SITE_ID,
+        patientId,
+        date: localDate(),
+        clinicianId: '0190c6a0-0000-7000-8000-00000000d001',
+        status: 'draft',
+        reason: 'Review of control',
+      },
+      editContext(),
+    );
+    renderScreen(<TodayScreen />, { repositories: repos });
+    const list = await screen.findByRole('list', { name: 'Today’s visits' });
+    const resume = within(list).getByRole('link', { name: 'Resume visit: Wren Altamira' });
+    expect(resume.getAttribute('href')).toBe(`/visit/${visitId}`);
+    expect(within(list).getByText('Draft')).toBeTruthy();
+  });
+});
+
+describe('the new patient form', () => {
+  it('names each missing or wrong field beside it and saves nothing', async () => {
+    const repos = setup();
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    await user.click(screen.getByRole('button', { name: 'New patient' }));
+    await user.click(await screen.findByRole('button', { name: 'Save patient' }));
+
+    expect(await screen.findByText('Given name cannot be empty')).toBeTruthy();
+    expect(screen.getByText('Family name cannot be empty')).toBeTruthy();
+    expect(screen.getByText('Clinic number cannot be empty')).toBeTruthy();
+    const dob = screen.getByLabelText('Date of birth');
+    expect(dob.getAttribute('aria-invalid')).toBe('true');
+    expect(await repos.records.list('patient')).toHaveLength(0);
+  });
+
+  it('refuses a date of birth in the future', async () => {
+    const repos = setup();
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    await user.click(screen.getByRole('button', { name: 'New patient' }));
+    await user.type(screen.getByLabelText('Given name'), 'Wren');
+    await user.type(screen.getByLabelText('Family name'), 'Altamira');
+    await user.type(screen.getByLabelText('Date of birth'), '2999-01-01');
+    await user.type(screen.getByLabelText('Clinic number'), 'QX-1');
+    await user.click(screen.getByRole('button', { name: 'Save patient' }));
+    expect(await screen.findByText('Date of birth cannot be in the future')).toBeTruthy();
+    expect(await repos.records.list('patient')).toHaveLength(0);
+  });
+
+  it('saves a valid patient and opens the Chart', async () => {
+    const repos = setup();
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    await user.click(screen.getByRole('button', { name: 'New patient' }));
+    await user.type(screen.getByLabelText('Given name'), 'Wren');
+    await user.type(screen.getByLabelText('Family name'), 'Altamira');
+    await user.type(screen.getByLabelText('Date of birth'), '2016-04-09');
+    await user.type(screen.getByLabelText('Clinic number'), 'QX-1');
+    await user.click(screen.getByRole('button', { name: 'Save patient' }));
+    await waitFor(() => expect(screen.getByTestId('location').textContent).toMatch(/^\/chart\//));
+    const patients = await repos.records.list('patient');
+    expect(patients.map((p) => p.fields)).toEqual([
+      expect.objectContaining({
+        givenName: 'Wren',
+        dateOfBirth: '2016-04-09',
+        siteId: TEST_SITE_ID,
+      }),
+    ]);
+  });
+});
