@@ -1,0 +1,138 @@
+// One simulated tablet: its own Dexie database on fake-indexeddb, its own controllable clock, the
+// real PWA repositories and sync engine, a faulty network to the real server, and a real SyncAuth.
+import type { CollectionName, RecordFieldsInput } from '@fuselight/shared';
+import { FuselightDb, type OutboxEntry, type StoredRecord } from '@pwa/data/db';
+import { OutboxRepository } from '@pwa/data/outbox-repository';
+import { RecordsRepository, type EditContext } from '@pwa/data/records-repository';
+import { SyncEngine, type SyncOutcome } from '@pwa/sync/sync-engine';
+import type { TestDevice, TestUser } from '@server/testing/identity-factory';
+import type { Clinic } from './clinic-server';
+import { FaultyNetwork } from './faulty-network';
+import { ServerSyncAuth } from './server-sync-auth';
+
+let tabletCount = 0;
+
+export class SimTablet {
+  readonly db: FuselightDb;
+  readonly records: RecordsRepository;
+  readonly outbox: OutboxRepository;
+  readonly network = new FaultyNetwork();
+  readonly auth: ServerSyncAuth;
+  readonly engine: SyncEngine;
+  /** Milliseconds this tablet's clock is ahead of the server's (negative: behind). */
+  skewMs = 0;
+  /** Who is using the tablet now. */
+  user: TestUser;
+
+  constructor(
+    readonly name: string,
+    private readonly clinic: Clinic,
+    readonly device: TestDevice,
+    people: TestUser[],
+    options: { schemaVersion?: number; pageLimit?: number } = {},
+  ) {
+    tabletCount += 1;
+    this.user = people[0] as TestUser;
+    this.db = new FuselightDb(`tablet-${name}-${process.pid}-${tabletCount}`);
+    this.records = new RecordsRepository(this.db);
+    this.outbox = new OutboxRepository(this.db);
+    this.auth = new ServerSyncAuth(clinic.baseUrl, device, new Map(people.map((p) => [p.id, p])));
+    this.engine = new SyncEngine({
+      db: this.db,
+      baseUrl: clinic.baseUrl,
+      auth: this.auth,
+      deviceId: device.deviceId,
+      pullAs: () => this.user.id,
+      fetch: this.network.fetch,
+      clock: { now: () => this.nowMs() },
+      random: () => 0.5,
+      network: {
+        isOnline: () => !this.network.offline,
+        subscribe: () => () => undefined,
+      },
+      yieldToUi: () => Promise.resolve(),
+      requestTimeoutMs: 30_000,
+      ...(options.schemaVersion === undefined ? {} : { schemaVersion: options.schemaVersion }),
+      ...(options.pageLimit === undefined ? {} : { pageLimit: options.pageLimit }),
+    });
+  }
+
+  static async create(
+    clinic: Clinic,
+    name: string,
+    people: TestUser[],
+    options: { schemaVersion?: number; pageLimit?: number } = {},
+  ): Promise<SimTablet> {
+    const device = await clinic.device();
+    return new SimTablet(name, clinic, device, people, options);
+  }
+
+  nowMs(): number {
+    return this.clinic.nowMs() + this.skewMs;
+  }
+
+  ctx(author: TestUser = this.user): EditContext {
+    return { authorId: author.id, deviceId: this.device.deviceId, nowMs: this.nowMs() };
+  }
+
+  create<C extends CollectionName>(collection: C, fields: RecordFieldsInput<C>, author?: TestUser) {
+    return this.records.create(collection, fields, this.ctx(author));
+  }
+
+  update<C extends CollectionName>(
+    collection: C,
+    id: string,
+    fields: Partial<RecordFieldsInput<C>>,
+    author?: TestUser,
+  ) {
+    return this.records.update(collection, id, fields, this.ctx(author));
+  }
+
+  remove(collection: CollectionName, id: string, author?: TestUser) {
+    return this.records.remove(collection, id, this.ctx(author));
+  }
+
+  sync(): Promise<SyncOutcome> {
+    return this.engine.syncOnce();
+  }
+
+  /** Syncs until the Outbox holds no pending entry and a full pull ran (bounded). */
+  async syncUntilSettled(maxRounds = 10): Promise<SyncOutcome> {
+    let outcome: SyncOutcome = { kind: 'offline' };
+    for (let round = 0; round < maxRounds; round += 1) {
+      outcome = await this.engine.syncOnce();
+      const pending = await this.db.outbox.where('state').equals('pending').count();
+      if (outcome.kind === 'synced' && pending === 0) return outcome;
+    }
+    return outcome;
+  }
+
+  get(collection: CollectionName, id: string): Promise<StoredRecord | undefined> {
+    return this.db.records.get([collection, id] as unknown as string);
+  }
+
+  entries(): Promise<OutboxEntry[]> {
+    return this.db.outbox.orderBy('seq').toArray();
+  }
+
+  /** Every record as {collection/id: {version, deleted, fields}} for convergence checks. */
+  async snapshot(): Promise<
+    Record<string, { version: number; deleted: boolean; fields: Record<string, unknown> }>
+  > {
+    const all = await this.db.records.toArray();
+    return Object.fromEntries(
+      all
+        .sort((a, b) => `${a.collection}/${a.id}`.localeCompare(`${b.collection}/${b.id}`))
+        .map((r) => [
+          `${r.collection}/${r.id}`,
+          { version: r.version, deleted: r.deleted, fields: r.fields },
+        ]),
+    );
+  }
+
+  async close(): Promise<void> {
+    this.engine.stop();
+    this.db.close();
+    await this.db.delete();
+  }
+}

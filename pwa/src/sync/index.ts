@@ -1,0 +1,22 @@
+// The tablet's sync engine and its state for screens.
+export type { SyncAuth } from './sync-auth';
+export {
+  SyncEngine,
+  type NetworkMonitor,
+  type SyncClock,
+  type SyncEngineOptions,
+  type SyncOutcome,
+  type SyncTimers,
+  type SyncTimings,
+} from './sync-engine';
+export { SyncStatusStore, type SyncPhase, type SyncProgress, type SyncStatus } from './sync-status';
+export { backoffDelay, DEFAULT_BACKOFF, type BackoffPolicy } from './backoff';
+export {
+  configureSync,
+  getSyncEngine,
+  requestSyncNow,
+  stopSync,
+  subscribeSyncEngine,
+  type AppSyncOptions,
+} from './sync-runtime';
+export { useSyncStatus } from './useSyncStatus';

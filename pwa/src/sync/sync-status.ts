@@ -1,0 +1,73 @@
+// What the person sees of sync: online or not, when the tablet last synced, what is waiting in
+// the Outbox, the progress of a long pull, and any problem in words. One small store per engine,
+// read by React through useSyncExternalStore.
+export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
+
+export interface SyncProgress {
+  step: 'push' | 'pull';
+  /** Changes sent, or records received so far. */
+  done: number;
+  /** Known for a push; unknown (null) for a pull, which only learns its end from `more`. */
+  total: number | null;
+}
+
+export interface SyncStatus {
+  /** False until the app has configured an engine (identity and enrolment are in place). */
+  configured: boolean;
+  online: boolean;
+  phase: SyncPhase;
+  lastSyncedAt: number | null;
+  outboxCount: number;
+  pendingCount: number;
+  rejectedCount: number;
+  progress: SyncProgress | null;
+  /** The last problem, in words a person can act on; null when the last sync went through. */
+  error: string | null;
+  /** People whose session ended: their edits wait until they sign in again. */
+  needsSignIn: string[];
+  nextAttemptAt: number | null;
+  consecutiveFailures: number;
+}
+
+export const INITIAL_SYNC_STATUS: SyncStatus = {
+  configured: false,
+  online: true,
+  phase: 'idle',
+  lastSyncedAt: null,
+  outboxCount: 0,
+  pendingCount: 0,
+  rejectedCount: 0,
+  progress: null,
+  error: null,
+  needsSignIn: [],
+  nextAttemptAt: null,
+  consecutiveFailures: 0,
+};
+
+export class SyncStatusStore {
+  private status: SyncStatus;
+  private readonly listeners = new Set<() => void>();
+
+  constructor(initial: Partial<SyncStatus> = {}) {
+    this.status = { ...INITIAL_SYNC_STATUS, ...initial };
+  }
+
+  getSnapshot = (): SyncStatus => this.status;
+
+  subscribe = (listener: () => void): (() => void) => {
+    this.listeners.add(listener);
+    return () => {
+      this.listeners.delete(listener);
+    };
+  };
+
+  update(patch: Partial<SyncStatus>): void {
+    const next = { ...this.status, ...patch };
+    const changed = (Object.keys(patch) as (keyof SyncStatus)[]).some(
+      (key) => next[key] !== this.status[key],
+    );
+    if (!changed) return;
+    this.status = next;
+    for (const listener of [...this.listeners]) listener();
+  }
+}
