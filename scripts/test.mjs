@@ -158,16 +158,14 @@ async function main() {
     }
   }
 
-  const total = reports
-    .map(tally)
-    .reduce(
-      (a, b) => ({
-        passed: a.passed + b.passed,
-        failed: a.failed + b.failed,
-        skipped: a.skipped + b.skipped,
-      }),
-      { passed: 0, failed: 0, skipped: 0 },
-    );
+  const total = reports.map(tally).reduce(
+    (a, b) => ({
+      passed: a.passed + b.passed,
+      failed: a.failed + b.failed,
+      skipped: a.skipped + b.skipped,
+    }),
+    { passed: 0, failed: 0, skipped: 0 },
+  );
   if (failures.length && total.failed === 0) total.failed = failures.length;
   console.log(
     failures.length ? `\nFailed suites: ${failures.join(', ')}` : '\nEvery suite passed.',

@@ -8,13 +8,18 @@ async function bootstrap(): Promise<void> {
   const app = await createApp(config);
   app.enableShutdownHooks();
   if (config.jwtSecretIsDefault) {
-    Logger.warn('JWT_SECRET is not set: using the development default. Never do this in production.', 'Config');
+    Logger.warn(
+      'JWT_SECRET is not set: using the development default. Never do this in production.',
+      'Config',
+    );
   }
   await app.listen(config.port, config.host);
   Logger.log(`Fuselight server listening on http://${config.host}:${config.port}`, 'Bootstrap');
 }
 
 bootstrap().catch((error: unknown) => {
-  console.error(`Fuselight server failed to start: ${error instanceof Error ? error.message : String(error)}`);
+  console.error(
+    `Fuselight server failed to start: ${error instanceof Error ? error.message : String(error)}`,
+  );
   process.exit(1);
 });

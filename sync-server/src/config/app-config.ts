@@ -53,7 +53,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     env.NODE_ENV === 'production' ? 'production' : env.NODE_ENV === 'test' ? 'test' : 'development';
   const jwtSecret = env.JWT_SECRET ?? '';
   if (nodeEnv === 'production' && jwtSecret.length < 32) {
-    throw new Error('Configuration: JWT_SECRET must be set to at least 32 characters in production');
+    throw new Error(
+      'Configuration: JWT_SECRET must be set to at least 32 characters in production',
+    );
   }
   const port = int(env, 'PORT', 3000);
   return {
