@@ -1,8 +1,11 @@
 // Operator commands used by scripts/start.mjs: `migrate` applies committed migrations,
 // `seed` loads the invented demo scenario (refused in production) and prints its sign-ins.
 import 'reflect-metadata';
+import { writeFileSync } from 'node:fs';
 import { NestFactory } from '@nestjs/core';
+import { buildOpenApiDocument, createApp } from './app.factory';
 import { AppModule } from './app.module';
+import { stableJson } from './openapi/stable-json';
 import { loadConfig } from './config/app-config';
 import { migrateDatabase } from './database/migrate';
 import { SeedService } from './seed/seed.service';
@@ -32,8 +35,20 @@ async function main(command: string | undefined): Promise<void> {
       }
       return;
     }
+    case 'openapi': {
+      // Regenerates the committed OpenAPI document (reviewed as code; a test keeps it current).
+      const app = await createApp(config, { logger: false });
+      try {
+        const target = process.argv[3] ?? 'openapi.json';
+        writeFileSync(target, `${stableJson(buildOpenApiDocument(app))}\n`);
+        console.log(`Wrote ${target}`);
+      } finally {
+        await app.close();
+      }
+      return;
+    }
     default:
-      throw new Error(`Unknown command "${command ?? ''}"; use "migrate" or "seed".`);
+      throw new Error(`Unknown command "${command ?? ''}"; use "migrate", "seed" or "openapi".`);
   }
 }
 
