@@ -15,6 +15,9 @@ import { DevicesModule } from './devices/devices.module';
 import { HealthModule } from './health/health.module';
 import { SeedModule } from './seed/seed.module';
 import { SitesModule } from './sites/sites.module';
+import { ConflictsModule } from './conflicts/conflicts.module';
+import { RecordsModule } from './records/records.module';
+import { SyncModule } from './sync/sync.module';
 import { UsersModule } from './users/users.module';
 
 @Module({})
@@ -35,6 +38,9 @@ export class AppModule {
         UsersModule,
         DevicesModule,
         AdminModule,
+        RecordsModule,
+        SyncModule,
+        ConflictsModule,
       ],
       providers: [
         { provide: APP_GUARD, useClass: JwtAuthGuard },

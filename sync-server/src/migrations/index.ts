@@ -3,8 +3,10 @@
 import type { MigrationObject } from '@mikro-orm/core';
 import { Migration20261201000000Sites } from './Migration20261201000000Sites';
 import { Migration20261201010000Identity } from './Migration20261201010000Identity';
+import { Migration20261201020000SyncRecords } from './Migration20261201020000SyncRecords';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
   { name: 'Migration20261201010000Identity', class: Migration20261201010000Identity },
+  { name: 'Migration20261201020000SyncRecords', class: Migration20261201020000SyncRecords },
 ];

@@ -1,0 +1,63 @@
+// The server's row of a synced record, as the sync and conflicts modules read and write it.
+import type { CollectionName, FieldWriteStamp, JsonValue } from '@fuselight/shared';
+
+/** A field stamp as stored: the wire stamp plus when the server accepted the write. */
+export interface StoredStamp extends FieldWriteStamp {
+  /** ISO time the server accepted the write. */
+  at: string;
+}
+
+export interface StoredRecord {
+  id: string;
+  collection: CollectionName;
+  siteId: string;
+  version: number;
+  deleted: boolean;
+  fields: Record<string, JsonValue>;
+  /** One per field, and `deleted` once the record was deleted or restored. */
+  stamps: Record<string, StoredStamp>;
+  createdAt: string;
+}
+
+/** A conflict candidate as stored (the wire candidate plus its time). */
+export interface StoredCandidate {
+  value: JsonValue;
+  hlc: string;
+  by: string;
+  device: string;
+  version: number;
+  at: string;
+}
+
+export interface StoredRecordRow {
+  id: string;
+  collection: CollectionName;
+  site_id: string;
+  version: string | number;
+  deleted: boolean;
+  fields: Record<string, JsonValue>;
+  stamps: Record<string, StoredStamp>;
+  created_at: Date | string;
+}
+
+export function recordFromRow(row: StoredRecordRow): StoredRecord {
+  return {
+    id: row.id,
+    collection: row.collection,
+    siteId: row.site_id,
+    version: Number(row.version),
+    deleted: row.deleted,
+    fields: row.fields,
+    stamps: row.stamps,
+    createdAt: new Date(row.created_at).toISOString(),
+  };
+}
+
+/** Stamps as the wire shows them (without the stored time). */
+export function wireStamps(stamps: Record<string, StoredStamp>): Record<string, FieldWriteStamp> {
+  const out: Record<string, FieldWriteStamp> = {};
+  for (const [field, { hlc, version, by, device }] of Object.entries(stamps)) {
+    out[field] = { hlc, version, by, device };
+  }
+  return out;
+}

@@ -1,0 +1,384 @@
+// Push and pull of sync protocol 1 (sync-protocol.md).
+//
+// Push: one transaction per request. Change ids are claimed first (idempotency), the records are
+// locked with SELECT … FOR UPDATE, every change is planned in request order by the shared merge
+// rule, and the plans are written in a few batched statements inside a savepoint. If PostgreSQL
+// refuses a value (a data error), the batch is rolled back to that savepoint and the changes are
+// written again one by one, each in its own savepoint, so only the offending change is rejected.
+// Pull: one REPEATABLE READ read-only snapshot, bounded by the transaction-id watermark
+// (records/record-version.ts).
+import { EntityManager } from '@mikro-orm/postgresql';
+import { IsolationLevel } from '@mikro-orm/core';
+import {
+  HttpException,
+  HttpStatus,
+  Inject,
+  Injectable,
+  Logger,
+  Optional,
+  PayloadTooLargeException,
+} from '@nestjs/common';
+import {
+  MAX_CHANGES_PER_PUSH,
+  SCHEMA_VERSION,
+  pullQuerySchema,
+  pushRequestShapeSchema,
+  type JsonValue,
+  type PullResponse,
+  type PulledRecord,
+  type PushResponse,
+  type PushResult,
+} from '@fuselight/shared';
+import { AuditService } from '../audit/audit.service';
+import type { AuthUser } from '../auth/auth-user';
+import { canReadClinical, sitesOf } from '../auth/scope';
+import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
+import { parseWith } from '../common/zod-validation.pipe';
+import {
+  appendCandidates,
+  insertConflicts,
+  lockRecords,
+  openConflictsOf,
+  upsertRecords,
+} from '../records/record-store';
+import {
+  BEGIN_VERSIONED_WRITE_SQL,
+  SAFE_VERSION_BOUND_SQL,
+  VersionAllocator,
+} from '../records/record-version';
+import { jsonParam, sqlRows } from '../records/sql';
+import { recordFromRow, wireStamps, type StoredRecordRow } from '../records/stored-record';
+import { claimChangeIds, firstResults, storeResults, type ChangeLogEntry } from './change-log';
+import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
+
+/** Time spent in each step of the last push, for the benchmark's breakdown. */
+export interface PushTimings {
+  claimMs: number;
+  lockMs: number;
+  planMs: number;
+  writeMs: number;
+  auditMs: number;
+  logMs: number;
+  commitMs: number;
+}
+
+@Injectable()
+export class SyncService {
+  private readonly logger = new Logger('Sync');
+  /** Cumulative step timings (read by the benchmark). */
+  readonly timings: PushTimings = {
+    claimMs: 0,
+    lockMs: 0,
+    planMs: 0,
+    writeMs: 0,
+    auditMs: 0,
+    logMs: 0,
+    commitMs: 0,
+  };
+
+  constructor(
+    @Inject(EntityManager) private readonly em: EntityManager,
+    @Inject(CLOCK) private readonly clock: Clock,
+    @Inject(IDS) private readonly ids: IdGenerator,
+    @Optional() @Inject(AuditService) private readonly audit: AuditService | null,
+  ) {}
+
+  async push(user: AuthUser, body: unknown): Promise<PushResponse> {
+    const changes = parsePushEnvelope(body);
+    const now = this.clock.now();
+    let committing = 0;
+    const results = await this.em.fork().transactional(async (em) => {
+      const out = await this.pushInTransaction(em, user, changes, now);
+      committing = performance.now();
+      return out;
+    });
+    this.timings.commitMs += performance.now() - committing;
+    return { results, serverTime: now.toISOString() };
+  }
+
+  private async pushInTransaction(
+    em: EntityManager,
+    user: AuthUser,
+    changes: readonly Record<string, unknown>[],
+    now: Date,
+  ): Promise<PushResult[]> {
+    const t = this.timings;
+    let mark = performance.now();
+    const lap = (key: keyof PushTimings) => {
+      const at = performance.now();
+      t[key] += at - mark;
+      mark = at;
+    };
+
+    const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
+    const baseVersion = VersionAllocator.fromRow(begin).base;
+    const changeIds = [...new Set(changes.map((c) => c.changeId as string))];
+    const claimed = await claimChangeIds(
+      em,
+      changeIds,
+      { userId: user.userId, deviceId: user.deviceId },
+      now,
+    );
+    const earlier = await firstResults(
+      em,
+      changeIds.filter((id) => !claimed.has(id)),
+    );
+    lap('claimMs');
+
+    // The first occurrence of each newly claimed id is planned; everything else is a replay.
+    const toPlan: { index: number; raw: Record<string, unknown> }[] = [];
+    const planned = new Set<string>();
+    changes.forEach((raw, index) => {
+      const id = raw.changeId as string;
+      if (claimed.has(id) && !planned.has(id)) {
+        planned.add(id);
+        toPlan.push({ index, raw });
+      }
+    });
+    const recordIds = PushPlanner.recordIdsOf(toPlan.map((c) => c.raw));
+    const records = await lockRecords(em, recordIds);
+    const open = await openConflictsOf(em, [...records.keys()]);
+    lap('lockMs');
+
+    const makePlanner = () =>
+      new PushPlanner(user, now, new VersionAllocator(baseVersion), this.ids, records, open);
+    const answered = new Map<string, ChangeLogEntry>();
+    const plans = planAll(makePlanner(), toPlan, answered);
+    lap('planMs');
+
+    await sqlRows(em, 'savepoint "push_batch"');
+    try {
+      await this.writePlans(em, plans, now, user);
+      await sqlRows(em, 'release savepoint "push_batch"');
+    } catch (error) {
+      if (!isDataError(error)) throw error;
+      this.logger.warn(
+        `push batch refused by the database (${describeDataError(error)}); writing change by change`,
+      );
+      await sqlRows(em, 'rollback to savepoint "push_batch"');
+      answered.clear();
+      await this.writeOneByOne(em, makePlanner(), toPlan, answered, now, user);
+    }
+    lap('writeMs');
+
+    await storeResults(em, [...answered.values()]);
+    lap('logMs');
+
+    const seen = new Set<string>();
+    return changes.map((raw): PushResult => {
+      const id = raw.changeId as string;
+      const first = earlier.get(id);
+      if (first) return { ...first, replayed: true };
+      const fresh = answered.get(id);
+      if (!fresh) throw new Error(`change ${id} has no result`);
+      // A later duplicate in the same request is a replay of the first occurrence.
+      if (seen.has(id)) return { ...fresh.result, replayed: true };
+      seen.add(id);
+      return fresh.result;
+    });
+  }
+
+  private async writePlans(
+    em: EntityManager,
+    plans: readonly ChangePlan[],
+    now: Date,
+    user: AuthUser,
+  ): Promise<void> {
+    const batch = collapsePlans(plans);
+    await upsertRecords(em, batch.records, now);
+    await insertConflicts(em, batch.newConflicts, now);
+    await appendCandidates(em, batch.joined);
+    const started = performance.now();
+    if (this.audit) {
+      for (const plan of plans) {
+        await this.audit.record(em, {
+          kind: plan.audit.kind,
+          actorId: user.userId,
+          deviceId: user.deviceId,
+          siteId: plan.audit.siteId,
+          subjectType: plan.record.collection,
+          subjectId: plan.record.id,
+          detail: plan.audit.detail,
+        });
+      }
+    }
+    this.timings.auditMs += performance.now() - started;
+    this.timings.writeMs -= performance.now() - started;
+  }
+
+  /** The slow path: each change in its own savepoint; a value the database refuses rejects only it. */
+  private async writeOneByOne(
+    em: EntityManager,
+    planner: PushPlanner,
+    toPlan: readonly { index: number; raw: Record<string, unknown> }[],
+    answered: Map<string, ChangeLogEntry>,
+    now: Date,
+    user: AuthUser,
+  ): Promise<void> {
+    for (const { index, raw } of toPlan) {
+      const outcome = planner.plan(raw, index);
+      const changeId = raw.changeId as string;
+      if (outcome.kind === 'rejected') {
+        answered.set(changeId, {
+          result: { changeId, status: 'rejected', error: outcome.error },
+          recordId: recordIdOf(raw),
+        });
+        continue;
+      }
+      await sqlRows(em, 'savepoint "push_change"');
+      try {
+        await this.writePlans(em, [outcome.plan], now, user);
+        await sqlRows(em, 'release savepoint "push_change"');
+        planner.commit(outcome.plan);
+        answered.set(changeId, { result: outcome.plan.result, recordId: outcome.plan.record.id });
+      } catch (error) {
+        if (!isDataError(error)) throw error;
+        await sqlRows(em, 'rollback to savepoint "push_change"');
+        answered.set(changeId, {
+          result: {
+            changeId,
+            status: 'rejected',
+            error: `changes.${index}: the server could not store this change (${describeDataError(error)}); correct the value and edit again.`,
+          },
+          recordId: recordIdOf(raw),
+        });
+      }
+    }
+  }
+
+  async pull(user: AuthUser, query: unknown): Promise<PullResponse> {
+    const { after, limit } = parseWith(pullQuerySchema, query, 'query');
+    if (!canReadClinical(user)) return { records: [], cursor: after, more: false };
+    const sites = sitesOf(user);
+    return this.em.fork().transactional(
+      async (em): Promise<PullResponse> => {
+        // The first statement fixes the snapshot; the bound and the rows come from the same one.
+        const [head] = await sqlRows<{ bound: string; horizon: string }>(
+          em,
+          `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon"`,
+        );
+        const bound = Number(head?.bound ?? 0);
+        const horizon = Number(head?.horizon ?? 0);
+        if (after > 0 && after < horizon) return { reset: true };
+        const rows = await sqlRows<StoredRecordRow>(
+          em,
+          `select "id", "collection", "site_id", "version"::text as "version", "deleted", "fields", "stamps", "created_at"
+             from "sync_record"
+            where "version" > ? and "version" < ?
+              and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
+            order by "version" limit ?`,
+          [after, bound, jsonParam(sites), limit + 1],
+        );
+        // A committed change beyond the watermark (an older transaction is still open) is not
+        // sent yet, but `more` tells the device to come back for it rather than think it is done.
+        const more =
+          rows.length > limit ||
+          (
+            await sqlRows<{ held: boolean }>(
+              em,
+              `select exists (select 1 from "sync_record" where "version" >= ? and "version" > ?
+                 and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)) as "held"`,
+              [bound, after, jsonParam(sites)],
+            )
+          )[0]?.held === true;
+        const page = rows.slice(0, limit).map(recordFromRow);
+        const conflicts = await openConflictsOf(
+          em,
+          page.map((r) => r.id),
+        );
+        const openByRecord = new Map<string, string[]>();
+        for (const c of conflicts)
+          openByRecord.set(c.record_id, [...(openByRecord.get(c.record_id) ?? []), c.field]);
+        const records: PulledRecord[] = page.map((r) => ({
+          collection: r.collection,
+          id: r.id,
+          version: r.version,
+          deleted: r.deleted,
+          fields: r.fields as Record<string, JsonValue>,
+          stamps: wireStamps(r.stamps),
+          conflicts: (openByRecord.get(r.id) ?? []).sort(),
+        }));
+        const last = page.at(-1);
+        return { records, cursor: last ? last.version : after, more };
+      },
+      { isolationLevel: IsolationLevel.REPEATABLE_READ, readOnly: true },
+    );
+  }
+}
+
+function planAll(
+  planner: PushPlanner,
+  toPlan: readonly { index: number; raw: Record<string, unknown> }[],
+  answered: Map<string, ChangeLogEntry>,
+): ChangePlan[] {
+  const plans: ChangePlan[] = [];
+  for (const { index, raw } of toPlan) {
+    const changeId = raw.changeId as string;
+    const outcome = planner.plan(raw, index);
+    if (outcome.kind === 'rejected') {
+      answered.set(changeId, {
+        result: { changeId, status: 'rejected', error: outcome.error },
+        recordId: recordIdOf(raw),
+      });
+      continue;
+    }
+    planner.commit(outcome.plan);
+    plans.push(outcome.plan);
+    answered.set(changeId, { result: outcome.plan.result, recordId: outcome.plan.record.id });
+  }
+  return plans;
+}
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+function recordIdOf(raw: Record<string, unknown>): string | null {
+  return typeof raw.recordId === 'string' && UUID.test(raw.recordId) ? raw.recordId : null;
+}
+
+/** SQLSTATE class 22 (data exception): the database refused a value, not the request. */
+function isDataError(error: unknown): boolean {
+  const code = (error as { code?: unknown } | null)?.code;
+  return typeof code === 'string' && code.startsWith('22');
+}
+
+function describeDataError(error: unknown): string {
+  const code = (error as { code?: string }).code;
+  if (code === '22P05' || code === '22021')
+    return 'a text value holds a character the database cannot store, such as a NUL character';
+  return `a value the database refused (SQLSTATE ${code ?? 'unknown'})`;
+}
+
+const UPGRADE_REQUIRED = 426;
+
+/** 413, 400, 426 and 409 of the push envelope; returns the changes, each with a usable changeId. */
+export function parsePushEnvelope(
+  body: unknown,
+  serverSchemaVersion: number = SCHEMA_VERSION,
+): Record<string, unknown>[] {
+  const changes = (body as { changes?: unknown } | null)?.changes;
+  if (Array.isArray(changes) && changes.length > MAX_CHANGES_PER_PUSH) {
+    throw new PayloadTooLargeException(
+      `body.changes: ${changes.length} changes; a push carries at most ${MAX_CHANGES_PER_PUSH}, send the rest in another push.`,
+    );
+  }
+  const request = parseWith(pushRequestShapeSchema, body, 'body');
+  if (request.schemaVersion < serverSchemaVersion - 1) {
+    throw new HttpException(
+      {
+        message: `This app runs record schema version ${request.schemaVersion}, which the server no longer accepts (it accepts ${serverSchemaVersion - 1} and ${serverSchemaVersion}). Update the app; your unsent changes stay on this tablet.`,
+        schemaVersion: serverSchemaVersion,
+      },
+      UPGRADE_REQUIRED,
+    );
+  }
+  if (request.schemaVersion > serverSchemaVersion) {
+    throw new HttpException(
+      {
+        message: `This app runs record schema version ${request.schemaVersion}, newer than the server's ${serverSchemaVersion}. The server must be updated first; your unsent changes stay on this tablet.`,
+        schemaVersion: serverSchemaVersion,
+      },
+      HttpStatus.CONFLICT,
+    );
+  }
+  return request.changes as Record<string, unknown>[];
+}

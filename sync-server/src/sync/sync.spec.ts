@@ -1,0 +1,549 @@
+import request from 'supertest';
+import pg from 'pg';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import {
+  SCHEMA_VERSION,
+  formatStamp,
+  isPullReset,
+  type PullPage,
+  type PushResult,
+} from '@fuselight/shared';
+import type { TestApp } from '../testing/test-app';
+import { HorizonService } from './horizon.service';
+import { parsePushEnvelope } from './sync.service';
+import {
+  SITE_A,
+  SITE_B,
+  createSyncTestApp,
+  newId,
+  patientFields,
+  signInAs,
+  Tablet,
+  tabletFor,
+} from './testing/sync-test-kit';
+
+let t: TestApp;
+let tabA: Tablet;
+let tabB: Tablet;
+
+beforeAll(async () => {
+  t = await createSyncTestApp();
+  tabA = await tabletFor(t, 'orthoptist', [SITE_A]);
+  tabB = await tabletFor(t, 'orthoptist', [SITE_A]);
+});
+afterAll(async () => {
+  await t.close();
+});
+
+async function createPatient(tablet: Tablet, overrides: Record<string, unknown> = {}) {
+  const recordId = newId();
+  const [result] = (
+    await tablet.pushOk([
+      tablet.change({ recordId, fields: patientFields(SITE_A, overrides as never) }),
+    ])
+  ).results;
+  if (result?.status !== 'applied') throw new Error(`create answered ${JSON.stringify(result)}`);
+  return { recordId, version: result.version };
+}
+
+async function recordRow(recordId: string) {
+  const rows = await t
+    .em()
+    .getConnection()
+    .execute(`select * from "sync_record" where "id" = ?`, [recordId]);
+  return rows[0] as
+    { version: string; fields: Record<string, unknown>; deleted: boolean } | undefined;
+}
+
+async function pullFrom(
+  tablet: Tablet,
+  after = 0,
+): Promise<{ records: PullPage['records']; cursor: number }> {
+  const records: PullPage['records'] = [];
+  let cursor = after;
+  for (;;) {
+    const page = await tablet.pullOk(cursor);
+    if (isPullReset(page)) throw new Error('unexpected reset');
+    records.push(...page.records);
+    cursor = page.cursor;
+    if (!page.more) return { records, cursor };
+  }
+}
+
+async function pullAll(tablet: Tablet, after = 0): Promise<PullPage['records']> {
+  return (await pullFrom(tablet, after)).records;
+}
+
+describe('POST /api/sync/push: statuses', () => {
+  it('applies a new patient and answers applied with its version and no conflicts', async () => {
+    const recordId = newId();
+    const change = tabA.change({ recordId, fields: patientFields(SITE_A) });
+    const body = await tabA.pushOk([change]);
+    expect(body.results).toEqual([
+      { changeId: change.changeId, status: 'applied', version: expect.any(Number), conflicts: [] },
+    ]);
+    expect(body.serverTime).toBe('2026-12-01T09:00:00.000Z');
+    const row = await recordRow(recordId);
+    expect(Number(row?.version)).toBe((body.results[0] as { version: number }).version);
+    expect(row?.fields).toMatchObject({ familyName: 'Okafor', clinicNumber: 'FL-0001' });
+  });
+
+  it('answers merged when another tablet changed another field meanwhile, and keeps both edits', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    await tabA.pushOk([
+      tabA.change({ recordId, baseVersion: version, fields: { notes: 'wears glasses' } }),
+    ]);
+    const [result] = (
+      await tabB.pushOk([
+        tabB.change({ recordId, baseVersion: version, fields: { familyName: 'Oka' } }),
+      ])
+    ).results;
+    expect(result?.status).toBe('merged');
+    expect((await recordRow(recordId))?.fields).toMatchObject({
+      notes: 'wears glasses',
+      familyName: 'Oka',
+    });
+  });
+
+  it('answers merged with nothing to resolve when two tablets set a field to the same value', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    await tabA.pushOk([tabA.change({ recordId, baseVersion: version, fields: { notes: 'same' } })]);
+    const [result] = (
+      await tabB.pushOk([
+        tabB.change({ recordId, baseVersion: version, fields: { notes: 'same' } }),
+      ])
+    ).results;
+    expect(result).toMatchObject({ status: 'merged', conflicts: [] });
+  });
+
+  it('answers conflict for a concurrent different value, opens a conflict with both candidates and applies the rest', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    await tabA.pushOk([
+      tabA.change({ recordId, baseVersion: version, fields: { dateOfBirth: '2016-04-19' } }),
+    ]);
+    t.clock.advance(1000);
+    const [result] = (
+      await tabB.pushOk([
+        tabB.change({
+          recordId,
+          baseVersion: version,
+          fields: { dateOfBirth: '2016-04-29', notes: 'seen twice' },
+        }),
+      ])
+    ).results;
+    expect(result).toMatchObject({ status: 'conflict', conflicts: ['dateOfBirth'] });
+    const conflicts = await t
+      .em()
+      .getConnection()
+      .execute(
+        `select "field", "status", "candidates" from "sync_conflict" where "record_id" = ?`,
+        [recordId],
+      );
+    expect(conflicts).toHaveLength(1);
+    expect(conflicts[0]).toMatchObject({ field: 'dateOfBirth', status: 'open' });
+    const candidates = (conflicts[0] as { candidates: { value: string; device: string }[] })
+      .candidates;
+    expect(candidates.map((c) => [c.value, c.device])).toEqual([
+      ['2016-04-19', tabA.caller.deviceId],
+      ['2016-04-29', tabB.caller.deviceId],
+    ]);
+    // tabB's stamp is later, so its value is provisional; the other field was applied.
+    expect((await recordRow(recordId))?.fields).toMatchObject({
+      dateOfBirth: '2016-04-29',
+      notes: 'seen twice',
+    });
+  });
+
+  it('makes a delete racing another tablet’s edit a conflict on deleted', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    await tabA.pushOk([
+      tabA.change({ recordId, baseVersion: version, fields: { notes: 'keep me' } }),
+    ]);
+    t.clock.advance(1000);
+    const [result] = (
+      await tabB.pushOk([
+        tabB.change({ recordId, baseVersion: version, fields: {}, deleted: true }),
+      ])
+    ).results;
+    expect(result).toMatchObject({ status: 'conflict', conflicts: ['deleted'] });
+    expect((await recordRow(recordId))?.deleted).toBe(true);
+  });
+
+  it('joins a further edit of a field with an open conflict to that conflict as a candidate', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    await tabA.pushOk([
+      tabA.change({ recordId, baseVersion: version, fields: { clinicNumber: 'X-1' } }),
+    ]);
+    await tabB.pushOk([
+      tabB.change({ recordId, baseVersion: version, fields: { clinicNumber: 'X-2' } }),
+    ]);
+    const current = Number((await recordRow(recordId))?.version);
+    const [result] = (
+      await tabA.pushOk([
+        tabA.change({ recordId, baseVersion: current, fields: { clinicNumber: 'X-3' } }),
+      ])
+    ).results;
+    expect(result).toMatchObject({ status: 'conflict', conflicts: ['clinicNumber'] });
+    const [conflict] = await t
+      .em()
+      .getConnection()
+      .execute(`select "candidates" from "sync_conflict" where "record_id" = ?`, [recordId]);
+    expect(
+      (conflict as { candidates: { value: string }[] }).candidates.map((c) => c.value),
+    ).toEqual(['X-1', 'X-2', 'X-3']);
+    expect((await recordRow(recordId))?.fields.clinicNumber).toBe('X-3');
+  });
+});
+
+describe('POST /api/sync/push: rejected changes', () => {
+  it('rejects an unknown field, a bad value, a broken clock and a malformed stamp, and applies the good change', async () => {
+    const good = tabA.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    const unknownField = tabA.change({
+      recordId: newId(),
+      fields: patientFields(SITE_A, { shoeSize: 9 }),
+    });
+    const badValue = tabA.change({
+      recordId: newId(),
+      fields: patientFields(SITE_A, { dateOfBirth: '2016-02-31' }),
+    });
+    const dayAhead = formatStamp({
+      wallMs: t.clock.now().getTime() + 24 * 3600_000 + 1,
+      counter: 0,
+      deviceId: 'x',
+    });
+    const brokenClock = tabA.change({
+      recordId: newId(),
+      fields: patientFields(SITE_A),
+      hlc: dayAhead,
+    });
+    const badStamp = tabA.change({
+      recordId: newId(),
+      fields: patientFields(SITE_A),
+      hlc: 'yesterday',
+    });
+    const body = await tabA.pushOk([unknownField, badValue, good, brokenClock, badStamp]);
+    const [r0, r1, r2, r3, r4] = body.results as [
+      PushResult,
+      PushResult,
+      PushResult,
+      PushResult,
+      PushResult,
+    ];
+    expect(r0).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('unknown field shoeSize'),
+    });
+    expect(r1).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('fields.dateOfBirth'),
+    });
+    expect(r2).toMatchObject({ status: 'applied' });
+    expect(r3).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('24 hours ahead'),
+    });
+    expect(r4).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('changes.4.hlc'),
+    });
+    expect(await recordRow(good.recordId as string)).toBeDefined();
+    for (const change of [unknownField, badValue, brokenClock, badStamp]) {
+      expect(await recordRow(change.recordId as string)).toBeUndefined();
+    }
+  });
+
+  it('rejects a new record at a site outside the user’s sites, and a move of a record to such a site', async () => {
+    const foreign = tabA.change({ recordId: newId(), fields: patientFields(SITE_B) });
+    const { recordId, version } = await createPatient(tabA);
+    const move = tabA.change({ recordId, baseVersion: version, fields: { siteId: SITE_B } });
+    const [r0, r1] = (await tabA.pushOk([foreign, move])).results;
+    expect(r0).toMatchObject({ status: 'rejected', error: expect.stringContaining(SITE_B) });
+    expect(r1).toMatchObject({ status: 'rejected', error: expect.stringContaining(SITE_B) });
+    expect(await recordRow(foreign.recordId as string)).toBeUndefined();
+    expect((await recordRow(recordId))?.fields.siteId).toBe(SITE_A);
+  });
+
+  it('rejects an edit of an existing record stored at another site, whatever the change claims', async () => {
+    const siteB = await tabletFor(t, 'orthoptist', [SITE_B]);
+    const { recordId } = await (async () => {
+      const id = newId();
+      await siteB.pushOk([siteB.change({ recordId: id, fields: patientFields(SITE_B) })]);
+      return { recordId: id };
+    })();
+    const [result] = (
+      await tabA.pushOk([
+        tabA.change({ recordId, baseVersion: 0, fields: { siteId: SITE_A, notes: 'x' } }),
+      ])
+    ).results;
+    expect(result).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining(`belongs to site ${SITE_B}`),
+    });
+    expect((await recordRow(recordId))?.fields.notes).toBeUndefined();
+  });
+
+  it('rejects every change an admin pushes', async () => {
+    const admin = await tabletFor(t, 'admin', [SITE_A]);
+    const change = admin.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    const [result] = (await admin.pushOk([change])).results;
+    expect(result).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('admin role'),
+    });
+    expect(await recordRow(change.recordId as string)).toBeUndefined();
+  });
+
+  it('rejects only the change whose value the database cannot store (a NUL character)', async () => {
+    const nul = tabA.change({
+      recordId: newId(),
+      fields: patientFields(SITE_A, { notes: 'bad \u0000 byte' }),
+    });
+    const good = tabA.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    const [r0, r1] = (await tabA.pushOk([nul, good])).results;
+    expect(r0).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('NUL character'),
+    });
+    expect(r1).toMatchObject({ status: 'applied' });
+    expect(await recordRow(good.recordId as string)).toBeDefined();
+    expect(await recordRow(nul.recordId as string)).toBeUndefined();
+  });
+});
+
+describe('POST /api/sync/push: replays', () => {
+  it('returns the first result with replayed: true and writes nothing when a changeId is sent again', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    const edit = tabA.change({ recordId, baseVersion: version, fields: { notes: 'first' } });
+    const [first] = (await tabA.pushOk([edit])).results;
+    const before = await recordRow(recordId);
+    const [again] = (await tabA.pushOk([edit])).results;
+    expect(again).toEqual({ ...first, replayed: true });
+    expect(await recordRow(recordId)).toEqual(before);
+  });
+
+  it('replays a changeId repeated within one request and applies it once', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    const edit = tabA.change({ recordId, baseVersion: version, fields: { notes: 'once' } });
+    const [r0, r1] = (await tabA.pushOk([edit, edit])).results;
+    expect(r0).toMatchObject({ status: 'applied' });
+    expect(r1).toEqual({ ...r0, replayed: true });
+    const [{ n }] = (await t
+      .em()
+      .getConnection()
+      .execute(`select count(*)::int as n from "sync_change" where "change_id" = ?`, [
+        edit.changeId,
+      ])) as [{ n: number }];
+    expect(n).toBe(1);
+  });
+
+  it('replays a rejected change as rejected again', async () => {
+    const change = tabA.change({ recordId: newId(), fields: patientFields(SITE_B) });
+    const [first] = (await tabA.pushOk([change])).results;
+    const [again] = (await tabA.pushOk([change])).results;
+    expect(first?.status).toBe('rejected');
+    expect(again).toEqual({ ...first, replayed: true });
+  });
+
+  it('applies a change sent by two requests at the same time exactly once', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    const edit = tabA.change({ recordId, baseVersion: version, fields: { notes: 'race' } });
+    const [a, b] = await Promise.all([tabA.pushOk([edit]), tabA.pushOk([edit])]);
+    const results = [a.results[0], b.results[0]];
+    expect(results.filter((r) => r?.replayed === true)).toHaveLength(1);
+    expect(results.map((r) => r?.status)).toEqual(['applied', 'applied']);
+  });
+});
+
+describe('POST /api/sync/push: refused requests', () => {
+  it('answers 400 naming the path of a change without a usable changeId, and applies nothing', async () => {
+    const good = tabA.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    const res = await tabA.push([good, { ...good, changeId: 'not-a-uuid' }]);
+    expect(res.status).toBe(400);
+    expect(res.body.message).toContain('body.changes.1.changeId');
+    expect(await recordRow(good.recordId as string)).toBeUndefined();
+  });
+
+  it('answers 400 naming the path when the envelope is not the protocol’s shape', async () => {
+    const res = await tabA.push([], { protocol: 2 });
+    expect(res.status).toBe(400);
+    expect(res.body.message).toContain('body.protocol');
+    const noChanges = await tabA.push('x' as never as unknown[]);
+    expect(noChanges.status).toBe(400);
+    expect(noChanges.body.message).toContain('body.changes');
+  });
+
+  it('answers 413 for more than 500 changes', async () => {
+    const changes = Array.from({ length: 501 }, () =>
+      tabA.change({ recordId: newId(), fields: patientFields(SITE_A) }),
+    );
+    const res = await tabA.push(changes);
+    expect(res.status).toBe(413);
+    expect(res.body.message).toContain('at most 500');
+  });
+
+  it('answers 413 for a body over 5 MB', async () => {
+    const big = 'x'.repeat(5 * 1024 * 1024 + 10);
+    const res = await tabA.push([
+      tabA.change({ recordId: newId(), fields: patientFields(SITE_A, { notes: big }) }),
+    ]);
+    expect(res.status).toBe(413);
+  });
+
+  it('answers 409 to a device with a newer schema version, and accepts the one before the current', async () => {
+    const newer = await tabA.push([], { schemaVersion: SCHEMA_VERSION + 1 });
+    expect(newer.status).toBe(409);
+    expect(newer.body.message).toContain('server must be updated first');
+    const previous = await tabA.push([], { schemaVersion: SCHEMA_VERSION - 1 });
+    expect(previous.status).toBe(200);
+  });
+
+  it('answers 426 to a device two schema versions behind (426 needs a server schema version of 2 or more)', () => {
+    expect(() => parsePushEnvelope({ protocol: 1, schemaVersion: 1, changes: [] }, 3)).toThrow(
+      expect.objectContaining({ status: 426, message: expect.stringContaining('Update the app') }),
+    );
+    expect(parsePushEnvelope({ protocol: 1, schemaVersion: 2, changes: [] }, 3)).toEqual([]);
+  });
+
+  it('answers 426 over HTTP with a message to update the app', async () => {
+    // SCHEMA_VERSION is 1, so a version below SCHEMA_VERSION − 1 can only be negative: 400 by shape.
+    const res = await tabA.push([], { schemaVersion: SCHEMA_VERSION - 2 });
+    expect(res.status).toBe(SCHEMA_VERSION - 2 < 0 ? 400 : 426);
+  });
+
+  it('answers 401 without a token and 403 to a desk session', async () => {
+    await request(t.app.getHttpServer()).post('/api/sync/push').send({}).expect(401);
+    const desk = await signInAs(t, 'orthoptist', [SITE_A], { desk: true });
+    await request(t.app.getHttpServer())
+      .post('/api/sync/push')
+      .set('authorization', `Bearer ${desk.token}`)
+      .send({ protocol: 1, schemaVersion: SCHEMA_VERSION, changes: [] })
+      .expect(403);
+  });
+});
+
+describe('GET /api/sync/pull', () => {
+  it('pages records in ascending version, each once a page, with all fields, stamps, more and cursor', async () => {
+    const puller = await tabletFor(t, 'orthoptist', [SITE_A]);
+    const start = await pullFrom(puller);
+    const ids = [newId(), newId(), newId()];
+    await tabA.pushOk(
+      ids.map((recordId) => tabA.change({ recordId, fields: patientFields(SITE_A) })),
+    );
+    const [first] = ids;
+    await tabA.pushOk([
+      tabA.change({ recordId: first as string, baseVersion: 0, fields: { notes: 'again' } }),
+    ]);
+
+    const page1 = await puller.pullOk(start.cursor, 2);
+    if (isPullReset(page1)) throw new Error('reset');
+    expect(page1.records).toHaveLength(2);
+    expect(page1.more).toBe(true);
+    const page2 = await puller.pullOk(page1.cursor, 2);
+    if (isPullReset(page2)) throw new Error('reset');
+    expect(page2.more).toBe(false);
+    const all = [...page1.records, ...page2.records];
+    expect(all.map((r) => r.id).sort()).toEqual([...ids].sort());
+    const versions = all.map((r) => r.version);
+    expect([...versions].sort((a, b) => a - b)).toEqual(versions);
+    expect(page1.cursor).toBe(page1.records.at(-1)?.version);
+    const updated = all.find((r) => r.id === first);
+    expect(updated?.fields).toMatchObject({ familyName: 'Okafor', notes: 'again' });
+    expect(updated?.stamps.notes).toMatchObject({
+      by: tabA.caller.userId,
+      device: tabA.caller.deviceId,
+    });
+    expect(updated?.stamps.familyName?.version).toBeLessThan(updated?.stamps.notes?.version ?? 0);
+  });
+
+  it('returns only records of the user’s sites, and nothing to an admin', async () => {
+    const siteB = await tabletFor(t, 'orthoptist', [SITE_B]);
+    const bId = newId();
+    await siteB.pushOk([siteB.change({ recordId: bId, fields: patientFields(SITE_B) })]);
+    const { recordId: aId } = await createPatient(tabA);
+    const seenByA = (await pullAll(tabA)).map((r) => r.id);
+    expect(seenByA).toContain(aId);
+    expect(seenByA).not.toContain(bId);
+    const seenByB = await pullAll(siteB);
+    expect(seenByB.map((r) => r.id)).toContain(bId);
+    expect(seenByB.every((r) => r.fields.siteId === SITE_B)).toBe(true);
+    const admin = await tabletFor(t, 'admin', [SITE_A, SITE_B]);
+    expect(await admin.pullOk(0)).toEqual({ records: [], cursor: 0, more: false });
+  });
+
+  it('lists the fields with an open conflict on the pulled record', async () => {
+    const { recordId, version } = await createPatient(tabA);
+    await tabA.pushOk([
+      tabA.change({ recordId, baseVersion: version, fields: { givenName: 'Ada' } }),
+    ]);
+    await tabB.pushOk([
+      tabB.change({ recordId, baseVersion: version, fields: { givenName: 'Ida' } }),
+    ]);
+    const record = (await pullAll(tabA)).find((r) => r.id === recordId);
+    expect(record?.conflicts).toEqual(['givenName']);
+  });
+
+  it('holds back a change committed while an older transaction is still open, then delivers it', async () => {
+    const puller = await tabletFor(t, 'orthoptist', [SITE_A]);
+    const { cursor } = await pullFrom(puller);
+    const older = new pg.Client({ connectionString: t.db.url });
+    await older.connect();
+    try {
+      await older.query('begin');
+      await older.query('select pg_current_xact_id()');
+      const { recordId } = await createPatient(tabA);
+      const held = await puller.pullOk(cursor);
+      if (isPullReset(held)) throw new Error('reset');
+      expect(held.records.map((r) => r.id)).not.toContain(recordId);
+      expect(held.cursor).toBe(cursor);
+      expect(held.more).toBe(true);
+      await older.query('commit');
+      const delivered = await puller.pullOk(cursor);
+      if (isPullReset(delivered)) throw new Error('reset');
+      expect(delivered.records.map((r) => r.id)).toContain(recordId);
+    } finally {
+      await older.end();
+    }
+  });
+
+  it('answers 400 naming the query parameter for a limit out of range', async () => {
+    const res = await tabA.pull(0, 0);
+    expect(res.status).toBe(400);
+    expect(res.body.message).toContain('query.limit');
+  });
+});
+
+describe('tombstone horizon', () => {
+  it('prunes tombstones older than the horizon and answers a cursor behind it with reset', async () => {
+    const horizon = t.app.get(HorizonService);
+    const { recordId, version } = await createPatient(tabA);
+    const [deletion] = (
+      await tabA.pushOk([
+        tabA.change({ recordId, baseVersion: version, fields: {}, deleted: true }),
+      ])
+    ).results;
+    const deletedAt = (deletion as { version: number }).version;
+    const stale = version; // a cursor from before the delete
+    const live = await createPatient(tabA);
+
+    const early = await horizon.pruneTombstones();
+    expect(early.tombstonesRemoved).toBe(0);
+    expect(await tabA.pullOk(stale)).not.toEqual({ reset: true });
+
+    t.clock.advance((t.config.tombstoneHorizonDays + 1) * 24 * 3600_000);
+    const report = await horizon.pruneTombstones();
+    expect(report.tombstonesRemoved).toBeGreaterThanOrEqual(1);
+    expect(report.horizonVersion).toBeGreaterThanOrEqual(deletedAt);
+    expect(await recordRow(recordId)).toBeUndefined();
+    expect(await recordRow(live.recordId)).toBeDefined();
+
+    // Tokens are checked against the server clock, so the tablet signs in again after 91 days.
+    const later = new Tablet(
+      t,
+      await signInAs(t, 'orthoptist', [SITE_A], { userId: tabA.caller.userId }),
+    );
+    expect(await later.pullOk(stale)).toEqual({ reset: true });
+    const fresh = await later.pullOk(0);
+    expect(isPullReset(fresh)).toBe(false);
+    expect(await later.pullOk(report.horizonVersion)).not.toEqual({ reset: true });
+  });
+});
