@@ -17,6 +17,7 @@ import { SeedModule } from './seed/seed.module';
 import { SitesModule } from './sites/sites.module';
 import { ConflictsModule } from './conflicts/conflicts.module';
 import { RecordsModule } from './records/records.module';
+import { ReviewModule } from './review/review.module';
 import { SyncModule } from './sync/sync.module';
 import { UsersModule } from './users/users.module';
 
@@ -41,6 +42,7 @@ export class AppModule {
         RecordsModule,
         SyncModule,
         ConflictsModule,
+        ReviewModule,
       ],
       providers: [
         { provide: APP_GUARD, useClass: JwtAuthGuard },

@@ -4,9 +4,11 @@ import type { MigrationObject } from '@mikro-orm/core';
 import { Migration20261201000000Sites } from './Migration20261201000000Sites';
 import { Migration20261201010000Identity } from './Migration20261201010000Identity';
 import { Migration20261201020000SyncRecords } from './Migration20261201020000SyncRecords';
+import { Migration20261201040000ReviewDesk } from './Migration20261201040000ReviewDesk';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
   { name: 'Migration20261201010000Identity', class: Migration20261201010000Identity },
   { name: 'Migration20261201020000SyncRecords', class: Migration20261201020000SyncRecords },
+  { name: 'Migration20261201040000ReviewDesk', class: Migration20261201040000ReviewDesk },
 ];
