@@ -12,15 +12,36 @@ import {
 import { IonReactRouter } from '@ionic/react-router';
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import {
+  businessOutline,
   calendarOutline,
   cloudUploadOutline,
+  peopleOutline,
+  personCircleOutline,
   shieldCheckmarkOutline,
   tabletPortraitOutline,
 } from 'ionicons/icons';
 import { Suspense, type ReactNode } from 'react';
-import { Navigate, Route } from 'react-router-dom';
+import { Route } from 'react-router-dom';
 import { UpdatePrompt } from '../components/UpdatePrompt';
-import { FleetScreen, OutboxScreen, ReviewDeskScreen, TodayScreen } from './routes';
+import { canSee } from '../auth/access';
+import { HomeRedirect, IdentityGate, RequireArea, SignedOutLanding } from '../auth/IdentityGate';
+import { useSession } from '../auth/session-context';
+import { SessionProvider } from '../auth/SessionProvider';
+import { SignInPrompt } from '../auth/SignInPrompt';
+import {
+  EnrolScreen,
+  FleetScreen,
+  OutboxScreen,
+  PeopleScreen,
+  PersonScreen,
+  PinSetupScreen,
+  ReviewDeskScreen,
+  SignInScreen,
+  SitesScreen,
+  TabletErasedScreen,
+  TodayScreen,
+  UnlockScreen,
+} from './routes';
 
 const queryClient = new QueryClient({
   defaultOptions: { queries: { networkMode: 'always', staleTime: 5_000, retry: 1 } },
@@ -40,42 +61,102 @@ function Loading() {
 }
 
 const screen = (node: ReactNode) => <Suspense fallback={<Loading />}>{node}</Suspense>;
+const clinical = (node: ReactNode) => <RequireArea area="clinical">{screen(node)}</RequireArea>;
+const admin = (node: ReactNode) => <RequireArea area="admin">{screen(node)}</RequireArea>;
+
+/** Sign-in, PIN unlock and enrolment: all that a tablet shows before someone is signed in. */
+const signedOutRoutes = (
+  <IonRouterOutlet>
+    <Route path="/signin" element={screen(<SignInScreen />)} />
+    <Route path="/unlock" element={screen(<UnlockScreen />)} />
+    <Route path="/enrol" element={screen(<EnrolScreen />)} />
+    <Route path="*" element={<SignedOutLanding />} />
+  </IonRouterOutlet>
+);
+
+function SignedInTabs() {
+  const role = useSession().user?.role;
+  return (
+    <IonTabs>
+      <IonRouterOutlet>
+        <Route path="/today" element={clinical(<TodayScreen />)} />
+        <Route path="/outbox" element={clinical(<OutboxScreen />)} />
+        <Route
+          path="/review"
+          element={<RequireArea area="review">{screen(<ReviewDeskScreen />)}</RequireArea>}
+        />
+        <Route path="/fleet" element={admin(<FleetScreen />)} />
+        <Route path="/people" element={admin(<PeopleScreen />)} />
+        <Route path="/sites" element={admin(<SitesScreen />)} />
+        <Route path="/person" element={screen(<PersonScreen />)} />
+        <Route path="/pin" element={screen(<PinSetupScreen />)} />
+        <Route path="/" element={<HomeRedirect />} />
+        <Route path="*" element={<HomeRedirect />} />
+      </IonRouterOutlet>
+      <IonTabBar slot="bottom" aria-label="Fuselight sections">
+        {canSee(role, 'clinical') ? (
+          <IonTabButton tab="today" href="/today">
+            <IonIcon icon={calendarOutline} aria-hidden="true" />
+            <IonLabel>Today</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'clinical') ? (
+          <IonTabButton tab="outbox" href="/outbox">
+            <IonIcon icon={cloudUploadOutline} aria-hidden="true" />
+            <IonLabel>Outbox</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'review') ? (
+          <IonTabButton tab="review" href="/review">
+            <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
+            <IonLabel>Review desk</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'admin') ? (
+          <IonTabButton tab="fleet" href="/fleet">
+            <IonIcon icon={tabletPortraitOutline} aria-hidden="true" />
+            <IonLabel>Fleet</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'admin') ? (
+          <IonTabButton tab="people" href="/people">
+            <IonIcon icon={peopleOutline} aria-hidden="true" />
+            <IonLabel>People</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'admin') ? (
+          <IonTabButton tab="sites" href="/sites">
+            <IonIcon icon={businessOutline} aria-hidden="true" />
+            <IonLabel>Sites</IonLabel>
+          </IonTabButton>
+        ) : null}
+        <IonTabButton tab="person" href="/person">
+          <IonIcon icon={personCircleOutline} aria-hidden="true" />
+          <IonLabel>You</IonLabel>
+        </IonTabButton>
+      </IonTabBar>
+    </IonTabs>
+  );
+}
 
 export function App() {
   return (
     <QueryClientProvider client={queryClient}>
-      <IonApp>
-        <IonReactRouter>
-          <IonTabs>
-            <IonRouterOutlet>
-              <Route path="/today" element={screen(<TodayScreen />)} />
-              <Route path="/outbox" element={screen(<OutboxScreen />)} />
-              <Route path="/review" element={screen(<ReviewDeskScreen />)} />
-              <Route path="/fleet" element={screen(<FleetScreen />)} />
-              <Route path="/" element={<Navigate to="/today" replace />} />
-            </IonRouterOutlet>
-            <IonTabBar slot="bottom" aria-label="Fuselight sections">
-              <IonTabButton tab="today" href="/today">
-                <IonIcon icon={calendarOutline} aria-hidden="true" />
-                <IonLabel>Today</IonLabel>
-              </IonTabButton>
-              <IonTabButton tab="outbox" href="/outbox">
-                <IonIcon icon={cloudUploadOutline} aria-hidden="true" />
-                <IonLabel>Outbox</IonLabel>
-              </IonTabButton>
-              <IonTabButton tab="review" href="/review">
-                <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
-                <IonLabel>Review desk</IonLabel>
-              </IonTabButton>
-              <IonTabButton tab="fleet" href="/fleet">
-                <IonIcon icon={tabletPortraitOutline} aria-hidden="true" />
-                <IonLabel>Fleet</IonLabel>
-              </IonTabButton>
-            </IonTabBar>
-          </IonTabs>
-        </IonReactRouter>
-        <UpdatePrompt />
-      </IonApp>
+      <SessionProvider>
+        <IonApp>
+          <IonReactRouter>
+            <IdentityGate
+              loading={<Loading />}
+              signedOut={signedOutRoutes}
+              erased={(note) => screen(<TabletErasedScreen note={note} />)}
+            >
+              <SignedInTabs />
+            </IdentityGate>
+            <SignInPrompt />
+          </IonReactRouter>
+          <UpdatePrompt />
+        </IonApp>
+      </SessionProvider>
     </QueryClientProvider>
   );
 }

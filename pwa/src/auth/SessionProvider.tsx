@@ -11,8 +11,10 @@ import {
   type ReactNode,
 } from 'react';
 import { version as appVersion } from '../../package.json';
+import { configureSync, getSyncEngine, stopSync, subscribeSyncEngine } from '../sync/sync-runtime';
 import { SessionContext, type TabletSession } from './session-context';
 import { SessionStore, type AuthSnapshot } from './session-store';
+import { SessionSyncAuth } from './session-sync-auth';
 
 const HEARTBEAT_EVERY_MS = 3 * 60_000;
 const RETIREMENT_CHECK_EVERY_MS = 10_000;
@@ -70,6 +72,53 @@ export function SessionProvider({
     }, RETIREMENT_CHECK_EVERY_MS);
     return () => clearInterval(timer);
   }, [store, background, retired]);
+
+  // The sync engine runs while the tablet is enrolled and someone has a session on it; it pulls
+  // as the person using the tablet and pushes each entry under its author's session.
+  const deviceId = snapshot.tablet?.deviceId ?? null;
+  const hasPeople = snapshot.people.length > 0;
+  useEffect(() => {
+    if (!background) return;
+    if (!deviceId || !hasPeople) {
+      stopSync();
+      return;
+    }
+    configureSync({
+      baseUrl: '',
+      auth: new SessionSyncAuth(store),
+      deviceId,
+      pullAs: () => store.getSnapshot().activeUser?.id ?? null,
+    });
+    return () => stopSync();
+  }, [store, background, deviceId, hasPeople]);
+
+  // Heartbeat after each sync, with the Outbox size the sync engine just counted.
+  useEffect(() => {
+    if (!background) return;
+    let lastSyncedAt: number | null = null;
+    let unsubscribeStatus: (() => void) | null = null;
+    const watch = () => {
+      unsubscribeStatus?.();
+      const engine = getSyncEngine();
+      unsubscribeStatus =
+        engine?.status.subscribe(() => {
+          const status = engine.status.getSnapshot();
+          if (status.lastSyncedAt !== null && status.lastSyncedAt !== lastSyncedAt) {
+            lastSyncedAt = status.lastSyncedAt;
+            store.heartbeat(appVersion).catch(() => undefined);
+            if (store.getSnapshot().tablet?.state === 'retired') {
+              store.continueRetirement().catch(() => undefined);
+            }
+          }
+        }) ?? null;
+    };
+    watch();
+    const unsubscribeEngine = subscribeSyncEngine(watch);
+    return () => {
+      unsubscribeEngine();
+      unsubscribeStatus?.();
+    };
+  }, [store, background]);
 
   const session = useMemo<TabletSession>(
     () => ({

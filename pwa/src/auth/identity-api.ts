@@ -42,6 +42,9 @@ export interface EnrolResponse {
 }
 export interface DeviceStatus {
   state: 'pending' | 'active' | 'retired' | 'revoked';
+  deviceId?: string;
+  label?: string;
+  siteIds?: string[];
   /** Optional clinic policy the server may send for offline unlock. */
   offlineUnlockHours?: number;
   maxPinAttempts?: number;
@@ -54,6 +57,8 @@ export interface AdminUser {
   role: Role;
   siteIds: string[];
   active: boolean;
+  needsCountersign?: boolean;
+  mustChangePassword?: boolean;
   lastSignInAt?: string | null;
 }
 export interface NewPerson {
@@ -62,7 +67,14 @@ export interface NewPerson {
   role: Role;
   siteIds: string[];
 }
-export type PersonChange = Partial<Pick<AdminUser, 'name' | 'role' | 'siteIds' | 'active'>>;
+/** An invitation answers with the person and their one-time initial password. */
+export interface InvitedPerson {
+  user: AdminUser;
+  initialPassword: string;
+}
+export type PersonChange = Partial<
+  Pick<AdminUser, 'name' | 'role' | 'siteIds' | 'active' | 'needsCountersign'>
+>;
 
 export type SiteKind = 'clinic' | 'outreach';
 export interface AdminSite {
@@ -201,7 +213,7 @@ export class IdentityApi {
   async listPeople(token: string): Promise<AdminUser[]> {
     return itemsOf<AdminUser>(await this.request('GET', '/api/admin/users', { token }));
   }
-  invitePerson(token: string, person: NewPerson): Promise<AdminUser> {
+  invitePerson(token: string, person: NewPerson): Promise<InvitedPerson> {
     return this.request('POST', '/api/admin/users', { token, body: person });
   }
   changePerson(token: string, id: string, change: PersonChange): Promise<AdminUser> {

@@ -1,17 +1,8 @@
 // The sync engine's view of identity: a token for the author of each Outbox entry (a shared
 // tablet pushes every person's entries under that person's own session), refreshed on expiry,
 // and a sign-in prompt when the server refuses it. Nothing here reads or changes the Outbox.
+import type { SyncAuth } from '../sync/sync-auth';
 import type { SessionStore } from './session-store';
-
-/**
- * The seam the sync engine declares in pwa/src/sync/sync-auth.ts. Repeated here with the exact
- * same shape until that file lands, so this side type-checks on its own; TypeScript's structural
- * typing makes the two interchangeable.
- */
-export interface SyncAuth {
-  tokenFor(authorId: string): Promise<string | null>;
-  onUnauthorized(authorId: string): Promise<void>;
-}
 
 export class SessionSyncAuth implements SyncAuth {
   constructor(private readonly store: SessionStore) {}

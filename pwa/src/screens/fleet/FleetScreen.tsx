@@ -1,10 +1,208 @@
-import { NotBuiltYet } from '../../components/NotBuiltYet';
+// The Fleet: register a tablet and show its one-time enrolment code as a QR code, see each
+// tablet's last contact, app version and Outbox size, and revoke or retire it.
+import { zodResolver } from '@hookform/resolvers/zod';
+import { QRCodeSVG } from 'qrcode.react';
+import { useState } from 'react';
+import { Controller, useForm } from 'react-hook-form';
+import type { FleetDevice, RegisteredDevice } from '../../auth/identity-api';
+import { Button, Confirmation, Notice, TextField, describeError } from '../../auth/ui/controls';
+import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { registerTabletSchema, type RegisterTabletForm } from '../admin/admin-forms.schema';
+import { SiteChecklist, siteNames } from '../admin/SiteChecklist';
+import { useFleet, useRegisterTablet, useSites, useTabletAction } from '../admin/useAdminQueries';
+
+const STATE_WORDS: Record<FleetDevice['state'], string> = {
+  pending: 'Waiting to be enrolled',
+  active: 'In use',
+  retired: 'Retired: sending its last changes, then erasing',
+  revoked: 'Revoked',
+};
+
+function when(iso: string | null | undefined): string {
+  return iso ? new Date(iso).toLocaleString() : 'never';
+}
+
+function RegisterTablet() {
+  const sites = useSites();
+  const register = useRegisterTablet();
+  const [issued, setIssued] = useState<(RegisteredDevice & { label: string }) | null>(null);
+  const form = useForm<RegisterTabletForm>({
+    resolver: zodResolver(registerTabletSchema),
+    defaultValues: { label: '', siteIds: [] },
+  });
+  const submit = form.handleSubmit(async (values) => {
+    const answer = await register.mutateAsync(values);
+    setIssued({ ...answer, label: values.label });
+    form.reset();
+  });
+
+  return (
+    <section aria-labelledby="register-heading" className="fl-id-card">
+      <h2 id="register-heading">Register a tablet</h2>
+      <form
+        noValidate
+        aria-label="Register a tablet"
+        onSubmit={(e) => void submit(e).catch(() => undefined)}
+      >
+        <TextField
+          label="Tablet name"
+          error={form.formState.errors.label?.message}
+          {...form.register('label')}
+        />
+        {sites.isPending ? <p role="status">Loading sites…</p> : null}
+        {sites.isError ? (
+          <Notice tone="error">Could not load the sites: {describeError(sites.error)}</Notice>
+        ) : null}
+        <Controller
+          control={form.control}
+          name="siteIds"
+          render={({ field, fieldState }) => (
+            <SiteChecklist
+              legend="Sites it serves"
+              sites={sites.data ?? []}
+              value={field.value}
+              onChange={field.onChange}
+              error={fieldState.error?.message}
+            />
+          )}
+        />
+        {register.isError ? <Notice tone="error">{describeError(register.error)}</Notice> : null}
+        <Button type="submit" disabled={register.isPending}>
+          {register.isPending ? 'Registering…' : 'Register tablet'}
+        </Button>
+      </form>
+      {issued ? (
+        <div aria-live="polite" style={{ marginTop: 16 }}>
+          <h3>Enrolment code for {issued.label}</h3>
+          <p>
+            On the tablet, open Fuselight and choose &ldquo;Enrol this tablet&rdquo;. Scan this QR
+            code or type the code. It works once, until{' '}
+            {new Date(issued.expiresAt).toLocaleString()}.
+          </p>
+          <div className="fl-id-row" style={{ alignItems: 'flex-start' }}>
+            <div className="fl-id-qr">
+              <QRCodeSVG
+                value={issued.qrPayload}
+                size={224}
+                level="M"
+                title={`QR code for enrolling ${issued.label}`}
+              />
+            </div>
+            <p className="fl-id-code" data-testid="enrolment-code" aria-label="Enrolment code">
+              {issued.enrolmentCode}
+            </p>
+          </div>
+          <Button tone="quiet" onClick={() => setIssued(null)}>
+            Done
+          </Button>
+        </div>
+      ) : null}
+    </section>
+  );
+}
+
+function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: string }) {
+  const action = useTabletAction();
+  const [confirming, setConfirming] = useState<'revoke' | 'retire' | null>(null);
+  const ended = tablet.state === 'revoked' || tablet.state === 'retired';
+  return (
+    <tr>
+      <th scope="row">{tablet.label}</th>
+      <td>{STATE_WORDS[tablet.state]}</td>
+      <td>{sitesText}</td>
+      <td>{when(tablet.lastSeenAt)}</td>
+      <td>{tablet.appVersion ?? 'not reported'}</td>
+      <td>{tablet.outboxSize ?? 'not reported'}</td>
+      <td>
+        {ended ? null : (
+          <div className="fl-id-row">
+            <Button
+              tone="quiet"
+              onClick={() => setConfirming('retire')}
+              aria-label={`Retire ${tablet.label}`}
+            >
+              Retire
+            </Button>
+            <Button
+              tone="danger"
+              onClick={() => setConfirming('revoke')}
+              aria-label={`Revoke ${tablet.label}`}
+            >
+              Revoke
+            </Button>
+          </div>
+        )}
+        {confirming ? (
+          <Confirmation
+            title={confirming === 'revoke' ? `Revoke ${tablet.label}?` : `Retire ${tablet.label}?`}
+            confirmLabel={confirming === 'revoke' ? 'Revoke now' : 'Retire'}
+            busy={action.isPending}
+            onCancel={() => setConfirming(null)}
+            onConfirm={() =>
+              action.mutate(
+                { id: tablet.id, action: confirming },
+                { onSuccess: () => setConfirming(null) },
+              )
+            }
+          >
+            {confirming === 'revoke'
+              ? `The tablet is refused at once and erases everything on it the next time it reaches the server. ${
+                  tablet.outboxSize
+                    ? `${tablet.outboxSize} changes it has not sent will be lost.`
+                    : ''
+                } Use this for a lost or stolen tablet.`
+              : 'The tablet sends the changes it still holds, then erases itself. Use this for a tablet leaving service.'}
+          </Confirmation>
+        ) : null}
+        {action.isError ? <Notice tone="error">{describeError(action.error)}</Notice> : null}
+      </td>
+    </tr>
+  );
+}
 
 export default function FleetScreen() {
+  const fleet = useFleet();
+  const sites = useSites();
   return (
-    <NotBuiltYet
-      title="Fleet"
-      purpose="Enrolled tablets: register, see status, revoke or retire."
-    />
+    <IdentityPage title="Fleet" wide>
+      <RegisterTablet />
+      <section aria-labelledby="fleet-heading">
+        <h2 id="fleet-heading">Tablets</h2>
+        {fleet.isPending ? <p role="status">Loading the Fleet…</p> : null}
+        {fleet.isError ? (
+          <Notice tone="error">
+            Could not load the Fleet: {describeError(fleet.error)}{' '}
+            <Button tone="quiet" onClick={() => void fleet.refetch()}>
+              Try again
+            </Button>
+          </Notice>
+        ) : null}
+        {fleet.data && fleet.data.length === 0 ? <p>No tablets are registered yet.</p> : null}
+        {fleet.data && fleet.data.length > 0 ? (
+          <table className="fl-id-table">
+            <thead>
+              <tr>
+                <th scope="col">Tablet</th>
+                <th scope="col">State</th>
+                <th scope="col">Sites</th>
+                <th scope="col">Last contact</th>
+                <th scope="col">App version</th>
+                <th scope="col">Outbox</th>
+                <th scope="col">Actions</th>
+              </tr>
+            </thead>
+            <tbody>
+              {fleet.data.map((tablet) => (
+                <TabletRow
+                  key={tablet.id}
+                  tablet={tablet}
+                  sitesText={siteNames(sites.data, tablet.siteIds)}
+                />
+              ))}
+            </tbody>
+          </table>
+        ) : null}
+      </section>
+    </IdentityPage>
   );
 }

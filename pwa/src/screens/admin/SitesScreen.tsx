@@ -1,0 +1,133 @@
+// Sites: the clinic's locations and outreach places that people and tablets belong to.
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import type { AdminSite } from '../../auth/identity-api';
+import { Button, Notice, SelectField, TextField, describeError } from '../../auth/ui/controls';
+import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { siteFormSchema, type SiteForm } from './admin-forms.schema';
+import { useAddSite, useChangeSite, useSites } from './useAdminQueries';
+
+function SiteFields({ form }: { form: ReturnType<typeof useForm<SiteForm>> }) {
+  const { errors } = form.formState;
+  return (
+    <>
+      <TextField label="Site name" error={errors.name?.message} {...form.register('name')} />
+      <SelectField label="Kind" error={errors.kind?.message} {...form.register('kind')}>
+        <option value="clinic">Clinic</option>
+        <option value="outreach">Outreach (school, rural clinic)</option>
+      </SelectField>
+      <TextField label="Address" error={errors.address?.message} {...form.register('address')} />
+      <TextField
+        label="Time zone"
+        hint="IANA name, e.g. Europe/London"
+        error={errors.timeZone?.message}
+        {...form.register('timeZone')}
+      />
+    </>
+  );
+}
+
+function EditSite({ site, onDone }: { site: AdminSite; onDone: () => void }) {
+  const changeSite = useChangeSite();
+  const form = useForm<SiteForm>({
+    resolver: zodResolver(siteFormSchema),
+    defaultValues: {
+      name: site.name,
+      kind: site.kind,
+      address: site.address ?? '',
+      timeZone: site.timeZone,
+    },
+  });
+  const submit = form.handleSubmit(async (values) => {
+    await changeSite.mutateAsync({
+      id: site.id,
+      change: { ...values, address: values.address || null },
+    });
+    onDone();
+  });
+  return (
+    <form
+      noValidate
+      aria-label={`Edit ${site.name}`}
+      onSubmit={(e) => void submit(e).catch(() => undefined)}
+    >
+      <SiteFields form={form} />
+      {changeSite.isError ? <Notice tone="error">{describeError(changeSite.error)}</Notice> : null}
+      <div className="fl-id-row">
+        <Button type="submit" disabled={changeSite.isPending}>
+          Save
+        </Button>
+        <Button tone="quiet" onClick={onDone}>
+          Cancel
+        </Button>
+      </div>
+    </form>
+  );
+}
+
+export default function SitesScreen() {
+  const sites = useSites();
+  const addSite = useAddSite();
+  const [editing, setEditing] = useState<string | null>(null);
+  const form = useForm<SiteForm>({
+    resolver: zodResolver(siteFormSchema),
+    defaultValues: { name: '', kind: 'clinic', address: '', timeZone: 'Europe/London' },
+  });
+  const submit = form.handleSubmit(async (values) => {
+    await addSite.mutateAsync({ ...values, address: values.address || null });
+    form.reset();
+  });
+  return (
+    <IdentityPage title="Sites" wide>
+      <section className="fl-id-card" aria-labelledby="add-site-heading">
+        <h2 id="add-site-heading">Add a site</h2>
+        <form
+          noValidate
+          aria-label="Add a site"
+          onSubmit={(e) => void submit(e).catch(() => undefined)}
+        >
+          <SiteFields form={form} />
+          {addSite.isError ? <Notice tone="error">{describeError(addSite.error)}</Notice> : null}
+          <Button type="submit" disabled={addSite.isPending}>
+            {addSite.isPending ? 'Adding…' : 'Add site'}
+          </Button>
+        </form>
+      </section>
+      <section aria-labelledby="sites-heading">
+        <h2 id="sites-heading">Sites</h2>
+        {sites.isPending ? <p role="status">Loading sites…</p> : null}
+        {sites.isError ? (
+          <Notice tone="error">Could not load sites: {describeError(sites.error)}</Notice>
+        ) : null}
+        {sites.data && sites.data.length === 0 ? <p>No sites yet.</p> : null}
+        <ul style={{ listStyle: 'none', padding: 0 }} aria-label="Sites">
+          {sites.data?.map((site) => (
+            <li key={site.id} className="fl-id-card">
+              {editing === site.id ? (
+                <EditSite site={site} onDone={() => setEditing(null)} />
+              ) : (
+                <div className="fl-id-row" style={{ justifyContent: 'space-between' }}>
+                  <div>
+                    <strong>{site.name}</strong>
+                    <p className="fl-id-hint">
+                      {site.kind === 'outreach' ? 'Outreach' : 'Clinic'} ·{' '}
+                      {site.address ?? 'no address'} · {site.timeZone}
+                    </p>
+                  </div>
+                  <Button
+                    tone="quiet"
+                    onClick={() => setEditing(site.id)}
+                    aria-label={`Edit ${site.name}`}
+                  >
+                    Edit
+                  </Button>
+                </div>
+              )}
+            </li>
+          ))}
+        </ul>
+      </section>
+    </IdentityPage>
+  );
+}

@@ -1,0 +1,79 @@
+// The person using the tablet: their site, their PIN, handing the tablet over, signing out.
+import { useQuery } from '@tanstack/react-query';
+import { useState } from 'react';
+import { useNavigate } from 'react-router-dom';
+import { useSession } from '../../auth/session-context';
+import { useAuthState } from '../../auth/SessionProvider';
+import { countOutboxEntries } from '../../auth/outbox-count';
+import { useAuthActions } from '../../auth/useAuthActions';
+import { Button, Confirmation, SelectField } from '../../auth/ui/controls';
+import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { identityKeys } from '../admin/identity-query-keys';
+
+export default function PersonScreen() {
+  const { user, activeSiteId, deviceId } = useSession();
+  const { people, policy } = useAuthState();
+  const actions = useAuthActions();
+  const navigate = useNavigate();
+  const [confirmingSignOut, setConfirmingSignOut] = useState(false);
+  const waiting = useQuery({
+    queryKey: identityKeys.waitingChanges(user?.id ?? ''),
+    queryFn: () => countOutboxEntries(user!.id),
+    enabled: !!user,
+  });
+  if (!user) return null;
+  const me = people.find((p) => p.user.id === user.id);
+  const waitingCount = waiting.data ?? 0;
+
+  return (
+    <IdentityPage title="You">
+      <p>
+        Signed in as <strong>{user.name}</strong> ({user.email}), {user.role}.
+      </p>
+      {user.siteIds.length > 1 ? (
+        <SelectField
+          label="Site you are working at"
+          value={activeSiteId ?? ''}
+          onChange={(e) => void actions.setActiveSite(e.target.value)}
+        >
+          {user.siteIds.map((id, index) => (
+            <option key={id} value={id}>
+              Site {index + 1} ({id.slice(-6)})
+            </option>
+          ))}
+        </SelectField>
+      ) : null}
+      {deviceId ? (
+        <p>
+          {me?.hasPin
+            ? `Your PIN unlocks this tablet offline until ${new Date(me.unlockWindowEndsAt).toLocaleString()}.`
+            : 'You have no PIN on this tablet yet.'}{' '}
+          The clinic allows {policy.offlineUnlockHours} hours offline.
+        </p>
+      ) : null}
+      <div className="fl-id-row">
+        {deviceId ? (
+          <Button tone="quiet" onClick={() => navigate('/pin')}>
+            {me?.hasPin ? 'Change PIN' : 'Set a PIN'}
+          </Button>
+        ) : null}
+        <Button onClick={() => void actions.switchPerson()}>Switch person</Button>
+        <Button tone="danger" onClick={() => setConfirmingSignOut(true)}>
+          Sign out
+        </Button>
+      </div>
+      {confirmingSignOut ? (
+        <Confirmation
+          title="Sign out of this tablet?"
+          confirmLabel="Sign out"
+          onCancel={() => setConfirmingSignOut(false)}
+          onConfirm={() => void actions.signOut()}
+        >
+          {waitingCount > 0
+            ? `${waitingCount} of your changes have not been sent yet. They stay in the Outbox and are sent after you next sign in on this tablet.`
+            : 'Everything of yours has been sent. Your PIN on this tablet is removed.'}
+        </Confirmation>
+      ) : null}
+    </IdentityPage>
+  );
+}
