@@ -50,6 +50,15 @@ export default defineConfig({
   ],
   build: {
     target: 'es2022',
+    rollupOptions: {
+      // Each Ionic component module defines its custom element at the top level, and the
+      // packages declare no `sideEffects`, so without this every component of Ionic would ship
+      // in the first chunk. The React wrappers define the element when it is first rendered.
+      treeshake: {
+        moduleSideEffects: (id: string) =>
+          !/@ionic[\\/]core[\\/]components[\\/]ion-[a-z-]+\.js$/.test(id),
+      },
+    },
     sourcemap: true,
     chunkSizeWarningLimit: 900,
   },
