@@ -7,6 +7,8 @@ export type Fault =
   | { kind: 'delay'; ms: number }
   | { kind: 'duplicate' }
   | { kind: 'lose-reply' }
+  /** A proxy in between answers 502 without reaching the server. */
+  | { kind: 'gateway-error' }
   /** Deliver now, and keep a copy to deliver again after a later request (a reordered resend). */
   | { kind: 'replay-later' };
 
@@ -60,6 +62,12 @@ export class FaultyNetwork {
       case 'drop':
         this.log.push({ method, path, fault: fault.kind, status: null });
         throw new TypeError('fetch failed: the request was lost on the way');
+      case 'gateway-error':
+        this.log.push({ method, path, fault: fault.kind, status: 502 });
+        return new Response(JSON.stringify({ message: 'Bad gateway' }), {
+          status: 502,
+          headers: { 'Content-Type': 'application/json' },
+        });
       case 'delay':
         await new Promise((resolve) => setTimeout(resolve, fault.ms));
         break;

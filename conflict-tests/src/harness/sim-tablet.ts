@@ -1,6 +1,6 @@
 // One simulated tablet: its own Dexie database on fake-indexeddb, its own controllable clock, the
 // real PWA repositories and sync engine, a faulty network to the real server, and a real SyncAuth.
-import type { CollectionName, RecordFieldsInput } from '@fuselight/shared';
+import type { CollectionName, PushResult, RecordFieldsInput } from '@fuselight/shared';
 import { FuselightDb, type OutboxEntry, type StoredRecord } from '@pwa/data/db';
 import { OutboxRepository } from '@pwa/data/outbox-repository';
 import { RecordsRepository, type EditContext } from '@pwa/data/records-repository';
@@ -21,6 +21,8 @@ export class SimTablet {
   readonly engine: SyncEngine;
   /** Milliseconds this tablet's clock is ahead of the server's (negative: behind). */
   skewMs = 0;
+  /** Every push result this tablet received, with the entry it answered. */
+  readonly acks: Array<{ entry: OutboxEntry; result: PushResult }> = [];
   /** Who is using the tablet now. */
   user: TestUser;
 
@@ -51,6 +53,7 @@ export class SimTablet {
         subscribe: () => () => undefined,
       },
       yieldToUi: () => Promise.resolve(),
+      onPushResult: (entry, result) => this.acks.push({ entry, result }),
       requestTimeoutMs: 30_000,
       ...(options.schemaVersion === undefined ? {} : { schemaVersion: options.schemaVersion }),
       ...(options.pageLimit === undefined ? {} : { pageLimit: options.pageLimit }),

@@ -14,6 +14,7 @@ import {
   type CollectionName,
   type PushChange,
   type PushResponse,
+  type PushResult,
 } from '@fuselight/shared';
 import type { FuselightDb, OutboxEntry } from '../data/db';
 import { notifyDataChange, subscribeDataChanges } from '../data/data-events';
@@ -69,6 +70,8 @@ export interface SyncEngineOptions {
   requestTimeoutMs?: number;
   schemaVersion?: number;
   yieldToUi?: () => Promise<void>;
+  /** Told of every push result the server sent, with the entry it answers (tests, audit). */
+  onPushResult?: (entry: OutboxEntry, result: PushResult) => void;
 }
 
 export type SyncOutcome =
@@ -572,6 +575,13 @@ export class SyncEngine {
       );
     }
     const answer: PushResponse = parsed.data;
+    if (this.options.onPushResult) {
+      const sent = new Map(claimed.map((entry) => [entry.changeId, entry]));
+      for (const result of answer.results) {
+        const entry = sent.get(result.changeId);
+        if (entry) this.options.onPushResult(entry, result);
+      }
+    }
     const summary = await applyPushResults(this.db, claimed, answer.results, this.clock.now());
     notifyDataChange({
       collections: summary.collections,
