@@ -2,7 +2,7 @@
 // fields so that two people editing different paragraphs do not collide; delivery state is
 // written by the server's mailer.
 import { z } from 'zod';
-import { choice, emailAddress, id, instant, measurement, text } from './field-types.schema';
+import { choice, emailAddress, id, instant, measurement, text, yesNo } from './field-types.schema';
 
 export const LETTER_DELIVERY_STATES = ['notSent', 'queued', 'sent', 'failed'] as const;
 
@@ -22,6 +22,9 @@ export const letterSchema = z.object({
   closing: text('Closing', { max: 2000 }).nullish(),
   recipientName: text('Recipient name', { max: 200 }).nullish(),
   recipientEmail: emailAddress('Recipient e-mail').nullish(),
+  /** Set on the tablet (possibly offline) to ask the server to send a final letter. */
+  sendRequestedAt: instant('Send requested at').nullish(),
+  copyToPatient: yesNo('Copy to the patient').nullish(),
   finalisedBy: id('Finalised by').nullish(),
   finalisedAt: instant('Finalised at').nullish(),
   deliveryState: choice(

@@ -24,6 +24,7 @@ export const patientSchema = z.object({
     'unknown',
   ]).nullish(),
   referrer: referrerSchema.nullish(),
+  email: emailAddress('Patient e-mail').nullish(),
   notes: text('Notes', { max: 4000 }).nullish(),
 });
 export type PatientFields = z.infer<typeof patientSchema>;
