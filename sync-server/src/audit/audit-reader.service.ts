@@ -65,7 +65,7 @@ export class AuditReader {
     const rows = await this.em.fork().execute<AuditRow[]>(
       `select "seq"::text as "seq", "id", "occurred_at", "scope", "kind", "actor_id", "device_id",
               "site_id", "subject_type", "subject_id", "detail"
-         from "audit_event" where ${where} order by "seq" desc limit ?`,
+         from "audit_event" where ${where} order by "audit_event"."seq" desc limit ?`,
       params,
     );
     const more = rows.length > limit;

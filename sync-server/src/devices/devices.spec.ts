@@ -146,13 +146,11 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
       .send({ refreshToken: session.refreshToken });
     expect(refresh.status).toBe(401);
     const person = session.user;
-    const login = await request(server())
-      .post('/api/auth/login')
-      .send({
-        email: person.email,
-        password: 'a-test-password-of-decent-length',
-        deviceSecret: secret,
-      });
+    const login = await request(server()).post('/api/auth/login').send({
+      email: person.email,
+      password: 'a-test-password-of-decent-length',
+      deviceSecret: secret,
+    });
     expect(login.status).toBe(401);
     expect(login.body.erase).toBe(true);
     const again = await request(server())

@@ -1,0 +1,223 @@
+import request from 'supertest';
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import {
+  bearer,
+  createSite,
+  createUser,
+  signIn,
+  type TestSession,
+  type TestUser,
+} from '../testing/identity-factory';
+import { createTestApp, type TestApp } from '../testing/test-app';
+
+describe('people and sites at the admin desk', () => {
+  let t: TestApp;
+  let siteA: string;
+  let siteB: string;
+  let adminUser: TestUser;
+  let admin: TestSession;
+  const server = () => t.app.getHttpServer();
+
+  beforeAll(async () => {
+    t = await createTestApp();
+    siteA = (await createSite(t)).id;
+    siteB = (await createSite(t, { kind: 'outreach' })).id;
+    adminUser = await createUser(t, { role: 'admin', siteIds: [] });
+  });
+  beforeEach(async () => {
+    admin = await signIn(t, { user: adminUser });
+  });
+  afterAll(async () => {
+    await t.close();
+  });
+
+  it('invites a person whose one-time password signs in once and must then be changed', async () => {
+    const invite = await request(server())
+      .post('/api/admin/users')
+      .set(bearer(admin.accessToken))
+      .send({
+        name: 'Wren Halloway',
+        email: 'Wren.Halloway@test.fuselight.test',
+        role: 'orthoptist',
+        siteIds: [siteA],
+        needsCountersign: true,
+      });
+    expect(invite.status).toBe(201);
+    expect(invite.body.user).toMatchObject({
+      name: 'Wren Halloway',
+      email: 'wren.halloway@test.fuselight.test',
+      role: 'orthoptist',
+      siteIds: [siteA],
+      needsCountersign: true,
+      mustChangePassword: true,
+      active: true,
+    });
+    const login = await request(server())
+      .post('/api/auth/login')
+      .send({ email: 'wren.halloway@test.fuselight.test', password: invite.body.initialPassword });
+    expect(login.status).toBe(200);
+    const auth = bearer(login.body.accessToken);
+    expect((await request(server()).get('/api/me').set(auth)).body.mustChangePassword).toBe(true);
+
+    const tooShort = await request(server())
+      .post('/api/me/password')
+      .set(auth)
+      .send({ currentPassword: invite.body.initialPassword, newPassword: 'short' });
+    expect(tooShort.status).toBe(400);
+    expect(tooShort.body.message).toContain('body.newPassword');
+
+    const changed = await request(server()).post('/api/me/password').set(auth).send({
+      currentPassword: invite.body.initialPassword,
+      newPassword: 'wren-chooses-her-own-password',
+    });
+    expect(changed.status).toBe(204);
+    expect((await request(server()).get('/api/me').set(auth)).body.mustChangePassword).toBe(false);
+    const old = await request(server())
+      .post('/api/auth/login')
+      .send({ email: 'wren.halloway@test.fuselight.test', password: invite.body.initialPassword });
+    expect(old.status).toBe(401);
+  });
+
+  it('refuses a second person with the same e-mail, whatever its case', async () => {
+    const first = await createUser(t, { role: 'orthoptist', siteIds: [siteA] });
+    const res = await request(server())
+      .post('/api/admin/users')
+      .set(bearer(admin.accessToken))
+      .send({
+        name: 'Copy',
+        email: first.email.toUpperCase(),
+        role: 'orthoptist',
+        siteIds: [siteA],
+      });
+    expect(res.status).toBe(409);
+    expect(res.body.message).toContain('body.email');
+  });
+
+  it('names the wrong field of an invitation', async () => {
+    const res = await request(server())
+      .post('/api/admin/users')
+      .set(bearer(admin.accessToken))
+      .send({ name: 'X', email: 'x@test.fuselight.test', role: 'surgeon', siteIds: [siteA] });
+    expect(res.status).toBe(400);
+    expect(res.body.message).toContain(
+      'body.role: role must be one of: orthoptist, outreach, supervisor, admin',
+    );
+  });
+
+  it('changes a role and sites, ends the person’s sessions, and audits both changes', async () => {
+    const person = await createUser(t, { role: 'orthoptist', siteIds: [siteA] });
+    const session = await signIn(t, { user: person });
+    const res = await request(server())
+      .patch(`/api/admin/users/${person.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ role: 'supervisor', siteIds: [siteA, siteB] });
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ role: 'supervisor', siteIds: [siteA, siteB].sort() });
+    expect((await request(server()).get('/api/me').set(bearer(session.accessToken))).status).toBe(
+      401,
+    );
+    const again = await signIn(t, { user: person });
+    expect(again.user).toMatchObject({ role: 'supervisor', siteIds: [siteA, siteB].sort() });
+
+    const audit = await request(server())
+      .get('/api/audit?scope=account')
+      .set(bearer(admin.accessToken));
+    const mine = audit.body.items.filter((e: { subjectId: string }) => e.subjectId === person.id);
+    expect(mine.map((e: { kind: string }) => e.kind)).toEqual(
+      expect.arrayContaining(['user.role_changed', 'user.sites_changed']),
+    );
+    const roleChange = mine.find((e: { kind: string }) => e.kind === 'user.role_changed');
+    expect(roleChange).toMatchObject({
+      actorId: adminUser.id,
+      detail: { role: { from: 'orthoptist', to: 'supervisor' } },
+    });
+  });
+
+  it('keeps a person’s sessions when only the countersigning setting changes', async () => {
+    const person = await createUser(t, { role: 'orthoptist', siteIds: [siteA] });
+    const session = await signIn(t, { user: person });
+    const res = await request(server())
+      .patch(`/api/admin/users/${person.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ needsCountersign: true });
+    expect(res.body.needsCountersign).toBe(true);
+    const me = await request(server()).get('/api/me').set(bearer(session.accessToken));
+    expect(me.status).toBe(200);
+    expect(me.body.needsCountersign).toBe(true);
+  });
+
+  it('refuses to remove the last active admin', async () => {
+    const res = await request(server())
+      .patch(`/api/admin/users/${adminUser.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ role: 'supervisor' });
+    expect(res.status).toBe(409);
+    expect(res.body.message).toContain('active admin');
+    const after = await request(server()).get('/api/me').set(bearer(admin.accessToken));
+    expect(after.body.role).toBe('admin');
+  });
+
+  it('refuses an empty change and an unknown field', async () => {
+    const person = await createUser(t, { role: 'orthoptist', siteIds: [siteA] });
+    const empty = await request(server())
+      .patch(`/api/admin/users/${person.id}`)
+      .set(bearer(admin.accessToken))
+      .send({});
+    expect(empty.status).toBe(400);
+    expect(empty.body.message).toContain('send at least one of');
+    const unknown = await request(server())
+      .patch(`/api/admin/users/${person.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ passwordHash: 'x' });
+    expect(unknown.status).toBe(400);
+    expect(unknown.body.message).toContain('passwordHash');
+  });
+
+  it('lists people with their sites and without any credential', async () => {
+    const res = await request(server()).get('/api/admin/users').set(bearer(admin.accessToken));
+    expect(res.status).toBe(200);
+    expect(res.body.length).toBeGreaterThan(1);
+    for (const person of res.body) {
+      expect(Object.keys(person).sort()).toEqual(
+        [
+          'active',
+          'createdAt',
+          'email',
+          'id',
+          'lastSignInAt',
+          'mustChangePassword',
+          'name',
+          'needsCountersign',
+          'role',
+          'siteIds',
+        ].sort(),
+      );
+    }
+  });
+
+  it('creates, lists and edits sites, refusing a time zone that does not exist', async () => {
+    const created = await request(server())
+      .post('/api/admin/sites')
+      .set(bearer(admin.accessToken))
+      .send({ name: 'Saltmarsh Primary', kind: 'outreach', address: '2 Dyke Road' });
+    expect(created.status).toBe(201);
+    expect(created.body).toMatchObject({
+      name: 'Saltmarsh Primary',
+      kind: 'outreach',
+      timeZone: 'Europe/London',
+    });
+    const patched = await request(server())
+      .patch(`/api/admin/sites/${created.body.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ timeZone: 'Europe/Dublin' });
+    expect(patched.body.timeZone).toBe('Europe/Dublin');
+    const wrong = await request(server())
+      .patch(`/api/admin/sites/${created.body.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ timeZone: 'Mars/Olympus' });
+    expect(wrong.status).toBe(400);
+    expect(wrong.body.message).toContain('body.timeZone');
+    const list = await request(server()).get('/api/admin/sites').set(bearer(admin.accessToken));
+    expect(list.body.map((s: { id: string }) => s.id)).toContain(created.body.id);
+  });
+});
