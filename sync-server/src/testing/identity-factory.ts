@@ -88,7 +88,7 @@ export async function createUser(
   };
 }
 
-/** Registers a tablet for `siteIds` and enrols it (pass `enrol: false` to keep it pending). */
+/** Registers a tablet for `siteIds` and enrols it; returns the secret its sign-ins carry. */
 export async function createDevice(
   t: TestApp,
   options: { siteIds: string[]; label?: string },
