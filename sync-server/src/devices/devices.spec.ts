@@ -92,6 +92,15 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
     expect(second.body).not.toHaveProperty('deviceSecret');
   });
 
+  it('hands out one secret when the same code is sent twice at the same moment', async () => {
+    const ticket = await register();
+    const [a, b] = await Promise.all([
+      enrol(ticket.body.enrolmentCode),
+      enrol(ticket.body.enrolmentCode),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 400]);
+  });
+
   it('refuses a code after 24 hours', async () => {
     const ticket = await register();
     t.clock.advance(24 * 3600 * 1000 + 1000);
