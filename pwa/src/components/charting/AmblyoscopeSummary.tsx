@@ -1,0 +1,120 @@
+// What the Bench recorded at the amblyoscope, in short, with the two main angles adjustable here
+// (AngleControl) and a link to the full guided capture on the Bench.
+import type { SectionCollectionName } from '@fuselight/shared';
+import { Link } from 'react-router-dom';
+import { AngleControl } from '../controls';
+import type { VisitSectionRecords } from '../../data/charting';
+import { DisputeMark } from './ScreenState';
+import { SaveIndicator, metaOf, sectionFieldNames } from './SectionForm';
+import { useSectionAutosave, type SaveStatus } from './useSectionAutosave';
+
+const AMBLYOSCOPE_SECTIONS: readonly [SectionCollectionName, string][] = [
+  ['amblyoscopeSetup', 'Setup'],
+  ['simultaneousPerception', 'Simultaneous perception'],
+  ['amblyoscopeAngles', 'Angles'],
+  ['suppressionScotoma', 'Suppression scotoma'],
+  ['fusion', 'Fusion'],
+  ['fusionalRanges', 'Fusional ranges'],
+  ['grossStereopsis', 'Gross stereopsis'],
+];
+
+function shown(collection: SectionCollectionName, field: string, value: unknown): string | null {
+  if (value === null || value === undefined) return null;
+  const meta = metaOf(collection, field);
+  if (typeof value === 'boolean') return value ? 'Yes' : 'No';
+  if (typeof value === 'number') {
+    const sign = value > 0 && (meta.min ?? 0) < 0 ? '+' : '';
+    return `${sign}${value}${meta.unit ? ` ${meta.unit}` : ''}`;
+  }
+  if (typeof value === 'string') {
+    return meta.options?.find((o) => o.value === value)?.label ?? value;
+  }
+  if (Array.isArray(value)) return `${value.length} recorded`;
+  return null;
+}
+
+export function AmblyoscopeSummary({
+  visitId,
+  sections,
+  locked,
+  onStatus,
+}: {
+  visitId: string;
+  sections: VisitSectionRecords;
+  locked: boolean;
+  onStatus?: (status: SaveStatus) => void;
+}) {
+  const angles = sections.amblyoscopeAngles;
+  const autosave = useSectionAutosave(visitId, 'amblyoscopeAngles', angles?.fields, onStatus);
+  const recorded = AMBLYOSCOPE_SECTIONS.map(([collection, title]) => {
+    const record = sections[collection];
+    const rows = record
+      ? sectionFieldNames(collection)
+          .map((field) => ({
+            field,
+            label: metaOf(collection, field).label,
+            value: shown(collection, field, (record.fields as Record<string, unknown>)[field]),
+          }))
+          .filter((row) => row.value !== null)
+      : [];
+    return { collection, title, rows, conflicts: record?.conflicts ?? [] };
+  }).filter((group) => group.rows.length > 0);
+
+  const angleValue = (field: string) => {
+    const value = autosave.valueOf(field);
+    return typeof value === 'number' ? value : null;
+  };
+
+  return (
+    <section className="flc-panel" aria-labelledby="amblyoscope-title" id="section-amblyoscope">
+      <header>
+        <h2 id="amblyoscope-title">Amblyoscope</h2>
+        <SaveIndicator status={autosave.status} error={autosave.saveError} />
+      </header>
+      <p>
+        The full amblyoscope capture is on the Bench.{' '}
+        <Link className="flc-button" to={`/bench/${visitId}`}>
+          Open the Bench
+        </Link>
+      </p>
+      <div className="flc-grid">
+        {(['objectiveHorizontalDeg', 'subjectiveHorizontalDeg'] as const).map((field) => (
+          <div key={field} className="flc-field">
+            <AngleControl
+              label={metaOf('amblyoscopeAngles', field).label}
+              axis="horizontal"
+              unit="deg"
+              min={-90}
+              max={90}
+              value={angleValue(field)}
+              disabled={locked}
+              onChange={(value) => autosave.setField(field, value)}
+            />
+            <DisputeMark field={field} conflicts={angles?.conflicts ?? []} />
+            <p className="flc-message flc-message--error">{autosave.errorOf(field) ?? ''}</p>
+          </div>
+        ))}
+      </div>
+      {recorded.length === 0 ? (
+        <p className="fl-muted">Nothing recorded at the amblyoscope yet.</p>
+      ) : (
+        recorded.map((group) => (
+          <div key={group.collection}>
+            <h3>{group.title}</h3>
+            <dl className="flc-grid">
+              {group.rows.map((row) => (
+                <div key={row.field}>
+                  <dt className="fl-muted">
+                    {row.label}
+                    <DisputeMark field={row.field} conflicts={group.conflicts} />
+                  </dt>
+                  <dd style={{ margin: 0, fontWeight: 700 }}>{row.value}</dd>
+                </div>
+              ))}
+            </dl>
+          </div>
+        ))
+      )}
+    </section>
+  );
+}

@@ -1,0 +1,163 @@
+// Signing, countersigning and addenda. Signing locks the visit's Sections; anything added after
+// is an Addendum, kept beside the signed content and never mixed into it.
+import { useState } from 'react';
+import { useSession } from '../../auth/session-context';
+import { useEditContext } from '../../data';
+import {
+  canAddAddendum,
+  canCountersign,
+  canSign,
+  useCharting,
+  type VisitBundle,
+} from '../../data/charting';
+import { DisputeMark, VisitStatusBadge } from './ScreenState';
+
+function when(iso: string | null | undefined): string {
+  if (!iso) return 'an unknown time';
+  const date = new Date(iso);
+  return Number.isNaN(date.getTime()) ? iso : date.toLocaleString();
+}
+
+export function SignPanel({
+  bundle,
+  blockedReason,
+}: {
+  bundle: VisitBundle;
+  /** Why signing must wait (unsaved or refused values), or null. */
+  blockedReason: string | null;
+}) {
+  const { user } = useSession();
+  const charting = useCharting();
+  const editContext = useEditContext();
+  const [error, setError] = useState<string | null>(null);
+  const [busy, setBusy] = useState(false);
+  const [addendum, setAddendum] = useState('');
+  const [addendumMessage, setAddendumMessage] = useState<string | null>(null);
+  const { visit, addenda } = bundle;
+  const fields = visit.fields;
+  const signAnswer = canSign(visit, user);
+  const countersignAnswer = canCountersign(visit, user);
+  const addendumAnswer = canAddAddendum(visit);
+
+  const act = async (action: () => Promise<unknown>) => {
+    setError(null);
+    setBusy(true);
+    try {
+      await action();
+    } catch (caught) {
+      setError(caught instanceof Error ? caught.message : String(caught));
+    } finally {
+      setBusy(false);
+    }
+  };
+
+  const who = (id: string | null | undefined) =>
+    id && user && id === user.id ? 'you' : (id ?? 'unknown');
+
+  return (
+    <section className="flc-panel" aria-labelledby="sign-title" id="section-sign">
+      <header>
+        <h2 id="sign-title">Sign and Addenda</h2>
+        <VisitStatusBadge status={fields.status} />
+      </header>
+      {fields.status === 'draft' ? (
+        <>
+          <p>Signing locks this visit’s Sections. Anything added later becomes an Addendum.</p>
+          {signAnswer !== true ? <p className="fl-muted">{signAnswer}</p> : null}
+          {blockedReason ? <p className="flc-message flc-message--error">{blockedReason}</p> : null}
+          <button
+            type="button"
+            className="flc-button flc-button--primary"
+            disabled={busy || signAnswer !== true || blockedReason !== null}
+            onClick={() => user && void act(() => charting.sign(visit.id, user, editContext()))}
+          >
+            Sign visit
+          </button>
+        </>
+      ) : (
+        <p>
+          Signed by {who(fields.signedBy)} at {when(fields.signedAt)}
+          <DisputeMark field="signedAt" conflicts={visit.conflicts} />.
+          {fields.status === 'countersigned'
+            ? ` Countersigned by ${who(fields.countersignedBy)} at ${when(fields.countersignedAt)}.`
+            : fields.needsCountersign
+              ? ' Waiting for a supervisor to countersign.'
+              : ''}
+        </p>
+      )}
+      {fields.status === 'signed' && fields.needsCountersign ? (
+        <div className="flc-actions">
+          <button
+            type="button"
+            className="flc-button flc-button--primary"
+            disabled={busy || countersignAnswer !== true}
+            onClick={() =>
+              user && void act(() => charting.countersign(visit.id, user, editContext()))
+            }
+          >
+            Countersign
+          </button>
+          {countersignAnswer !== true ? <p className="fl-muted">{countersignAnswer}</p> : null}
+        </div>
+      ) : null}
+      <p className="flc-message flc-message--error" role="alert">
+        {error ?? ''}
+      </p>
+
+      <h3>Addenda</h3>
+      {addenda.length === 0 ? (
+        <p className="fl-muted">No Addenda.</p>
+      ) : (
+        <ul className="flc-list" aria-label="Addenda">
+          {addenda.map((item) => (
+            <li key={item.id} className="flc-addendum">
+              <strong>
+                Addendum by {item.authorName || who(item.authorId)}, {when(item.writtenAt)}
+              </strong>
+              <DisputeMark field="impression" conflicts={item.conflicts} />
+              {'\n'}
+              {item.text}
+            </li>
+          ))}
+        </ul>
+      )}
+      {addendumAnswer === true ? (
+        <form
+          onSubmit={(event) => {
+            event.preventDefault();
+            if (!user) return;
+            setAddendumMessage(null);
+            if (addendum.trim() === '') {
+              setAddendumMessage('Write what the Addendum adds or corrects.');
+              return;
+            }
+            void act(async () => {
+              await charting.addAddendum(visit.id, { text: addendum, author: user }, editContext());
+              setAddendum('');
+              setAddendumMessage('Addendum saved on this tablet.');
+            });
+          }}
+        >
+          <div className="flc-field">
+            <label htmlFor="addendum-text">New Addendum</label>
+            <textarea
+              id="addendum-text"
+              className="flc-input"
+              value={addendum}
+              aria-describedby="addendum-message"
+              onChange={(event) => setAddendum(event.target.value)}
+            />
+            <p id="addendum-message" className="flc-message" role="status">
+              {addendumMessage ?? ''}
+            </p>
+          </div>
+          <button type="submit" className="flc-button" disabled={busy || !user}>
+            Add Addendum
+          </button>
+        </form>
+      ) : (
+        <p className="fl-muted">{addendumAnswer}</p>
+      )}
+    </section>
+  );
+}

@@ -1,0 +1,279 @@
+import { CLINICAL_CAUTION } from '@fuselight/shared';
+import { render, screen, waitFor, within } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { afterEach, describe, expect, it } from 'vitest';
+import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
+import {
+  ORTHOPTIST,
+  SUPERVISOR,
+  TEST_SITE_ID,
+  editContext,
+  freshRepositories,
+  renderScreen,
+} from '../../components/charting/test-support';
+import { ChartingRepository, VisitLockedError, VisitRuleError } from '../../data/charting';
+import VisitScreen from './VisitScreen';
+
+type Repos = ReturnType<typeof freshRepositories>;
+const opened: Repos[] = [];
+afterEach(async () => {
+  for (const repos of opened.splice(0)) {
+    repos.db.close();
+    await repos.db.delete();
+  }
+});
+
+async function setupVisit(overrides: Record<string, unknown> = {}) {
+  const repos = freshRepositories();
+  opened.push(repos);
+  const patientId = await repos.records.create(
+    'patient',
+    {
+      siteId: TEST_SITE_ID,
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+    },
+    editContext(),
+  );
+  const visitId = await repos.records.create(
+    'visit',
+    {
+      siteId: TEST_SITE_ID,
+      patientId,
+      date: '2026-11-30',
+      clinicianId: ORTHOPTIST.id,
+      status: 'draft',
+      ...overrides,
+    },
+    editContext(),
+  );
+  return { repos, patientId, visitId, charting: new ChartingRepository(repos.records) };
+}
+
+function renderVisit(repos: Repos, visitId: string, user = ORTHOPTIST) {
+  return renderScreen(<VisitScreen />, {
+    repositories: repos,
+    user,
+    path: `/visit/${visitId}`,
+    route: '/visit/:visitId',
+  });
+}
+
+function sectionNamed(name: string): HTMLElement {
+  return screen.getByRole('region', { name });
+}
+
+describe('a Visit Section form', () => {
+  it('saves a typed value to the repository with its Outbox entry and only then says Saved', async () => {
+    const { repos, visitId, patientId } = await setupVisit();
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    const npc = await screen.findByRole('region', { name: 'Near point of convergence' });
+    await user.type(within(npc).getByLabelText('Near point of convergence, break'), '8');
+    await user.tab();
+    await waitFor(() => expect(within(npc).getByText('Saved on this tablet')).toBeTruthy());
+
+    const stored = await repos.records.listByField('nearPointConvergence', 'visitId', visitId);
+    expect(stored).toHaveLength(1);
+    expect(stored[0]!.fields).toMatchObject({
+      breakCm: 8,
+      visitId,
+      patientId,
+      siteId: TEST_SITE_ID,
+    });
+    const entries = await repos.outbox.listEntries();
+    expect(entries.some((e) => e.recordId === stored[0]!.id && e.fields.breakCm === 8)).toBe(true);
+  });
+
+  it('shows the unit beside a number and the schema’s message beside a refused value, saving nothing', async () => {
+    const { repos, visitId } = await setupVisit();
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    const npc = await screen.findByRole('region', { name: 'Near point of convergence' });
+    const input = within(npc).getByLabelText('Near point of convergence, break');
+    expect(within(npc).getAllByText('cm').length).toBeGreaterThan(0);
+
+    await user.type(input, 'abc');
+    expect(
+      await within(npc).findByText('Near point of convergence, break must be a number'),
+    ).toBeTruthy();
+    expect(input.getAttribute('aria-invalid')).toBe('true');
+    await user.clear(input);
+    await user.type(input, '150');
+    expect(
+      await within(npc).findByText('Near point of convergence, break must be between 0 and 100 cm'),
+    ).toBeTruthy();
+    expect((input as HTMLInputElement).value).toBe('150');
+    await user.tab();
+    await new Promise((resolve) => setTimeout(resolve, 500));
+    expect(
+      await repos.records.listByField('nearPointConvergence', 'visitId', visitId),
+    ).toHaveLength(0);
+    expect(screen.getByRole('button', { name: 'Sign visit' })).toHaveProperty('disabled', true);
+  });
+
+  it('stores a typed acuity with its logMAR and shows the Snellen line', async () => {
+    const { repos, visitId } = await setupVisit();
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    const acuity = await screen.findByRole('region', { name: 'Visual acuity' });
+    await user.type(within(acuity).getByLabelText('Right eye, distance, corrected'), '6/12');
+    expect(within(acuity).getByText('0.30 logMAR (Snellen 6/12)')).toBeTruthy();
+    await user.tab();
+    await waitFor(() => expect(within(acuity).getByText('Saved on this tablet')).toBeTruthy());
+    const [record] = await repos.records.listByField('visualAcuity', 'visitId', visitId);
+    expect(record!.fields.rightDistanceCorrectedNotation).toBe('6/12');
+    expect(record!.fields.rightDistanceCorrectedLogMar).toBeCloseTo(0.30103, 4);
+  });
+
+  it('marks a disputed field beside it', async () => {
+    const { repos, visitId, charting } = await setupVisit();
+    const id = await charting.saveSection(
+      visitId,
+      'coverTest',
+      { nearFinding: 'phoria' },
+      editContext(),
+    );
+    await repos.db.records.update(['coverTest', id] as unknown as string, {
+      conflicts: ['nearFinding'],
+    });
+    renderVisit(repos, visitId);
+    const cover = await screen.findByRole('region', { name: 'Cover test' });
+    const group = within(cover).getByRole('group', { name: 'Near cover test' });
+    expect(within(group.parentElement!).getByText('Disputed')).toBeTruthy();
+  });
+});
+
+describe('signing, countersigning and addenda', () => {
+  it('locks the Sections once signed, on screen and in the repository', async () => {
+    const { repos, visitId, charting } = await setupVisit();
+    await charting.saveSection(
+      visitId,
+      'plan',
+      { impression: 'Controlled exophoria' },
+      editContext(),
+    );
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    await user.click(await screen.findByRole('button', { name: 'Sign visit' }));
+
+    await waitFor(() =>
+      expect(within(sectionNamed('Sign and Addenda')).getByText('Signed')).toBeTruthy(),
+    );
+    const visit = await repos.records.get('visit', visitId);
+    expect(visit!.fields).toMatchObject({ status: 'signed', signedBy: ORTHOPTIST.id });
+    expect(typeof visit!.fields.signedAt).toBe('string');
+    await waitFor(() =>
+      expect(
+        within(sectionNamed('Near point of convergence')).getByLabelText(
+          'Near point of convergence, break',
+        ),
+      ).toHaveProperty('disabled', true),
+    );
+    await expect(
+      charting.saveSection(visitId, 'plan', { impression: 'Changed after signing' }, editContext()),
+    ).rejects.toBeInstanceOf(VisitLockedError);
+    const [plan] = await repos.records.listByField('plan', 'visitId', visitId);
+    expect(plan!.fields.impression).toBe('Controlled exophoria');
+  });
+
+  it('adds an Addendum as a separate record and leaves the signed plan as it was', async () => {
+    const { repos, visitId, charting } = await setupVisit();
+    await charting.saveSection(
+      visitId,
+      'plan',
+      { impression: 'Controlled exophoria' },
+      editContext(),
+    );
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    await user.click(await screen.findByLabelText('New Addendum'));
+    await user.paste('Parent called: glasses broken.');
+    await user.click(screen.getByRole('button', { name: 'Add Addendum' }));
+    const list = await screen.findByRole('list', { name: 'Addenda' }, { timeout: 5000 });
+    expect(within(list).getByText(/Parent called: glasses broken\./)).toBeTruthy();
+
+    const plans = await repos.records.listByField('plan', 'visitId', visitId);
+    expect(plans).toHaveLength(2);
+    const bundle = await charting.visitBundle(visitId);
+    expect(bundle!.sections.plan!.fields.impression).toBe('Controlled exophoria');
+    expect(bundle!.addenda.map((a) => [a.text, a.authorId])).toEqual([
+      ['Parent called: glasses broken.', ORTHOPTIST.id],
+    ]);
+  });
+
+  it('refuses an Addendum on a draft and a countersignature the visit does not need', async () => {
+    const { visitId, charting } = await setupVisit();
+    await expect(
+      charting.addAddendum(visitId, { text: 'Too early', author: ORTHOPTIST }, editContext()),
+    ).rejects.toBeInstanceOf(VisitRuleError);
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    await expect(
+      charting.countersign(visitId, SUPERVISOR, editContext(SUPERVISOR)),
+    ).rejects.toThrow('This visit does not need countersigning.');
+  });
+
+  it('lets a supervisor, and not the signer, countersign a visit that needs it', async () => {
+    const { repos, visitId, charting } = await setupVisit({ needsCountersign: true });
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    const first = renderVisit(repos, visitId, ORTHOPTIST);
+    const own = await screen.findByRole('button', { name: 'Countersign' });
+    expect(own).toHaveProperty('disabled', true);
+    expect(screen.getByText('Only a supervisor can countersign.')).toBeTruthy();
+    first.unmount();
+
+    const user = userEvent.setup();
+    renderVisit(repos, visitId, SUPERVISOR);
+    await user.click(await screen.findByRole('button', { name: 'Countersign' }));
+    await waitFor(async () =>
+      expect((await repos.records.get('visit', visitId))!.fields).toMatchObject({
+        status: 'countersigned',
+        countersignedBy: SUPERVISOR.id,
+      }),
+    );
+    expect(await within(sectionNamed('Sign and Addenda')).findByText('Countersigned')).toBeTruthy();
+  });
+});
+
+describe('the interpretation summary', () => {
+  it('shows the caution beside a computed correspondence', () => {
+    render(
+      <InterpretationSummary
+        sections={{
+          amblyoscopeAngles: { objectiveHorizontalDeg: 14, subjectiveHorizontalDeg: 0 },
+        }}
+        ageYears={37}
+      />,
+    );
+    const region = screen.getByRole('region', { name: 'Interpretation' });
+    expect(within(region).getByRole('note').textContent).toContain(CLINICAL_CAUTION);
+    expect(within(region).getByRole('note').textContent).toContain('local protocols');
+    expect(within(region).getByText(/^harmonious ARC:/)).toBeTruthy();
+  });
+
+  it('names the norms table and the cut-off it compared with', () => {
+    render(
+      <InterpretationSummary
+        sections={{
+          amblyoscopeAngles: { objectiveHorizontalDeg: 0, subjectiveHorizontalDeg: 0 },
+          fusionalRanges: { divergenceBreakDeg: -5, convergenceBreakDeg: 26 },
+          nearPointConvergence: { breakCm: 12, recoveryCm: 15 },
+          accommodation: { rightAmplitudeD: 2 },
+        }}
+        ageYears={30}
+      />,
+    );
+    expect(screen.getByText(/^Norms table: Amblyoscope fusional amplitudes/)).toBeTruthy();
+    expect(screen.getByText(/^receded: break 12\.0 cm is beyond 5 cm/)).toBeTruthy();
+    expect(screen.getByText(/Right: 2\.0 D, below the expected minimum/)).toBeTruthy();
+  });
+
+  it('says so when nothing can be interpreted yet, still with the caution', () => {
+    render(<InterpretationSummary sections={{}} ageYears={undefined} />);
+    expect(screen.getByText(/Nothing to interpret yet/)).toBeTruthy();
+    expect(screen.getByRole('note').textContent).toContain(CLINICAL_CAUTION);
+  });
+});

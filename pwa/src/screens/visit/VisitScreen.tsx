@@ -1,0 +1,258 @@
+// Visit: one sitting with a patient. Its Sections are forms saved to IndexedDB as they change,
+// the computed interpretation sits beside them with its caution, and the visit is signed,
+// countersigned and added to (Addenda) here.
+import { YesNoChoice } from '../../components/controls';
+import {
+  IonBackButton,
+  IonButtons,
+  IonContent,
+  IonHeader,
+  IonPage,
+  IonTitle,
+  IonToolbar,
+} from '@ionic/react';
+import type { SectionCollectionName } from '@fuselight/shared';
+import { useCallback, useMemo, useState } from 'react';
+import { Link, useParams } from 'react-router-dom';
+import { AcuityEntries } from '../../components/charting/AcuityEntries';
+import { AmblyoscopeSummary } from '../../components/charting/AmblyoscopeSummary';
+import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
+import { SectionForm } from '../../components/charting/SectionForm';
+import { SignPanel } from '../../components/charting/SignPanel';
+import {
+  DisputeMark,
+  EmptyState,
+  ErrorState,
+  LoadingState,
+  VisitStatusBadge,
+} from '../../components/charting/ScreenState';
+import { describeAge, formatDate, patientFullName } from '../../components/charting/format';
+import { ageOnDate, type VisitSectionValues } from '../../components/charting/interpretations';
+import type { SaveStatus } from '../../components/charting/useSectionAutosave';
+import '../../components/charting/charting.css';
+import { useEditContext } from '../../data';
+import {
+  canEditSections,
+  useCharting,
+  useVisitBundle,
+  type VisitBundle,
+} from '../../data/charting';
+
+interface SectionSpec {
+  collection: SectionCollectionName;
+  title: string;
+  fields?: readonly string[];
+}
+
+const SECTIONS: readonly SectionSpec[] = [
+  { collection: 'visualAcuity', title: 'Visual acuity', fields: ['chartUsed', 'skippedReason'] },
+  { collection: 'coverTest', title: 'Cover test' },
+  { collection: 'prismCoverTest', title: 'Prism cover test' },
+  { collection: 'nearPointConvergence', title: 'Near point of convergence' },
+  { collection: 'accommodation', title: 'Accommodation' },
+  { collection: 'stereoacuity', title: 'Stereoacuity' },
+  { collection: 'motility', title: 'Ocular motility' },
+  { collection: 'plan', title: 'Plan' },
+];
+
+const JUMPS: readonly [string, string][] = [
+  ['section-details', 'Visit'],
+  ['section-amblyoscope', 'Amblyoscope'],
+  ...SECTIONS.map((s): [string, string] => [`section-${s.collection}`, s.title]),
+  ['section-interpretation', 'Interpretation'],
+  ['section-sign', 'Sign'],
+];
+
+function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean }) {
+  const charting = useCharting();
+  const editContext = useEditContext();
+  const { visit } = bundle;
+  const [reason, setReason] = useState(visit.fields.reason ?? '');
+  const [message, setMessage] = useState('');
+  const save = async (fields: { reason?: string | null; needsCountersign?: boolean | null }) => {
+    setMessage('Saving…');
+    try {
+      await charting.updateDraftVisit(visit.id, fields, editContext());
+      setMessage('Saved on this tablet');
+    } catch (error) {
+      setMessage(`Not saved: ${error instanceof Error ? error.message : String(error)}`);
+    }
+  };
+  return (
+    <section className="flc-panel" aria-labelledby="details-title" id="section-details">
+      <header>
+        <h2 id="details-title">Visit</h2>
+        <span className="flc-saved" role="status" aria-live="polite">
+          {message}
+        </span>
+      </header>
+      <div className="flc-grid">
+        <div className="flc-field">
+          <label htmlFor="visit-reason">
+            Reason for visit
+            <DisputeMark field="reason" conflicts={visit.conflicts} />
+          </label>
+          <input
+            id="visit-reason"
+            className="flc-input"
+            type="text"
+            value={reason}
+            disabled={locked}
+            onChange={(event) => setReason(event.target.value)}
+            onBlur={() => {
+              if (reason !== (visit.fields.reason ?? ''))
+                void save({ reason: reason.trim() === '' ? null : reason });
+            }}
+          />
+        </div>
+        <div className="flc-field">
+          <YesNoChoice
+            label="Needs countersigning"
+            value={visit.fields.needsCountersign ?? null}
+            disabled={locked}
+            onChange={(value) => void save({ needsCountersign: value })}
+          />
+          <DisputeMark field="needsCountersign" conflicts={visit.conflicts} />
+        </div>
+      </div>
+    </section>
+  );
+}
+
+function VisitBody({ bundle }: { bundle: VisitBundle }) {
+  const { visit, patient, sections } = bundle;
+  const locked = !canEditSections(visit);
+  const [statuses, setStatuses] = useState<Record<string, SaveStatus>>({});
+  const reporters = useMemo(() => {
+    const make = (key: string) => (status: SaveStatus) =>
+      setStatuses((current) => (current[key] === status ? current : { ...current, [key]: status }));
+    return Object.fromEntries(
+      ['amblyoscope', ...SECTIONS.map((s) => s.collection)].map((key) => [key, make(key)]),
+    ) as Record<string, (status: SaveStatus) => void>;
+  }, []);
+  const values = useMemo(() => {
+    const out: VisitSectionValues = {};
+    for (const [collection, record] of Object.entries(sections)) {
+      out[collection as SectionCollectionName] = record.fields as Record<string, unknown>;
+    }
+    return out;
+  }, [sections]);
+  const age = patient ? ageOnDate(patient.fields.dateOfBirth, visit.fields.date) : undefined;
+  const states = Object.values(statuses);
+  const blockedReason = states.some((s) => s === 'invalid' || s === 'error')
+    ? 'Fix the values marked in the Sections before signing; they are not saved yet.'
+    : states.some((s) => s === 'waiting' || s === 'saving')
+      ? 'Saving the last changes…'
+      : null;
+  const jump = useCallback((id: string) => {
+    document.getElementById(id)?.scrollIntoView({ behavior: 'smooth', block: 'start' });
+  }, []);
+
+  return (
+    <main className="flc-page">
+      <section className="flc-panel" aria-labelledby="visit-title">
+        <header>
+          <h1 id="visit-title" style={{ margin: 0, fontSize: '1.5rem' }}>
+            {patientFullName(patient)} · {formatDate(visit.fields.date)}
+          </h1>
+          <VisitStatusBadge status={visit.fields.status} />
+        </header>
+        <p className="fl-muted">
+          {patient
+            ? `Born ${formatDate(patient.fields.dateOfBirth)} (${describeAge(patient.fields.dateOfBirth, visit.fields.date)} at this visit) · ${patient.fields.clinicNumber}`
+            : 'The patient record is not on this tablet yet.'}
+          {patient ? (
+            <>
+              {' · '}
+              <Link className="flc-link" to={`/chart/${patient.id}`}>
+                Chart
+              </Link>
+            </>
+          ) : null}
+        </p>
+        {locked ? (
+          <p>
+            This visit is {visit.fields.status}; its Sections are locked. Changes are added as an
+            Addendum below.
+          </p>
+        ) : null}
+        <nav aria-label="Sections of this visit" className="flc-nav">
+          {JUMPS.map(([id, label]) => (
+            <button key={id} type="button" className="flc-button" onClick={() => jump(id)}>
+              {label}
+            </button>
+          ))}
+        </nav>
+      </section>
+      <VisitDetails bundle={bundle} locked={locked} />
+      <AmblyoscopeSummary
+        visitId={visit.id}
+        sections={sections}
+        locked={locked}
+        onStatus={reporters.amblyoscope}
+      />
+      {SECTIONS.map((spec) => {
+        const record = sections[spec.collection] as
+          { fields: Record<string, unknown>; conflicts: string[] } | undefined;
+        return (
+          <SectionForm
+            key={spec.collection}
+            visitId={visit.id}
+            collection={spec.collection}
+            title={spec.title}
+            record={record}
+            locked={locked}
+            onStatus={reporters[spec.collection]}
+            {...(spec.fields ? { fields: spec.fields } : {})}
+          >
+            {spec.collection === 'visualAcuity'
+              ? (autosave) => (
+                  <AcuityEntries
+                    autosave={autosave}
+                    conflicts={record?.conflicts ?? []}
+                    locked={locked}
+                  />
+                )
+              : undefined}
+          </SectionForm>
+        );
+      })}
+      <InterpretationSummary sections={values} ageYears={age} />
+      <SignPanel bundle={bundle} blockedReason={blockedReason} />
+    </main>
+  );
+}
+
+export default function VisitScreen() {
+  const { visitId } = useParams<{ visitId: string }>();
+  const bundle = useVisitBundle(visitId);
+  let body;
+  if (bundle.isPending) body = <LoadingState>Loading the visit from this tablet…</LoadingState>;
+  else if (bundle.isError)
+    body = (
+      <ErrorState title="This visit could not be read from the tablet." error={bundle.error} />
+    );
+  else if (bundle.data === null) {
+    body = (
+      <EmptyState>
+        <p>This visit is not on this tablet. It may not have synced yet.</p>
+        <Link className="flc-button" to="/today">
+          Back to Today
+        </Link>
+      </EmptyState>
+    );
+  } else body = <VisitBody key={bundle.data.visit.id} bundle={bundle.data} />;
+  return (
+    <IonPage>
+      <IonHeader>
+        <IonToolbar>
+          <IonButtons slot="start">
+            <IonBackButton defaultHref="/today" text="Back" />
+          </IonButtons>
+          <IonTitle>Visit</IonTitle>
+        </IonToolbar>
+      </IonHeader>
+      <IonContent>{body}</IonContent>
+    </IonPage>
+  );
+}
