@@ -1,0 +1,26 @@
+#!/usr/bin/env node
+// npm run bench:sync — push throughput of the sync server against a throwaway PostgreSQL
+// cluster: batches of 500 changes from one and four tablets, beside a plain batched
+// INSERT … ON CONFLICT of the same rows, with a breakdown of where the push time goes.
+// Figures are printed, not asserted. BENCH_BATCHES sets the batches per tablet (default 6).
+import { rmSync } from 'node:fs';
+import { join } from 'node:path';
+import { ensurePostgres, freePort, repoRoot, run, startCluster, stopCluster } from './lib.mjs';
+
+await ensurePostgres();
+const dir = join('/var/tmp', `fuselight-bench-sync-${process.pid}`);
+const url = startCluster({ dir, port: await freePort(), fast: false });
+let failed = false;
+try {
+  await run('npx', ['vitest', 'run', '--config', 'src/sync/bench/vitest.bench.config.mts'], {
+    cwd: join(repoRoot, 'sync-server'),
+    env: { ...process.env, FUSELIGHT_TEST_PG_URL: url, NODE_ENV: 'test' },
+  });
+} catch (error) {
+  failed = true;
+  console.error(error instanceof Error ? error.message : String(error));
+} finally {
+  stopCluster(dir);
+  rmSync(dir, { recursive: true, force: true });
+}
+process.exit(failed ? 1 : 0);
