@@ -13,6 +13,8 @@ import type { AppConfig } from './config/app-config';
 import { ormOptions } from './database/orm-options';
 import { DevicesModule } from './devices/devices.module';
 import { HealthModule } from './health/health.module';
+import { LettersModule } from './letters/letters.module';
+import { MailModule } from './mail/mail.module';
 import { SeedModule } from './seed/seed.module';
 import { SitesModule } from './sites/sites.module';
 import { ConflictsModule } from './conflicts/conflicts.module';
@@ -43,6 +45,8 @@ export class AppModule {
         SyncModule,
         ConflictsModule,
         ReviewModule,
+        LettersModule,
+        MailModule,
       ],
       providers: [
         { provide: APP_GUARD, useClass: JwtAuthGuard },

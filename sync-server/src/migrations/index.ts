@@ -5,10 +5,12 @@ import { Migration20261201000000Sites } from './Migration20261201000000Sites';
 import { Migration20261201010000Identity } from './Migration20261201010000Identity';
 import { Migration20261201020000SyncRecords } from './Migration20261201020000SyncRecords';
 import { Migration20261201040000ReviewDesk } from './Migration20261201040000ReviewDesk';
+import { Migration20261201050000LettersMail } from './Migration20261201050000LettersMail';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
   { name: 'Migration20261201010000Identity', class: Migration20261201010000Identity },
   { name: 'Migration20261201020000SyncRecords', class: Migration20261201020000SyncRecords },
   { name: 'Migration20261201040000ReviewDesk', class: Migration20261201040000ReviewDesk },
+  { name: 'Migration20261201050000LettersMail', class: Migration20261201050000LettersMail },
 ];
