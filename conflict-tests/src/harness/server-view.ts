@@ -37,7 +37,12 @@ export async function serverSnapshot(clinic: Clinic, token: string) {
       .sort((a, b) => `${a.collection}/${a.id}`.localeCompare(`${b.collection}/${b.id}`))
       .map((r) => [
         `${r.collection}/${r.id}`,
-        { version: r.version, deleted: r.deleted, fields: r.fields },
+        {
+          version: r.version,
+          deleted: r.deleted,
+          fields: r.fields,
+          conflicts: [...r.conflicts].sort(),
+        },
       ]),
   );
 }

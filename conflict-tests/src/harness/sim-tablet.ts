@@ -120,7 +120,10 @@ export class SimTablet {
 
   /** Every record as {collection/id: {version, deleted, fields}} for convergence checks. */
   async snapshot(): Promise<
-    Record<string, { version: number; deleted: boolean; fields: Record<string, unknown> }>
+    Record<
+      string,
+      { version: number; deleted: boolean; fields: Record<string, unknown>; conflicts: string[] }
+    >
   > {
     const all = await this.db.records.toArray();
     return Object.fromEntries(
@@ -128,7 +131,12 @@ export class SimTablet {
         .sort((a, b) => `${a.collection}/${a.id}`.localeCompare(`${b.collection}/${b.id}`))
         .map((r) => [
           `${r.collection}/${r.id}`,
-          { version: r.version, deleted: r.deleted, fields: r.fields },
+          {
+            version: r.version,
+            deleted: r.deleted,
+            fields: r.fields,
+            conflicts: [...r.conflicts].sort(),
+          },
         ]),
     );
   }
