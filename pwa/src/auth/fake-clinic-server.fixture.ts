@@ -22,10 +22,19 @@ export const TOMASZ: SessionUser = {
   siteIds: [SITE_A],
 };
 
+export const ROSALIND: SessionUser = {
+  id: '0190c6a0-0000-7000-8000-000000000013',
+  name: 'Rosalind Achterberg',
+  email: 'rosalind@harbourview.test',
+  role: 'admin',
+  siteIds: [SITE_A],
+};
+
 const PASSWORD = 'correct horse battery';
 export const PASSWORDS: Record<string, string> = {
   [AMARA.email]: PASSWORD,
   [TOMASZ.email]: PASSWORD,
+  [ROSALIND.email]: PASSWORD,
 };
 
 function jwtFor(userId: string, exp: number, serial: number): string {
@@ -42,6 +51,12 @@ export interface FakeClinicServer {
   deviceState: 'active' | 'retired' | 'revoked';
   enrolmentCode: string;
   accessTtlSeconds: number;
+  /** Extra routes a test answers itself (admin screens): null means "not mine". */
+  adminRoutes?: (
+    route: string,
+    body: unknown,
+    callerId: string | null,
+  ) => { status: number; body: unknown } | null;
   /** The user id a currently valid access token belongs to. */
   whoseToken(token: string): string | null;
 }
@@ -50,8 +65,8 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
   let serial = 0;
   const access = new Map<string, { userId: string; exp: number }>();
   const refresh = new Map<string, { userId: string; spent: boolean }>();
-  const users = new Map([AMARA, TOMASZ].map((u) => [u.email, u]));
-  const byId = new Map([AMARA, TOMASZ].map((u) => [u.id, u]));
+  const users = new Map([AMARA, TOMASZ, ROSALIND].map((u) => [u.email, u]));
+  const byId = new Map([AMARA, TOMASZ, ROSALIND].map((u) => [u.id, u]));
   const deviceSecret = 'tablet-secret-for-tests';
 
   const json = (status: number, body: unknown) =>
@@ -140,8 +155,11 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
         case 'POST /api/devices/heartbeat':
           if (server.deviceState === 'revoked') return revoked();
           return caller ? json(201, { ok: true }) : json(401, { message: 'Sign in first.' });
-        default:
+        default: {
+          const extra = server.adminRoutes?.(`${method} ${path}`, body, caller);
+          if (extra) return json(extra.status, extra.body);
           return json(404, { message: `No route ${method} ${path}` });
+        }
       }
     },
   };

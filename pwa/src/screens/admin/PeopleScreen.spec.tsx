@@ -1,0 +1,135 @@
+import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
+import { MemoryRouter } from 'react-router-dom';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import {
+  PASSWORDS,
+  ROSALIND,
+  SITE_A,
+  fakeClinicServer,
+} from '../../auth/fake-clinic-server.fixture';
+import { IdentityApi, type AdminUser } from '../../auth/identity-api';
+import { SessionProvider } from '../../auth/SessionProvider';
+import { SessionStore } from '../../auth/session-store';
+import { eraseAllDatabases } from '../../auth/tablet-erasure';
+import PeopleScreen from './PeopleScreen';
+
+const KOFI: AdminUser = {
+  id: '0190c6a0-0000-7000-8000-000000000021',
+  name: 'Kofi Brannagh',
+  email: 'kofi@harbourview.test',
+  role: 'orthoptist',
+  siteIds: [SITE_A],
+  active: true,
+};
+
+async function renderPeople(people: AdminUser[]) {
+  const server = fakeClinicServer(() => Date.now());
+  const seen: { route: string; body: unknown }[] = [];
+  server.adminRoutes = (route, body) => {
+    seen.push({ route, body });
+    if (route === 'GET /api/admin/sites') {
+      return {
+        status: 200,
+        body: [
+          {
+            id: SITE_A,
+            name: 'Harbourview Clinic',
+            kind: 'clinic',
+            address: null,
+            timeZone: 'Europe/London',
+          },
+        ],
+      };
+    }
+    if (route === 'GET /api/admin/users') return { status: 200, body: people };
+    if (route === 'POST /api/admin/users') {
+      const user = {
+        id: '0190c6a0-0000-7000-8000-000000000022',
+        active: true,
+        ...(body as object),
+      } as AdminUser;
+      people = [...people, user];
+      return { status: 201, body: { user, initialPassword: 'tide-lamp-orchid-42' } };
+    }
+    if (route === `PATCH /api/admin/users/${KOFI.id}`) {
+      people = people.map((p) => (p.id === KOFI.id ? { ...p, ...(body as object) } : p));
+      return { status: 200, body: people.find((p) => p.id === KOFI.id) };
+    }
+    return null;
+  };
+  const store = new SessionStore({
+    api: new IdentityApi({ fetch: server.fetch }),
+    countOutbox: async () => 0,
+  });
+  await store.load();
+  await store.signIn({ email: ROSALIND.email, password: PASSWORDS[ROSALIND.email]! });
+  render(
+    <QueryClientProvider
+      client={new QueryClient({ defaultOptions: { queries: { retry: false } } })}
+    >
+      <SessionProvider store={store} background={false}>
+        <MemoryRouter>
+          <PeopleScreen />
+        </MemoryRouter>
+      </SessionProvider>
+    </QueryClientProvider>,
+  );
+  return { seen };
+}
+
+beforeEach(async () => {
+  await eraseAllDatabases();
+});
+afterEach(cleanup);
+
+describe('People', () => {
+  it('invites a person with a role and sites and shows their one-time password once', async () => {
+    const { seen } = await renderPeople([]);
+    expect(await screen.findByText('Nobody has been invited yet.')).toBeTruthy();
+    const user = userEvent.setup();
+    const form = screen.getByRole('form', { name: 'Invite a person' });
+    await user.click(within(form).getByRole('button', { name: 'Invite' }));
+    expect(await within(form).findByText('Enter the person’s name')).toBeTruthy();
+
+    await user.type(within(form).getByLabelText('Name'), 'Priya Castellano');
+    await user.type(within(form).getByLabelText('E-mail address'), 'priya@harbourview.test');
+    await user.selectOptions(within(form).getByLabelText('Role'), 'supervisor');
+    await user.click(await within(form).findByLabelText('Harbourview Clinic'));
+    await user.click(within(form).getByRole('button', { name: 'Invite' }));
+    expect((await screen.findByTestId('initial-password')).textContent).toBe('tide-lamp-orchid-42');
+    expect(seen.find((c) => c.route === 'POST /api/admin/users')?.body).toEqual({
+      name: 'Priya Castellano',
+      email: 'priya@harbourview.test',
+      role: 'supervisor',
+      siteIds: [SITE_A],
+    });
+  });
+
+  it('deactivates a person only after confirming', async () => {
+    const { seen } = await renderPeople([KOFI]);
+    const user = userEvent.setup();
+    await user.click(await screen.findByRole('button', { name: 'Deactivate' }));
+    const dialog = screen.getByRole('alertdialog', { name: 'Deactivate Kofi Brannagh?' });
+    expect(seen.some((c) => c.route.startsWith('PATCH'))).toBe(false);
+    await user.click(within(dialog).getByRole('button', { name: 'Deactivate' }));
+    await waitFor(() =>
+      expect(seen.find((c) => c.route === `PATCH /api/admin/users/${KOFI.id}`)?.body).toEqual({
+        active: false,
+      }),
+    );
+    expect(await screen.findByRole('button', { name: 'Reactivate' })).toBeTruthy();
+  });
+
+  it('changes a person’s role', async () => {
+    const { seen } = await renderPeople([KOFI]);
+    const user = userEvent.setup();
+    await user.selectOptions(await screen.findByLabelText('Role of Kofi Brannagh'), 'outreach');
+    await waitFor(() =>
+      expect(seen.find((c) => c.route === `PATCH /api/admin/users/${KOFI.id}`)?.body).toEqual({
+        role: 'outreach',
+      }),
+    );
+  });
+});

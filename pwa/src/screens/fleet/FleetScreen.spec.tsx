@@ -1,0 +1,145 @@
+import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
+import { MemoryRouter } from 'react-router-dom';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import {
+  PASSWORDS,
+  ROSALIND,
+  SITE_A,
+  fakeClinicServer,
+} from '../../auth/fake-clinic-server.fixture';
+import { IdentityApi, type FleetDevice } from '../../auth/identity-api';
+import { SessionProvider } from '../../auth/SessionProvider';
+import { SessionStore } from '../../auth/session-store';
+import { eraseAllDatabases } from '../../auth/tablet-erasure';
+import FleetScreen from './FleetScreen';
+
+const TABLET_ID = '0190c6a0-0000-7000-8000-0000000000e1';
+
+async function renderFleet(devices: FleetDevice[]) {
+  const server = fakeClinicServer(() => Date.now());
+  const seen: { route: string; body: unknown }[] = [];
+  server.adminRoutes = (route, body, caller) => {
+    if (!caller) return { status: 401, body: { message: 'Sign in first.' } };
+    seen.push({ route, body });
+    switch (route) {
+      case 'GET /api/admin/sites':
+        return {
+          status: 200,
+          body: [
+            {
+              id: SITE_A,
+              name: 'Harbourview Clinic',
+              kind: 'clinic',
+              address: null,
+              timeZone: 'Europe/London',
+            },
+          ],
+        };
+      case 'GET /api/admin/devices':
+        return { status: 200, body: devices };
+      case 'POST /api/admin/devices':
+        return {
+          status: 201,
+          body: {
+            deviceId: TABLET_ID,
+            enrolmentCode: 'H4RB0URV',
+            expiresAt: '2026-12-02T08:00:00.000Z',
+            qrPayload: 'http://tablet.test/enrol#code=H4RB0URV',
+          },
+        };
+      case `POST /api/admin/devices/${TABLET_ID}/revoke`:
+        devices = devices.map((d) => (d.id === TABLET_ID ? { ...d, state: 'revoked' } : d));
+        return { status: 200, body: devices[0] };
+      default:
+        return null;
+    }
+  };
+  const store = new SessionStore({
+    api: new IdentityApi({ fetch: server.fetch }),
+    countOutbox: async () => 0,
+  });
+  await store.load();
+  await store.signIn({ email: ROSALIND.email, password: PASSWORDS[ROSALIND.email]! });
+  render(
+    <QueryClientProvider
+      client={new QueryClient({ defaultOptions: { queries: { retry: false } } })}
+    >
+      <SessionProvider store={store} background={false}>
+        <MemoryRouter>
+          <FleetScreen />
+        </MemoryRouter>
+      </SessionProvider>
+    </QueryClientProvider>,
+  );
+  return { seen };
+}
+
+const tablet: FleetDevice = {
+  id: TABLET_ID,
+  label: 'Orthoptics room 2',
+  state: 'active',
+  siteIds: [SITE_A],
+  lastSeenAt: '2026-12-01T09:30:00.000Z',
+  appVersion: '0.1.0',
+  outboxSize: 4,
+};
+
+beforeEach(async () => {
+  await eraseAllDatabases();
+});
+afterEach(cleanup);
+
+describe('the Fleet', () => {
+  it('says so in words when no tablet is registered', async () => {
+    await renderFleet([]);
+    expect(await screen.findByText('No tablets are registered yet.')).toBeTruthy();
+  });
+
+  it('shows each tablet’s last contact, app version and Outbox size', async () => {
+    await renderFleet([tablet]);
+    const row = await screen.findByRole('row', { name: /Orthoptics room 2/ });
+    expect(row.textContent).toContain('In use');
+    expect(row.textContent).toContain('Harbourview Clinic');
+    expect(row.textContent).toContain('0.1.0');
+    expect(within(row).getByText('4')).toBeTruthy();
+    expect(row.textContent).toContain(new Date('2026-12-01T09:30:00.000Z').toLocaleString());
+  });
+
+  it('registers a tablet for a site and shows its one-time code as a QR code', async () => {
+    const { seen } = await renderFleet([]);
+    const user = userEvent.setup();
+    await user.click(screen.getByRole('button', { name: 'Register tablet' }));
+    expect(await screen.findByText('Give the tablet a name people will recognise')).toBeTruthy();
+    expect(screen.getByText('Choose at least one site the tablet serves')).toBeTruthy();
+
+    await user.type(screen.getByLabelText('Tablet name'), 'Outreach bag 1');
+    await user.click(await screen.findByLabelText('Harbourview Clinic'));
+    await user.click(screen.getByRole('button', { name: 'Register tablet' }));
+    expect((await screen.findByTestId('enrolment-code')).textContent).toBe('H4RB0URV');
+    expect(document.querySelector('.fl-id-qr svg')).not.toBeNull();
+    expect(seen.find((c) => c.route === 'POST /api/admin/devices')?.body).toEqual({
+      label: 'Outreach bag 1',
+      siteIds: [SITE_A],
+    });
+  });
+
+  it('revokes a tablet only after the admin confirms', async () => {
+    const { seen } = await renderFleet([tablet]);
+    const user = userEvent.setup();
+    await user.click(await screen.findByRole('button', { name: 'Revoke Orthoptics room 2' }));
+    const dialog = screen.getByRole('alertdialog', { name: 'Revoke Orthoptics room 2?' });
+    expect(dialog.textContent).toContain('4 changes it has not sent will be lost');
+    expect(seen.some((c) => c.route.endsWith('/revoke'))).toBe(false);
+    await user.click(within(dialog).getByRole('button', { name: 'Revoke now' }));
+    await waitFor(() =>
+      expect(seen.some((c) => c.route === `POST /api/admin/devices/${TABLET_ID}/revoke`)).toBe(
+        true,
+      ),
+    );
+    expect((await screen.findByRole('row', { name: /Orthoptics room 2/ })).textContent).toContain(
+      'Revoked',
+    );
+  });
+});
