@@ -50,7 +50,20 @@ export class AuditService {
 
   /** Appends one event inside the caller's transaction (`em` is its transactional manager). */
   async record(em: EntityManager, event: AuditInput): Promise<void> {
-    await em.insert(AuditEvent, {
+    await em.insert(AuditEvent, this.row(event));
+  }
+
+  /** Appends several events in one statement (a sync push records one per change). */
+  async recordMany(em: EntityManager, events: AuditInput[]): Promise<void> {
+    if (events.length === 0) return;
+    await em.insertMany(
+      AuditEvent,
+      events.map((event) => this.row(event)),
+    );
+  }
+
+  private row(event: AuditInput) {
+    return {
       id: this.ids.uuid(),
       occurredAt: this.clock.now(),
       scope: event.scope ?? scopeOfKind(event.kind),
@@ -61,6 +74,6 @@ export class AuditService {
       subjectType: event.subjectType,
       subjectId: event.subjectId ?? null,
       detail: (withoutSecrets(event.detail ?? {}) as Record<string, unknown>) ?? {},
-    });
+    };
   }
 }

@@ -139,6 +139,29 @@ describe('the audit trail', () => {
     expect(cursor.body.message).toContain('query.cursor');
   });
 
+  it('appends several events in one call, in order, with the caller’s transaction', async () => {
+    await t.em().transactional(async (em) => {
+      await audit().recordMany(em, [
+        { kind: 'record.changed', siteId: siteB, subjectType: 'visit', subjectId: 'many-1' },
+        {
+          kind: 'record.changed',
+          siteId: siteB,
+          subjectType: 'visit',
+          subjectId: 'many-2',
+          detail: { token: 'x' },
+        },
+      ]);
+    });
+    const rows = await t
+      .em()
+      .getConnection()
+      .execute<{ subject_id: string; detail: unknown }[]>(
+        `select subject_id, detail from audit_event where subject_id like 'many-%' order by seq`,
+      );
+    expect(rows.map((row) => row.subject_id)).toEqual(['many-1', 'many-2']);
+    expect(rows[1]?.detail).toEqual({});
+  });
+
   it('files kinds under account or clinical by their prefix', () => {
     expect(scopeOfKind('auth.sign_in')).toBe('account');
     expect(scopeOfKind('device.revoked')).toBe('account');
