@@ -29,6 +29,7 @@ import { useSession } from '../auth/session-context';
 import { SessionProvider } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
 import {
+  ChartScreen,
   EnrolScreen,
   FleetScreen,
   OutboxScreen,
@@ -41,6 +42,7 @@ import {
   TabletErasedScreen,
   TodayScreen,
   UnlockScreen,
+  VisitScreen,
 } from './routes';
 
 const queryClient = new QueryClient({
@@ -80,6 +82,8 @@ function SignedInTabs() {
     <IonTabs>
       <IonRouterOutlet>
         <Route path="/today" element={clinical(<TodayScreen />)} />
+        <Route path="/chart/:patientId" element={clinical(<ChartScreen />)} />
+        <Route path="/visit/:visitId" element={clinical(<VisitScreen />)} />
         <Route path="/outbox" element={clinical(<OutboxScreen />)} />
         <Route
           path="/review"

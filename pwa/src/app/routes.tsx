@@ -2,6 +2,8 @@
 import { lazy } from 'react';
 
 export const TodayScreen = lazy(() => import('../screens/today/TodayScreen'));
+export const ChartScreen = lazy(() => import('../screens/chart/ChartScreen'));
+export const VisitScreen = lazy(() => import('../screens/visit/VisitScreen'));
 export const OutboxScreen = lazy(() => import('../screens/outbox/OutboxScreen'));
 export const ReviewDeskScreen = lazy(() => import('../screens/review/ReviewDeskScreen'));
 export const FleetScreen = lazy(() => import('../screens/fleet/FleetScreen'));
