@@ -29,6 +29,7 @@ import { useSession } from '../auth/session-context';
 import { SessionProvider } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
 import {
+  BenchScreen,
   ChartScreen,
   EnrolScreen,
   FleetScreen,
@@ -85,6 +86,7 @@ function SignedInTabs() {
         <Route path="/chart/:patientId" element={clinical(<ChartScreen />)} />
         <Route path="/visit/:visitId" element={clinical(<VisitScreen />)} />
         <Route path="/outbox" element={clinical(<OutboxScreen />)} />
+        <Route path="/bench/:visitId" element={clinical(<BenchScreen />)} />
         <Route
           path="/review"
           element={<RequireArea area="review">{screen(<ReviewDeskScreen />)}</RequireArea>}

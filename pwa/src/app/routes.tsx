@@ -15,3 +15,4 @@ export const PinSetupScreen = lazy(() => import('../screens/unlock/PinSetupScree
 export const PersonScreen = lazy(() => import('../screens/unlock/PersonScreen'));
 export const PeopleScreen = lazy(() => import('../screens/admin/PeopleScreen'));
 export const SitesScreen = lazy(() => import('../screens/admin/SitesScreen'));
+export const BenchScreen = lazy(() => import('../screens/bench/BenchScreen'));

@@ -7,6 +7,7 @@ import {
   type AngleAxis,
   type AngleUnit,
   SIGN_WORDS,
+  type SignWords,
   UNIT_SYMBOL,
   describeReading,
   otherUnitReading,
@@ -34,6 +35,8 @@ export interface AngleControlProps {
   steps?: readonly [number, number, number];
   /** Direction a first step goes in when nothing is recorded yet. */
   defaultSign?: 1 | -1;
+  /** Other sign words where the axis's own do not fit, e.g. up / down on a vertical control. */
+  signWords?: { positive: SignWords; negative: SignWords };
   /** Extra words under the label, e.g. "measured from the subjective angle". */
   hint?: string;
   disabled?: boolean;
@@ -53,6 +56,7 @@ export function AngleControl({
   steps = [0.5, 1, 5],
   defaultSign = 1,
   hint,
+  signWords,
   disabled = false,
 }: AngleControlProps) {
   const clinicConversion = useContext(ConversionContext);
@@ -77,7 +81,7 @@ export function AngleControl({
       : chosenSign;
   const limit = sign > 0 ? max : -min;
   const magnitude = value === null ? 0 : Math.abs(value);
-  const words = SIGN_WORDS[axis];
+  const words = signWords ?? SIGN_WORDS[axis];
   const showOtherUnit = axis !== 'torsion';
 
   const commit = (next: number | null) => {
@@ -97,7 +101,7 @@ export function AngleControl({
       const flipped = -value;
       if (flipped < min || flipped > max) {
         setEntryError(
-          `${label}: ${describeReading(axis, unit, flipped)} is outside the scale; it must be ${describeRange(min, max, UNIT_SYMBOL[unit], { signed: true })}`,
+          `${label}: ${describeReading(words, unit, flipped)} is outside the scale; it must be ${describeRange(min, max, UNIT_SYMBOL[unit], { signed: true })}`,
         );
         return;
       }
@@ -114,7 +118,7 @@ export function AngleControl({
   };
 
   const submitTyped = () => {
-    const parsed = parseTypedReading(axis, typed, sign);
+    const parsed = parseTypedReading(words, typed, sign);
     if (!parsed.ok) {
       setEntryError(`${label}: ${parsed.problem}.`);
       return;
@@ -164,14 +168,14 @@ export function AngleControl({
   const valueText =
     value === null
       ? 'not recorded'
-      : `${spokenReading(axis, unit, value)}${other ? `, ${other.spoken}` : ''}`;
+      : `${spokenReading(words, unit, value)}${other ? `, ${other.spoken}` : ''}`;
   const previous = history[history.length - 1];
   const previousText =
     previous === undefined
       ? ''
       : previous === null
         ? 'not recorded'
-        : describeReading(axis, unit, previous);
+        : describeReading(words, unit, previous);
   const errorId = `${baseId}-error`;
   const hintId = `${baseId}-hint`;
   const labelId = `${baseId}-label`;
@@ -232,7 +236,7 @@ export function AngleControl({
           onKeyDown={onReadoutKey}
         >
           <span className="fl-angle__value" data-testid="angle-value">
-            {value === null ? '—' : describeReading(axis, unit, value)}
+            {value === null ? '—' : describeReading(words, unit, value)}
           </span>
           {other ? (
             <span className="fl-angle__other" data-testid="angle-other-unit">

@@ -46,17 +46,20 @@ export function oneDecimal(value: number): string {
 }
 
 /** "eso 12.0°", "L/R 3.0Δ", "0.0°" */
-export function describeReading(axis: AngleAxis, unit: AngleUnit, value: number): string {
+type Words = AngleAxis | { positive: SignWords; negative: SignWords };
+const wordsOf = (axis: Words) => (typeof axis === 'string' ? SIGN_WORDS[axis] : axis);
+
+export function describeReading(axis: Words, unit: AngleUnit, value: number): string {
   const magnitude = `${oneDecimal(Math.abs(value))}${UNIT_SYMBOL[unit]}`;
   if (value === 0) return magnitude;
-  const words = value > 0 ? SIGN_WORDS[axis].positive : SIGN_WORDS[axis].negative;
+  const words = value > 0 ? wordsOf(axis).positive : wordsOf(axis).negative;
   return `${words.short} ${magnitude}`;
 }
 
-export function spokenReading(axis: AngleAxis, unit: AngleUnit, value: number): string {
+export function spokenReading(axis: Words, unit: AngleUnit, value: number): string {
   const magnitude = `${oneDecimal(Math.abs(value))} ${UNIT_SPOKEN[unit]}`;
   if (value === 0) return `zero ${UNIT_SPOKEN[unit]}`;
-  const words = value > 0 ? SIGN_WORDS[axis].positive : SIGN_WORDS[axis].negative;
+  const words = value > 0 ? wordsOf(axis).positive : wordsOf(axis).negative;
   return `${words.spoken} ${magnitude}`;
 }
 
@@ -116,12 +119,12 @@ const MINUS_SIGNS = /[−–—]/g;
  * Reads a typed value: "12.5", "-4", "−4", "+3", or with the trade's words ("exo 4", "4 exo",
  * "R/L 2"). An explicit sign or word wins; a bare number takes the direction chosen on the toggle.
  */
-export function parseTypedReading(axis: AngleAxis, typed: string, chosenSign: 1 | -1): ParsedEntry {
+export function parseTypedReading(axis: Words, typed: string, chosenSign: 1 | -1): ParsedEntry {
   let text = typed.trim().toLowerCase().replace(MINUS_SIGNS, '-').replace(',', '.');
   text = text.replace(/[°δ]|deg(rees?)?|pd/g, '').trim();
   if (text === '') return { ok: false, problem: 'is empty; type a number such as 12.5' };
   let sign: 1 | -1 | null = null;
-  const { positive, negative } = SIGN_WORDS[axis];
+  const { positive, negative } = wordsOf(axis);
   for (const [words, s] of [
     [negative, -1],
     [positive, 1],

@@ -8,6 +8,7 @@ export { ConversionContext } from './conversion-context';
 export {
   type AngleAxis,
   type AngleUnit,
+  type SignWords,
   SIGN_WORDS,
   describeReading,
   otherUnitReading,

@@ -1,0 +1,223 @@
+import { cleanup, screen, waitFor } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { CLINICAL_CAUTION } from '@fuselight/shared';
+import { benchFixture } from './bench-harness.fixture';
+
+let bench: Awaited<ReturnType<typeof benchFixture>>;
+
+beforeEach(async () => {
+  bench = await benchFixture();
+});
+afterEach(async () => {
+  cleanup();
+  await bench.close();
+});
+
+const saved = () => screen.findByText('Saved on this tablet');
+
+describe('the Bench', () => {
+  it('opens at the step named in the address and lists every step in the trade’s order', async () => {
+    bench.renderBench('setup');
+    await screen.findByRole('heading', { name: 'Setup', level: 2 });
+    const steps = screen.getByRole('navigation', { name: 'Bench steps' }).querySelectorAll('li');
+    expect([...steps].map((li) => li.textContent?.replace(/^\d+/, ''))).toEqual([
+      'Setup',
+      'Simultaneous perception',
+      'Subjective angle',
+      'Objective angle',
+      'Suppression scotoma',
+      'Fusion',
+      'Fusional ranges',
+      'Gross stereopsis',
+      'Summary',
+    ]);
+    expect(screen.getByText('Nothing entered yet')).toBeTruthy();
+  });
+
+  it('saves a setup answer to the tablet with its Outbox entry before it says Saved', async () => {
+    const user = userEvent.setup();
+    bench.renderBench('setup');
+    const zeroed = await screen.findByRole('group', { name: 'Dials zeroed' });
+    await user.click(zeroed.querySelector('input[value="yes"]')!);
+    await saved();
+    expect((await bench.section('amblyoscopeSetup'))?.dialsZeroed).toBe(true);
+    const entries = await bench.outbox.listEntries();
+    expect(entries.some((e) => e.collection === 'amblyoscopeSetup')).toBe(true);
+  });
+
+  it('refuses an interpupillary distance that is not a number or off the scale, naming the field', async () => {
+    const user = userEvent.setup();
+    bench.renderBench('setup');
+    const ipd = await screen.findByRole('textbox', { name: 'Interpupillary distance (mm)' });
+    await user.type(ipd, 'sixty{Enter}');
+    expect(screen.getByRole('alert').textContent).toContain(
+      'Interpupillary distance: “sixty” is not a number',
+    );
+    await user.clear(ipd);
+    await user.type(ipd, '95{Enter}');
+    expect(screen.getByRole('alert').textContent).toContain(
+      'Interpupillary distance must be between 40 and 80 mm',
+    );
+    expect((ipd as HTMLInputElement).value).toBe('95');
+    expect(await bench.section('amblyoscopeSetup')).toBeUndefined();
+    await user.clear(ipd);
+    await user.type(ipd, '62{Enter}');
+    await saved();
+    expect((await bench.section('amblyoscopeSetup'))?.interpupillaryDistanceMm).toBe(62);
+  });
+
+  it('skips a step with a reason, shows it not done, and takes it back to test it after all', async () => {
+    const user = userEvent.setup();
+    bench.renderBench('simultaneous-perception');
+    await user.click(await screen.findByRole('button', { name: 'Skip simultaneous perception…' }));
+    await user.click(screen.getByRole('button', { name: 'Not tested: patient tired' }));
+    await screen.findByText('not tested: patient tired');
+    expect((await bench.section('simultaneousPerception'))?.skippedReason).toBe(
+      'not tested: patient tired',
+    );
+    await waitFor(() =>
+      expect(
+        screen.getByRole('button', { name: /Simultaneous perception/, current: 'step' })
+          .textContent,
+      ).toContain('not done'),
+    );
+    await user.click(screen.getByRole('button', { name: 'Test simultaneous perception now' }));
+    await screen.findByRole('group', { name: 'Both pictures seen together?' });
+    await waitFor(async () =>
+      expect((await bench.section('simultaneousPerception'))?.skippedReason).toBeNull(),
+    );
+  });
+
+  it('asks for a reason before a step is skipped', async () => {
+    const user = userEvent.setup();
+    bench.renderBench('fusion');
+    await user.click(await screen.findByRole('button', { name: 'Skip fusion…' }));
+    await user.click(screen.getByRole('button', { name: 'Record as not tested' }));
+    expect(screen.getByRole('alert').textContent).toContain('Reason not done cannot be empty');
+    expect(await bench.section('fusion')).toBeUndefined();
+  });
+
+  it('shows the correspondence live as the objective angle is entered, with the caution', async () => {
+    const user = userEvent.setup();
+    await bench.seed('amblyoscopeAngles', { subjectiveHorizontalDeg: 0 });
+    bench.renderBench('objective-angle');
+    const result = await screen.findByTestId('correspondence-result');
+    expect(result.textContent).toContain('Record both the subjective and the objective');
+    const box = screen.getByRole('textbox', { name: 'Type Objective horizontal angle' });
+    await user.type(box, 'eso 12{Enter}');
+    // Angle of anomaly = objective − subjective (Millodot); subjective ≈ 0 with a deviated
+    // objective angle is harmonious ARC (Stedman's), tolerance 5° (clinic default).
+    await waitFor(() =>
+      expect(screen.getByTestId('correspondence-result').textContent).toContain(
+        'harmonious ARC · angle of anomaly 12.0°',
+      ),
+    );
+    expect(screen.getByTestId('correspondence-result').textContent).toContain(CLINICAL_CAUTION);
+    await saved();
+    expect((await bench.section('amblyoscopeAngles'))?.objectiveHorizontalDeg).toBe(12);
+    await user.type(box, 'eso 2{Enter}');
+    await waitFor(() =>
+      expect(screen.getByTestId('correspondence-result').textContent).toContain('NRC'),
+    );
+  });
+
+  it('calls a single picture missing a mark suppression, not fusion', async () => {
+    const user = userEvent.setup();
+    bench.renderBench('fusion');
+    const left = await screen.findByRole('group', { name: 'Left control mark seen' });
+    await user.click(left.querySelector('input[value="no"]')!);
+    expect((await screen.findByText(/The left control mark was not seen/)).textContent).toContain(
+      'suppression of the left eye, not fusion',
+    );
+  });
+
+  it('flags a higher BSV grade recorded over an absent one where it is entered', async () => {
+    const user = userEvent.setup();
+    await bench.seed('simultaneousPerception', { result: 'absent', suppressingEye: 'left' });
+    bench.renderBench('fusion');
+    const result = await screen.findByRole('group', { name: 'Fusion' });
+    await user.click(result.querySelector('input[value="present"]')!);
+    expect((await screen.findByText(/BSV grades disagree/)).parentElement?.textContent).toContain(
+      'Fusion is recorded as present while simultaneous perception is absent',
+    );
+  });
+
+  it('derives range amplitudes from the subjective angle, names the norms table and notes proximal convergence', async () => {
+    const user = userEvent.setup();
+    await bench.seed('amblyoscopeAngles', { subjectiveHorizontalDeg: 2 });
+    bench.renderBench('fusional-ranges');
+    await screen.findByText(
+      /Compared with: Amblyoscope fusional amplitudes \(Fuselight defaults\), version 1\.0\.0/,
+    );
+    await user.type(screen.getByRole('textbox', { name: 'Type Divergence break' }), 'exo 4{Enter}');
+    await user.type(
+      screen.getByRole('textbox', { name: 'Type Convergence break' }),
+      'eso 40{Enter}',
+    );
+    await waitFor(() =>
+      expect(screen.getByTestId('ranges-result').textContent).toContain('divergence: break 6.0°'),
+    );
+    expect(screen.getByTestId('ranges-result').textContent).toContain('convergence: break 38.0°');
+    expect(screen.getByTestId('proximal-convergence-note').textContent).toContain(
+      'proximal convergence often inflates convergence ranges',
+    );
+    await saved();
+    const stored = await bench.section('fusionalRanges');
+    expect(stored?.divergenceBreakDeg).toBe(-4);
+    expect(stored?.normsTable).toBe('fuselight.fusional-norms.amblyoscope@1.0.0');
+  });
+
+  it('refuses a recovery past the break in words and keeps the entry', async () => {
+    const user = userEvent.setup();
+    await bench.seed('amblyoscopeAngles', { subjectiveHorizontalDeg: 0 });
+    await bench.seed('fusionalRanges', { convergenceBreakDeg: 20 });
+    bench.renderBench('fusional-ranges');
+    await user.type(
+      await screen.findByRole('textbox', { name: 'Type Convergence recovery' }),
+      'eso 25{Enter}',
+    );
+    await waitFor(() =>
+      expect(screen.getByTestId('ranges-result').textContent).toContain(
+        'convergence.recovery: must lie between the starting angle',
+      ),
+    );
+  });
+
+  it('draws the suppression scotoma around the fovea from the objective angle', async () => {
+    const user = userEvent.setup();
+    await bench.seed('amblyoscopeAngles', { objectiveHorizontalDeg: 10 });
+    await bench.seed('suppressionScotoma', {
+      deviatingEye: 'left',
+      horizontalLostConvergentDeg: 14,
+      verticalLostUpperDeg: 3,
+      verticalLostLowerDeg: -2,
+    });
+    bench.renderBench('suppression-scotoma');
+    await user.type(
+      await screen.findByRole('textbox', { name: 'Type Picture lost, divergent side' }),
+      'eso 7{Enter}',
+    );
+    const map = await screen.findByRole('img', { name: /Scotoma of the left eye/ });
+    expect(map.getAttribute('aria-label')).toBe(
+      'Scotoma of the left eye: 3.0° divergent to 4.0° convergent (width 7.0°), 3.0° up to 2.0° down; it covers the fovea.',
+    );
+    const ellipse = screen.getByTestId('scotoma-region');
+    expect(ellipse.getAttribute('rx')).toBe('3.5');
+    expect(ellipse.getAttribute('cx')).toBe('0.5');
+  });
+
+  it('records stereo trials through the repository and sums them up with the caution', async () => {
+    const user = userEvent.setup();
+    bench.renderBench('gross-stereopsis', () => 0.1); // every presentation "toward"
+    await user.click(await screen.findByRole('button', { name: 'Patient says: toward' }));
+    await saved();
+    expect((await bench.section('grossStereopsis'))?.trials).toEqual([
+      { presented: 'toward', answer: 'toward', correct: true },
+    ]);
+    await user.click(screen.getByRole('button', { name: /Next: Summary/ }));
+    const summary = await screen.findByRole('heading', { name: 'Summary', level: 2 });
+    expect(summary.closest('section')?.textContent).toContain(CLINICAL_CAUTION);
+    expect(summary.closest('section')?.textContent).toContain('4 more right answers in a row');
+  });
+});
