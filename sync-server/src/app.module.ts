@@ -2,6 +2,7 @@ import { MikroOrmModule } from '@mikro-orm/nestjs';
 import { Module, type DynamicModule } from '@nestjs/common';
 import { APP_FILTER, APP_GUARD, APP_PIPE } from '@nestjs/core';
 import { AdminModule } from './admin/admin.module';
+import { AttachmentsModule } from './attachments/attachments.module';
 import { AuditModule } from './audit/audit.module';
 import { AuthCoreModule } from './auth/auth-core.module';
 import { AuthModule } from './auth/auth.module';
@@ -47,6 +48,7 @@ export class AppModule {
         ReviewModule,
         LettersModule,
         MailModule,
+        AttachmentsModule,
       ],
       providers: [
         { provide: APP_GUARD, useClass: JwtAuthGuard },
