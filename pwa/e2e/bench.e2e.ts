@@ -1,0 +1,359 @@
+// The Bench in Debian's Chromium at a tablet viewport, against the real server and an empty
+// migrated database: people and tablets are made here. A clinician on an enrolled tablet goes
+// offline, registers a patient and charts a full Bench session, reloads offline and finds it all,
+// then goes online and the records reach the server. A second tablet edits other fields of the
+// same visit and both edits survive. Axe checks each Bench step.
+import { randomUUID } from 'node:crypto';
+import AxeBuilder from '@axe-core/playwright';
+import { hash } from '@node-rs/argon2';
+import pg from 'pg';
+import type { BrowserContext, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { baseUrl, launchTablet, screenshot } from './support/browser';
+
+const run = randomUUID().slice(0, 8);
+const siteId = randomUUID();
+const siteName = `Harbour Orthoptics ${run}`;
+const admin = {
+  id: randomUUID(),
+  name: 'Tomas Ardent',
+  email: `tomas.${run}@harbour.test`,
+  password: `admin-pass-${run}`,
+  role: 'admin',
+};
+const clinician = {
+  id: randomUUID(),
+  name: 'Priya Lund',
+  email: `priya.${run}@harbour.test`,
+  password: `clinician-pass-${run}`,
+  role: 'orthoptist',
+};
+const patient = { given: 'Wren', family: `Calloway${run}`, dob: '2017-03-14', number: `HB-${run}` };
+
+function databaseUrl(): string {
+  const url = process.env.FUSELIGHT_E2E_DATABASE_URL;
+  if (!url)
+    throw new Error(
+      'FUSELIGHT_E2E_DATABASE_URL is not set: run end-to-end tests through `npm test`.',
+    );
+  return url;
+}
+
+async function withDb<T>(work: (client: pg.Client) => Promise<T>): Promise<T> {
+  const client = new pg.Client({ connectionString: databaseUrl() });
+  await client.connect();
+  try {
+    return await work(client);
+  } finally {
+    await client.end();
+  }
+}
+
+async function seedPeople(): Promise<void> {
+  await withDb(async (client) => {
+    await client.query(
+      `insert into "site" ("id", "name", "kind", "time_zone") values ($1, $2, 'clinic', 'Europe/London')`,
+      [siteId, siteName],
+    );
+    for (const person of [admin, clinician]) {
+      await client.query(
+        `insert into "app_user" ("id", "email", "name", "role", "password_hash", "created_at", "updated_at")
+         values ($1, $2, $3, $4, $5, now(), now())`,
+        [person.id, person.email, person.name, person.role, await hash(person.password)],
+      );
+      await client.query(`insert into "user_site" ("user_id", "site_id") values ($1, $2)`, [
+        person.id,
+        siteId,
+      ]);
+    }
+  });
+}
+
+async function serverFields(collection: string, visitId: string) {
+  return withDb(async (client) => {
+    const result = await client.query<{ fields: Record<string, unknown> }>(
+      `select "fields" from "sync_record" where "collection" = $1 and "fields"->>'visitId' = $2 and not "deleted"`,
+      [collection, visitId],
+    );
+    return result.rows.map((row) => row.fields);
+  });
+}
+
+async function until<T>(what: string, probe: () => Promise<T | null | undefined | false>) {
+  const deadline = Date.now() + 45_000;
+  for (;;) {
+    const value = await probe();
+    if (value) return value;
+    if (Date.now() > deadline) throw new Error(`Timed out waiting for ${what}`);
+    await new Promise((resolve) => setTimeout(resolve, 500));
+  }
+}
+
+async function signIn(page: Page, person: { email: string; password: string }) {
+  await page.getByRole('heading', { name: 'Sign in' }).first().waitFor();
+  await page.getByLabel('E-mail address').fill(person.email);
+  await page.getByLabel('Password').fill(person.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+}
+
+/** Registers a tablet on the Fleet (admin page) and enrols `tablet` with the code. */
+async function enrolTablet(adminPage: Page, tablet: BrowserContext, name: string): Promise<Page> {
+  await adminPage.goto(`${baseUrl()}/fleet`);
+  await adminPage.getByRole('heading', { name: 'Fleet' }).first().waitFor();
+  await adminPage.getByLabel('Tablet name').fill(name);
+  await adminPage.getByLabel(siteName).check();
+  await adminPage.getByRole('button', { name: 'Register tablet' }).click();
+  const codeLocator = adminPage.getByTestId('enrolment-code');
+  await codeLocator.waitFor();
+  const code = (await codeLocator.textContent())?.trim() ?? '';
+  const page = await tablet.newPage();
+  await page.goto(`${baseUrl()}/enrol`);
+  await page.getByLabel('Enrolment code').fill(code);
+  await page.getByRole('button', { name: 'Enrol', exact: true }).click();
+  await signIn(page, clinician);
+  await page.getByRole('heading', { name: 'PIN for offline use' }).first().waitFor();
+  await page.getByLabel('New PIN (4 to 8 digits)').fill('582913');
+  await page.getByLabel('The same PIN again').fill('582913');
+  await page.getByRole('button', { name: 'Save PIN' }).click();
+  await page.getByRole('heading', { name: 'Today' }).first().waitFor();
+  // The shell must be precached before the tablet goes offline.
+  await page.evaluate(async () => {
+    await navigator.serviceWorker.ready;
+  });
+  return page;
+}
+
+async function axeStep(page: Page, step: string) {
+  const results = await new AxeBuilder({ page }).include('.fl-bench').analyze();
+  const serious = results.violations.filter(
+    (v) => v.impact === 'serious' || v.impact === 'critical',
+  );
+  expect(
+    serious.map((v) => `${step}: ${v.id} ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`),
+  ).toEqual([]);
+}
+
+async function goStep(page: Page, title: string) {
+  await page
+    .getByRole('navigation', { name: 'Bench steps' })
+    .getByRole('button', { name: new RegExp(title) })
+    .click();
+  await page.getByRole('heading', { name: title, level: 2 }).waitFor();
+}
+
+async function typeAngle(page: Page, label: string, text: string) {
+  const box = page.getByRole('textbox', { name: `Type ${label}`, exact: true });
+  await box.fill(text);
+  await box.press('Enter');
+}
+
+const savedHere = (page: Page) =>
+  page.locator('.fl-bench-save--saved, .fl-bench-save').getByText('Saved on this tablet').waitFor();
+
+describe('the Bench on an enrolled tablet', () => {
+  let desk: BrowserContext;
+  let tabletA: BrowserContext;
+  let tabletB: BrowserContext;
+  let adminPage: Page;
+  let page: Page;
+  let visitId = '';
+
+  beforeAll(async () => {
+    await seedPeople();
+    desk = await launchTablet();
+    tabletA = await launchTablet();
+    tabletB = await launchTablet();
+    adminPage = await desk.newPage();
+    await adminPage.goto(baseUrl());
+    await signIn(adminPage, admin);
+    await adminPage.getByRole('heading', { name: 'Fleet' }).first().waitFor();
+  });
+  afterAll(async () => {
+    await desk?.close();
+    await tabletA?.close();
+    await tabletB?.close();
+  });
+
+  it('charts a full Bench session offline, keeps it through a reload and syncs it', async () => {
+    page = await enrolTablet(adminPage, tabletA, `Bench tablet A ${run}`);
+    await tabletA.setOffline(true);
+
+    // Register the patient and start the visit with the network off.
+    await page.getByRole('button', { name: 'New patient' }).click();
+    await page.getByLabel('Given name').fill(patient.given);
+    await page.getByLabel('Family name').fill(patient.family);
+    await page.getByLabel('Date of birth').fill(patient.dob);
+    await page.getByLabel('Clinic number').fill(patient.number);
+    await page.getByRole('button', { name: 'Save patient' }).click();
+    await page.waitForURL(/\/chart\//);
+    await page.goto(`${baseUrl()}/today`);
+    await page.getByLabel('Name, clinic number or date of birth').fill(patient.family);
+    await page
+      .getByRole('button', { name: `Start visit: ${patient.family} ${patient.given}` })
+      .or(page.getByRole('button', { name: new RegExp(`Start visit: .*${patient.family}`) }))
+      .first()
+      .click();
+    await page.waitForURL(/\/visit\/[0-9a-f-]{36}/);
+    visitId = /\/visit\/([0-9a-f-]{36})/.exec(page.url())![1]!;
+
+    await page.goto(`${baseUrl()}/bench/${visitId}`);
+    await page.getByRole('heading', { name: 'Setup', level: 2 }).waitFor();
+    expect(await page.locator('ion-tab-bar').isVisible()).toBe(false);
+    await page.getByTestId('bench-sync').getByText('Offline').waitFor();
+
+    // Setup.
+    await page.getByLabel('Interpupillary distance (mm)').fill('58');
+    await page.getByLabel('Interpupillary distance (mm)').press('Enter');
+    await page.getByRole('group', { name: 'Own correction worn' }).getByText('Yes').click();
+    await page.getByRole('group', { name: 'Fixing eye' }).getByText('Right eye').click();
+    await page.getByRole('group', { name: 'Locked tube' }).getByText('Right tube').click();
+    await page.getByRole('group', { name: 'Dials zeroed' }).getByText('Yes').click();
+    await savedHere(page);
+    await axeStep(page, 'setup');
+    await screenshot(page, 'bench-setup');
+
+    // Simultaneous perception.
+    await goStep(page, 'Simultaneous perception');
+    await page
+      .getByRole('group', { name: 'Both pictures seen together?' })
+      .getByText('Present')
+      .click();
+    await savedHere(page);
+    await axeStep(page, 'simultaneous perception');
+
+    // Subjective and objective angles.
+    await goStep(page, 'Subjective angle');
+    await typeAngle(page, 'Subjective horizontal angle', 'eso 1');
+    await typeAngle(page, 'Subjective vertical angle', 'R/L 2');
+    await savedHere(page);
+    await axeStep(page, 'subjective angle');
+    await goStep(page, 'Objective angle');
+    await typeAngle(page, 'Objective horizontal angle', 'eso 14');
+    await page
+      .getByTestId('correspondence-result')
+      .getByText(/harmonious ARC · angle of anomaly 13\.0°/)
+      .waitFor();
+    await savedHere(page);
+    await axeStep(page, 'objective angle');
+    await screenshot(page, 'bench-objective-correspondence');
+
+    // Suppression scotoma.
+    await goStep(page, 'Suppression scotoma');
+    await page.getByRole('group', { name: 'Eye tested' }).getByText('Left eye').click();
+    await typeAngle(page, 'Picture lost, convergent side', 'eso 18');
+    await typeAngle(page, 'Picture lost, divergent side', 'eso 10');
+    await typeAngle(page, 'Picture lost, upper', 'up 3');
+    await typeAngle(page, 'Picture lost, lower', 'down 2');
+    await page.getByRole('img', { name: /Scotoma of the left eye/ }).waitFor();
+    await savedHere(page);
+    await axeStep(page, 'suppression scotoma');
+    await screenshot(page, 'bench-scotoma-map');
+
+    // Fusion.
+    await goStep(page, 'Fusion');
+    await page
+      .getByRole('group', { name: 'Right control mark seen' })
+      .getByText('Seen', { exact: true })
+      .click();
+    await page
+      .getByRole('group', { name: 'Left control mark seen' })
+      .getByText('Seen', { exact: true })
+      .click();
+    await page.getByRole('group', { name: 'Fusion', exact: true }).getByText('Present').click();
+    await savedHere(page);
+    await axeStep(page, 'fusion');
+
+    // Fusional ranges: divergence first.
+    await goStep(page, 'Fusional ranges');
+    await typeAngle(page, 'Divergence break', 'exo 4');
+    await typeAngle(page, 'Divergence recovery', 'exo 2');
+    await typeAngle(page, 'Convergence break', 'eso 38');
+    await typeAngle(page, 'Convergence recovery', 'eso 30');
+    await page.getByTestId('proximal-convergence-note').waitFor();
+    await savedHere(page);
+    await axeStep(page, 'fusional ranges');
+    await screenshot(page, 'bench-fusional-ranges');
+
+    // Gross stereopsis: answer whatever the runner says to show (a patient who sees it).
+    await goStep(page, 'Gross stereopsis');
+    for (let i = 0; i < 5; i += 1) {
+      const shown = (await page.getByTestId('stereo-next').textContent()) ?? '';
+      const word = shown.includes('toward the patient') ? 'toward' : 'away';
+      await page.getByRole('button', { name: `Patient says: ${word}` }).click();
+      await page
+        .getByTestId('stereo-next')
+        .getByText(`Trial ${i + 2}`)
+        .waitFor();
+    }
+    await page.getByTestId('stereo-verdict').getByText('Gross stereopsis shown').waitFor();
+    expect(await page.getByTestId('stereo-chance').textContent()).toBe('1/32 = 0.03125');
+    await savedHere(page);
+    await axeStep(page, 'gross stereopsis');
+    await screenshot(page, 'bench-stereo-runner');
+
+    // Summary.
+    await goStep(page, 'Summary');
+    await page
+      .getByText(/supports and does not replace clinical judgement/)
+      .first()
+      .waitFor();
+    await axeStep(page, 'summary');
+    await screenshot(page, 'bench-summary');
+
+    // Reload while offline: everything is still there.
+    await page.reload();
+    await page.getByRole('heading', { name: 'Summary', level: 2 }).waitFor({ timeout: 20_000 });
+    const summary = (await page.locator('.fl-bench-summary').textContent()) ?? '';
+    expect(summary).toContain('Interpupillary distance 58 mm');
+    expect(summary).toContain('harmonious abnormal retinal correspondence');
+    expect(summary).toContain('Scotoma of the left eye');
+    expect(summary).toContain('Gross stereopsis shown');
+    expect(await serverFields('amblyoscopeAngles', visitId)).toEqual([]);
+
+    // Online again: the Outbox drains to the server.
+    await tabletA.setOffline(false);
+    const angles = await until('the angles to reach the server', async () => {
+      const rows = await serverFields('amblyoscopeAngles', visitId);
+      return rows[0]?.objectiveHorizontalDeg === 14 ? rows[0] : null;
+    });
+    expect(angles.subjectiveVerticalPd).toBe(2);
+    const stereo = await until('the stereo trials to reach the server', async () => {
+      const rows = await serverFields('grossStereopsis', visitId);
+      return (rows[0]?.trials as unknown[] | undefined)?.length === 5 ? rows[0] : null;
+    });
+    expect(stereo.trials).toHaveLength(5);
+    await page
+      .getByTestId('bench-sync')
+      .getByText('Everything is sent')
+      .waitFor({ timeout: 45_000 });
+  });
+
+  it('keeps both tablets’ edits to different fields of the same visit', async () => {
+    expect(visitId).not.toBe('');
+    const second = await enrolTablet(adminPage, tabletB, `Bench tablet B ${run}`);
+    // Tablet B pulls the visit, then records slide names while tablet A adds extra lenses.
+    await second.goto(`${baseUrl()}/bench/${visitId}?step=fusion`);
+    await second.getByRole('heading', { name: 'Fusion', level: 2 }).waitFor({ timeout: 45_000 });
+    const slide = second.getByLabel('Slide used');
+    await slide.fill('Rabbit pair');
+    await slide.press('Enter');
+    await savedHere(second);
+
+    await page.goto(`${baseUrl()}/bench/${visitId}?step=setup`);
+    const lenses = page.getByLabel('Extra lenses, right holder');
+    await lenses.fill('+3.00 DS');
+    await lenses.press('Enter');
+    await savedHere(page);
+
+    await until('both edits on the server', async () => {
+      const [fusion] = await serverFields('fusion', visitId);
+      const [setup] = await serverFields('amblyoscopeSetup', visitId);
+      return fusion?.slideUsed === 'Rabbit pair' && setup?.extraLensesRight === '+3.00 DS';
+    });
+    const [fusion] = await serverFields('fusion', visitId);
+    expect(fusion?.result).toBe('present');
+    const [setup] = await serverFields('amblyoscopeSetup', visitId);
+    expect(setup?.interpupillaryDistanceMm).toBe(58);
+    await screenshot(second, 'bench-second-tablet');
+  });
+});
