@@ -3,7 +3,7 @@
 // storage as server-device changes so that a tablet's first sync pulls it. Ids are fixed so that
 // seeding twice changes nothing. Every person and finding here is made up.
 import type { CollectionName, SectionCollectionName } from '@fuselight/shared';
-import { DEMO_SITES } from './demo-scenario';
+import { DEMO_PEOPLE, DEMO_SITES } from './demo-scenario';
 
 export interface DemoRecord {
   collection: CollectionName;
@@ -11,11 +11,11 @@ export interface DemoRecord {
   fields: Record<string, unknown>;
 }
 
-/** Fictional clinicians named as the visits' authors (ids shared with the people seed if any). */
+/** The demo people (people.seed) who saw the patients: one clinician per site, and a student. */
 export const DEMO_CLINICIANS = {
-  orthoptist: '01935a00-0000-7000-8000-00000000c001',
-  outreach: '01935a00-0000-7000-8000-00000000c002',
-  supervisor: '01935a00-0000-7000-8000-00000000c003',
+  main: DEMO_PEOPLE.orthoptist.id,
+  outreach: DEMO_PEOPLE.outreach.id,
+  student: DEMO_PEOPLE.student.id,
 } as const;
 
 const COLLECTION_CODES: Record<CollectionName, number> = {
@@ -339,7 +339,7 @@ const PATIENTS: DemoPatient[] = [
   {
     // Accommodative esotropia settling with glasses.
     site: 'main',
-    givenName: 'Priya',
+    givenName: 'Ishani',
     familyName: 'Venkataraghavan',
     dateOfBirth: '2020-11-20',
     clinicNumber: 'HEC-10512',
@@ -397,7 +397,7 @@ const PATIENTS: DemoPatient[] = [
     // Convergence insufficiency improving with exercises.
     site: 'main',
     givenName: 'Tobias',
-    familyName: 'Marchetti-Lowe',
+    familyName: 'Pellow-Ainsley',
     dateOfBirth: '1969-01-09',
     clinicNumber: 'HEC-10590',
     sex: 'male',
@@ -576,7 +576,7 @@ const PATIENTS: DemoPatient[] = [
     // A vertical deviation recovering after a fourth nerve palsy.
     site: 'main',
     givenName: 'Fergus',
-    familyName: 'Lindqvist',
+    familyName: 'Holmgrave',
     dateOfBirth: '1954-12-22',
     clinicNumber: 'HEC-10788',
     sex: 'male',
@@ -880,8 +880,7 @@ export function clinicalDemoRecords({ today }: ClinicalDemoOptions): DemoRecord[
   PATIENTS.forEach((patient, index) => {
     const patientId = demoRecordId('patient', index + 1);
     const siteId = DEMO_SITES[patient.site].id;
-    const clinicianId =
-      patient.site === 'main' ? DEMO_CLINICIANS.orthoptist : DEMO_CLINICIANS.outreach;
+    const siteClinician = DEMO_CLINICIANS[patient.site];
     records.push({
       collection: 'patient',
       id: patientId,
@@ -899,6 +898,8 @@ export function clinicalDemoRecords({ today }: ClinicalDemoOptions): DemoRecord[
     for (const visit of patient.visits) {
       visitSerial += 1;
       const visitId = demoRecordId('visit', visitSerial);
+      // A student's visit waits for the supervisor's countersignature.
+      const clinicianId = visit.awaitingCountersign ? DEMO_CLINICIANS.student : siteClinician;
       records.push({
         collection: 'visit',
         id: visitId,
@@ -937,8 +938,7 @@ export function clinicalDemoRecords({ today }: ClinicalDemoOptions): DemoRecord[
         siteId: DEMO_SITES[patient.site].id,
         patientId: demoRecordId('patient', booking.patient + 1),
         date: today,
-        clinicianId:
-          patient.site === 'main' ? DEMO_CLINICIANS.orthoptist : DEMO_CLINICIANS.outreach,
+        clinicianId: DEMO_CLINICIANS[patient.site],
         reason: booking.reason,
         status: 'draft',
         needsCountersign: false,
