@@ -15,7 +15,6 @@ import {
   Inject,
   Injectable,
   Logger,
-  Optional,
   PayloadTooLargeException,
 } from '@nestjs/common';
 import {
@@ -80,7 +79,7 @@ export class SyncService {
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(IDS) private readonly ids: IdGenerator,
-    @Optional() @Inject(AuditService) private readonly audit: AuditService | null,
+    @Inject(AuditService) private readonly audit: AuditService,
   ) {}
 
   async push(user: AuthUser, body: unknown): Promise<PushResponse> {
@@ -189,19 +188,20 @@ export class SyncService {
     await insertConflicts(em, batch.newConflicts, now);
     await appendCandidates(em, batch.joined);
     const started = performance.now();
-    if (this.audit) {
-      for (const plan of plans) {
-        await this.audit.record(em, {
-          kind: plan.audit.kind,
-          actorId: user.userId,
-          deviceId: user.deviceId,
-          siteId: plan.audit.siteId,
-          subjectType: plan.record.collection,
-          subjectId: plan.record.id,
-          detail: plan.audit.detail,
-        });
-      }
-    }
+    // One multi-row insert for the whole batch: every clinical change is audited in the same
+    // transaction as the change, without a round trip per change.
+    await this.audit.recordMany(
+      em,
+      plans.map((plan) => ({
+        kind: plan.audit.kind,
+        actorId: user.userId,
+        deviceId: user.deviceId,
+        siteId: plan.audit.siteId,
+        subjectType: plan.record.collection,
+        subjectId: plan.record.id,
+        detail: plan.audit.detail,
+      })),
+    );
     this.timings.auditMs += performance.now() - started;
     this.timings.writeMs -= performance.now() - started;
   }
