@@ -127,6 +127,7 @@ export class LetterTablet {
     recordId: string,
     fields: Record<string, JsonValue>,
     baseVersion = 0,
+    extra: { deleted?: boolean } = {},
   ): Promise<PushResponse> {
     const next = tick(this.clock, this.t.clock.now().getTime());
     this.clock = next.clock;
@@ -137,7 +138,15 @@ export class LetterTablet {
         protocol: PROTOCOL_VERSION,
         schemaVersion: SCHEMA_VERSION,
         changes: [
-          { changeId: uuidv7(), collection, recordId, baseVersion, hlc: next.stamp, fields },
+          {
+            changeId: uuidv7(),
+            collection,
+            recordId,
+            baseVersion,
+            hlc: next.stamp,
+            fields,
+            ...extra,
+          },
         ],
       });
     if (res.status !== 200)
