@@ -22,12 +22,14 @@ import {
 } from 'ionicons/icons';
 import { Suspense, type ReactNode } from 'react';
 import { Route } from 'react-router-dom';
+import { SyncIndicator } from '../components/SyncIndicator';
 import { UpdatePrompt } from '../components/UpdatePrompt';
 import { canSee } from '../auth/access';
-import { HomeRedirect, IdentityGate, RequireArea, SignedOutLanding } from '../auth/IdentityGate';
+import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
 import { SessionProvider } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
+import { SyncRuntime } from '../sync/SyncRuntime';
 import {
   BenchScreen,
   ChartScreen,
@@ -67,21 +69,15 @@ const screen = (node: ReactNode) => <Suspense fallback={<Loading />}>{node}</Sus
 const clinical = (node: ReactNode) => <RequireArea area="clinical">{screen(node)}</RequireArea>;
 const admin = (node: ReactNode) => <RequireArea area="admin">{screen(node)}</RequireArea>;
 
-/** Sign-in, PIN unlock and enrolment: all that a tablet shows before someone is signed in. */
-const signedOutRoutes = (
-  <IonRouterOutlet>
-    <Route path="/signin" element={screen(<SignInScreen />)} />
-    <Route path="/unlock" element={screen(<UnlockScreen />)} />
-    <Route path="/enrol" element={screen(<EnrolScreen />)} />
-    <Route path="*" element={<SignedOutLanding />} />
-  </IonRouterOutlet>
-);
-
-function SignedInTabs() {
+function AppTabs() {
   const role = useSession().user?.role;
   return (
     <IonTabs>
       <IonRouterOutlet>
+        {/* Sign-in, PIN unlock and enrolment: all a tablet shows before someone is signed in. */}
+        <Route path="/signin" element={screen(<SignInScreen />)} />
+        <Route path="/unlock" element={screen(<UnlockScreen />)} />
+        <Route path="/enrol" element={screen(<EnrolScreen />)} />
         <Route path="/today" element={clinical(<TodayScreen />)} />
         <Route path="/chart/:patientId" element={clinical(<ChartScreen />)} />
         <Route path="/visit/:visitId" element={clinical(<VisitScreen />)} />
@@ -94,12 +90,22 @@ function SignedInTabs() {
         <Route path="/fleet" element={admin(<FleetScreen />)} />
         <Route path="/people" element={admin(<PeopleScreen />)} />
         <Route path="/sites" element={admin(<SitesScreen />)} />
-        <Route path="/person" element={screen(<PersonScreen />)} />
-        <Route path="/pin" element={screen(<PinSetupScreen />)} />
+        <Route
+          path="/person"
+          element={<RequireArea area="self">{screen(<PersonScreen />)}</RequireArea>}
+        />
+        <Route
+          path="/pin"
+          element={<RequireArea area="self">{screen(<PinSetupScreen />)}</RequireArea>}
+        />
         <Route path="/" element={<HomeRedirect />} />
         <Route path="*" element={<HomeRedirect />} />
       </IonRouterOutlet>
-      <IonTabBar slot="bottom" aria-label="Fuselight sections">
+      <IonTabBar
+        slot="bottom"
+        aria-label="Fuselight sections"
+        style={role ? undefined : { display: 'none' }}
+      >
         {canSee(role, 'clinical') ? (
           <IonTabButton tab="today" href="/today">
             <IonIcon icon={calendarOutline} aria-hidden="true" />
@@ -140,6 +146,7 @@ function SignedInTabs() {
           <IonIcon icon={personCircleOutline} aria-hidden="true" />
           <IonLabel>You</IonLabel>
         </IonTabButton>
+        <SyncIndicator compact />
       </IonTabBar>
     </IonTabs>
   );
@@ -153,12 +160,12 @@ export function App() {
           <IonReactRouter>
             <IdentityGate
               loading={<Loading />}
-              signedOut={signedOutRoutes}
               erased={(note) => screen(<TabletErasedScreen note={note} />)}
             >
-              <SignedInTabs />
+              <AppTabs />
             </IdentityGate>
             <SignInPrompt />
+            <SyncRuntime />
           </IonReactRouter>
           <UpdatePrompt />
         </IonApp>

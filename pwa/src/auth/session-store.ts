@@ -66,6 +66,8 @@ export interface AuthSnapshot {
   /** Set while a retired tablet waits for its Outbox to empty before erasing. */
   retirement: { waitingChanges: number } | null;
   policy: UnlockPolicy;
+  /** Who was just signed in on an enrolled tablet without a PIN: offer them one next. */
+  pinOfferFor: string | null;
 }
 
 export type UnlockResult =
@@ -114,6 +116,7 @@ export class SessionStore {
   private erasure: ErasureNote | null = null;
   private retirement: { waitingChanges: number } | null = null;
   private loaded = false;
+  private pinOfferFor: string | null = null;
   private erasing: Promise<void> | null = null;
   private readonly refreshing = new Map<string, Promise<string | null>>();
   private readonly listeners = new Set<() => void>();
@@ -185,6 +188,7 @@ export class SessionStore {
       erasure: this.erasure,
       retirement: this.retirement,
       policy: this.policy,
+      pinOfferFor: this.pinOfferFor,
     };
   }
 
@@ -257,6 +261,7 @@ export class SessionStore {
     if (pin) this.pins.set(person.userId, { ...pin, failedAttempts: 0 });
     this.waiting.delete(person.userId);
     this.activeUserId = person.userId;
+    this.pinOfferFor = this.tablet && !pin ? person.userId : null;
     this.publish();
     return person.user;
   }
@@ -319,9 +324,16 @@ export class SessionStore {
     this.publish();
   }
 
+  /** The person chose not to set a PIN now. */
+  declinePin(): void {
+    this.pinOfferFor = null;
+    this.publish();
+  }
+
   /** Hands the tablet to someone else: the current person is locked out, their session kept. */
   async switchPerson(): Promise<void> {
     this.activeUserId = null;
+    this.pinOfferFor = null;
     await this.db.settings.delete(ACTIVE_KEY);
     this.publish();
   }
@@ -368,6 +380,7 @@ export class SessionStore {
     };
     await this.db.pins.put(record);
     this.pins.set(person.userId, record);
+    this.pinOfferFor = null;
     this.publish();
   }
 

@@ -13,6 +13,7 @@ export function useAuthActions() {
       switchPerson: () => store.switchPerson(),
       setActiveSite: (siteId: string) => store.setActiveSite(siteId),
       setPin: (pin: string) => store.setPin(pin),
+      declinePin: () => store.declinePin(),
       enrol: (code: string) => store.enrol(code),
       dismissErasure: () => store.dismissErasure(),
       /** A server call as the person using the tablet (refreshes once on a refused token). */

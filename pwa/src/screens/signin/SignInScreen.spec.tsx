@@ -5,6 +5,7 @@ import { MemoryRouter, Route, Routes } from 'react-router-dom';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { AMARA, PASSWORDS, fakeClinicServer } from '../../auth/fake-clinic-server.fixture';
 import { IdentityApi } from '../../auth/identity-api';
+import { HomeRedirect } from '../../auth/IdentityGate';
 import { SessionProvider } from '../../auth/SessionProvider';
 import { SessionStore } from '../../auth/session-store';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
@@ -18,7 +19,8 @@ function renderSignIn(store: SessionStore, path = '/signin') {
           <Routes>
             <Route path="/signin" element={<SignInScreen />} />
             <Route path="/pin" element={<p>PIN offer</p>} />
-            <Route path="/" element={<p>Home</p>} />
+            <Route path="/" element={<HomeRedirect />} />
+            <Route path="/today" element={<p>Today list</p>} />
           </Routes>
         </MemoryRouter>
       </SessionProvider>
@@ -81,5 +83,17 @@ describe('the sign-in form', () => {
     await user.click(screen.getByRole('button', { name: 'Sign in' }));
     expect(await screen.findByText('PIN offer')).toBeTruthy();
     expect(store.getSnapshot().activeUser?.id).toBe(AMARA.id);
+  });
+
+  it('goes straight to Today in a browser that is not an enrolled tablet', async () => {
+    const { store } = makeStore();
+    await store.load();
+    renderSignIn(store);
+    const user = userEvent.setup();
+    await user.type(screen.getByLabelText('E-mail address'), AMARA.email);
+    await user.type(screen.getByLabelText('Password'), PASSWORDS[AMARA.email]!);
+    await user.click(screen.getByRole('button', { name: 'Sign in' }));
+    expect(await screen.findByText('Today list')).toBeTruthy();
+    expect(store.getSnapshot().tablet).toBeNull();
   });
 });

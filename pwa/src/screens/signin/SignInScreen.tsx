@@ -29,10 +29,8 @@ export default function SignInScreen() {
   });
   const signIn = useMutation({
     mutationFn: (form: SignInForm) => actions.signIn(form),
-    onSuccess: (user) => {
-      const hasPin = people.some((p) => p.user.id === user.id && p.hasPin);
-      navigate(tablet && !hasPin ? '/pin' : '/', { replace: true });
-    },
+    // Home decides where next: the PIN offer on an enrolled tablet, else the person's home.
+    onSuccess: () => navigate('/', { replace: true }),
   });
   const unlockable = people.some((p) => p.canUnlockWithPin);
 

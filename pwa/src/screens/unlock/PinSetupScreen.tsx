@@ -63,7 +63,13 @@ export default function PinSetupScreen() {
           <Button type="submit" disabled={save.isPending}>
             {save.isPending ? 'Saving…' : 'Save PIN'}
           </Button>
-          <Button tone="quiet" onClick={() => navigate('/', { replace: true })}>
+          <Button
+            tone="quiet"
+            onClick={() => {
+              actions.declinePin();
+              navigate('/', { replace: true });
+            }}
+          >
             Not now
           </Button>
         </div>

@@ -1,7 +1,7 @@
 // The person switcher on a shared tablet: everyone who signed in here, unlocked with their PIN
 // (offline too, within the clinic's window) or by signing in again.
 import { useState, type FormEvent } from 'react';
-import { Link } from 'react-router-dom';
+import { Link, useNavigate } from 'react-router-dom';
 import type { KnownPerson } from '../../auth/session-store';
 import { useAuthState } from '../../auth/SessionProvider';
 import { useAuthActions } from '../../auth/useAuthActions';
@@ -18,6 +18,7 @@ function whyNoPin(person: KnownPerson): string {
 export default function UnlockScreen() {
   const { people, loaded } = useAuthState();
   const actions = useAuthActions();
+  const navigate = useNavigate();
   const [chosen, setChosen] = useState<string | null>(null);
   const [pin, setPin] = useState('');
   const [message, setMessage] = useState<string | null>(null);
@@ -35,7 +36,8 @@ export default function UnlockScreen() {
     const result = await actions.unlock(person.user.id, pin);
     setBusy(false);
     setPin('');
-    if (!result.ok) setMessage(result.message);
+    if (result.ok) navigate('/', { replace: true });
+    else setMessage(result.message);
   };
 
   if (!loaded)
@@ -81,7 +83,7 @@ export default function UnlockScreen() {
             {person && person.user.id === p.user.id ? (
               <form
                 noValidate
-                aria-label={`PIN for ${p.user.name}`}
+                aria-label={`Unlock ${p.user.name}`}
                 onSubmit={(e) => void submit(e)}
                 style={{ marginTop: 12 }}
               >

@@ -1,0 +1,61 @@
+import { cleanup, render, screen } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
+import { MemoryRouter, Route, Routes } from 'react-router-dom';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { AMARA, PASSWORDS, TOMASZ, fakeClinicServer } from '../../auth/fake-clinic-server.fixture';
+import { IdentityApi } from '../../auth/identity-api';
+import { SessionProvider } from '../../auth/SessionProvider';
+import { SessionStore } from '../../auth/session-store';
+import { eraseAllDatabases } from '../../auth/tablet-erasure';
+import UnlockScreen from './UnlockScreen';
+
+beforeEach(async () => {
+  await eraseAllDatabases();
+});
+afterEach(cleanup);
+
+async function tabletWithTwoPeople() {
+  const server = fakeClinicServer(() => Date.now());
+  const store = new SessionStore({
+    api: new IdentityApi({ fetch: server.fetch }),
+    countOutbox: async () => 0,
+  });
+  await store.load();
+  await store.enrol(server.enrolmentCode);
+  await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+  await store.setPin('5151');
+  await store.switchPerson();
+  await store.signIn({ email: TOMASZ.email, password: PASSWORDS[TOMASZ.email]! });
+  await store.switchPerson();
+  render(
+    <QueryClientProvider client={new QueryClient()}>
+      <SessionProvider store={store} background={false}>
+        <MemoryRouter initialEntries={['/unlock']}>
+          <Routes>
+            <Route path="/unlock" element={<UnlockScreen />} />
+            <Route path="/" element={<p>Home</p>} />
+          </Routes>
+        </MemoryRouter>
+      </SessionProvider>
+    </QueryClientProvider>,
+  );
+  return store;
+}
+
+describe('the person switcher', () => {
+  it('lists everyone on the tablet and unlocks the chosen person with their PIN', async () => {
+    const store = await tabletWithTwoPeople();
+    const user = userEvent.setup();
+    // Tomasz has no PIN, so he signs in with his password instead.
+    expect(await screen.findByText('Sign in as Tomasz Okonjo')).toBeTruthy();
+    await user.click(screen.getByRole('button', { name: 'Unlock as Amara Lindqvist' }));
+    await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '9999');
+    await user.click(screen.getByRole('button', { name: 'Unlock' }));
+    expect(await screen.findByText('That PIN is not right. 4 attempts left.')).toBeTruthy();
+    await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '5151');
+    await user.click(screen.getByRole('button', { name: 'Unlock' }));
+    expect(await screen.findByText('Home')).toBeTruthy();
+    expect(store.getSnapshot().activeUser?.id).toBe(AMARA.id);
+  });
+});
