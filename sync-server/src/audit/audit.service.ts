@@ -53,12 +53,27 @@ export class AuditService {
     await em.insert(AuditEvent, this.row(event));
   }
 
-  /** Appends several events in one statement (a sync push records one per change). */
+  /**
+   * Appends several events in one statement (a sync push records one per change). Plain SQL over
+   * a JSON array: the ORM's per-entity conversion cost more than the rest of a push.
+   */
   async recordMany(em: EntityManager, events: AuditInput[]): Promise<void> {
     if (events.length === 0) return;
-    await em.insertMany(
-      AuditEvent,
-      events.map((event) => this.row(event)),
+    const rows = events.map((event) => {
+      const row = this.row(event);
+      return { ...row, occurredAt: row.occurredAt.toISOString() };
+    });
+    await em.getConnection().execute(
+      `insert into "audit_event"
+         ("id", "occurred_at", "scope", "kind", "actor_id", "device_id", "site_id", "subject_type", "subject_id", "detail")
+       select r."id", r."occurredAt", r."scope", r."kind", r."actorId", r."deviceId", r."siteId",
+              r."subjectType", r."subjectId", coalesce(r."detail", '{}'::jsonb)
+         from jsonb_to_recordset(?::jsonb) as r(
+           "id" uuid, "occurredAt" timestamptz, "scope" text, "kind" text, "actorId" uuid,
+           "deviceId" uuid, "siteId" uuid, "subjectType" text, "subjectId" text, "detail" jsonb)`,
+      [JSON.stringify(rows)],
+      'run',
+      em.getTransactionContext(),
     );
   }
 

@@ -547,3 +547,24 @@ describe('tombstone horizon', () => {
     expect(await later.pullOk(report.horizonVersion)).not.toEqual({ reset: true });
   });
 });
+
+describe('the audit trail of a push', () => {
+  it('records one clinical event per applied change, naming the person and the tablet', async () => {
+    const tablet = await tabletFor(t, 'orthoptist', [SITE_A]);
+    const first = await createPatient(tablet);
+    const second = await createPatient(tablet);
+    const rows = await t
+      .em()
+      .getConnection()
+      .execute<{ subject_id: string; actor_id: string; device_id: string; scope: string }[]>(
+        `select subject_id, actor_id, device_id, scope from audit_event where subject_id in (?, ?)`,
+        [first.recordId, second.recordId],
+      );
+    expect(rows).toHaveLength(2);
+    for (const row of rows) {
+      expect(row.scope).toBe('clinical');
+      expect(row.actor_id).toBe(tablet.caller.userId);
+      expect(row.device_id).toBe(tablet.caller.deviceId);
+    }
+  });
+});
