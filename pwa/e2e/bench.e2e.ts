@@ -180,10 +180,10 @@ describe('the Bench on an enrolled tablet', () => {
 
     // Register the patient and start the visit with the network off.
     await page.getByRole('button', { name: 'New patient' }).click();
-    await page.getByLabel('Given name').fill(patient.given);
-    await page.getByLabel('Family name').fill(patient.family);
-    await page.getByLabel('Date of birth').fill(patient.dob);
-    await page.getByLabel('Clinic number').fill(patient.number);
+    await page.getByLabel('Given name', { exact: true }).fill(patient.given);
+    await page.getByLabel('Family name', { exact: true }).fill(patient.family);
+    await page.getByLabel('Date of birth', { exact: true }).fill(patient.dob);
+    await page.getByLabel('Clinic number', { exact: true }).fill(patient.number);
     await page.getByRole('button', { name: 'Save patient' }).click();
     await page.waitForURL(/\/chart\//);
     await page.goto(`${baseUrl()}/today`);

@@ -6,6 +6,7 @@ import type { ConversionMethod } from '@fuselight/shared';
 import { useEffect, useRef, useState } from 'react';
 import { Link, useParams, useSearchParams } from 'react-router-dom';
 import { ConversionContext } from '../../components/controls';
+import { SyncIndicator } from '../../components/SyncIndicator';
 import {
   readConversionPreference,
   sectionProgress,
@@ -123,6 +124,7 @@ export function Bench({ visitId, random }: { visitId: string; random?: () => num
                 </button>
               ))}
             </div>
+            <SyncIndicator compact />
             <BenchOutboxBadge />
             <Link className="fl-touch fl-button fl-bench__leave" to={`/visit/${visitId}`}>
               Leave the Bench
