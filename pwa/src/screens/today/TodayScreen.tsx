@@ -241,7 +241,20 @@ export default function TodayScreen() {
             <EmptyState>Sign in to see today’s visits and chart patients.</EmptyState>
           ) : null}
           <div className="flc-columns">
-            <PatientSearch siteId={activeSiteId} today={today} />
+            {adding && activeSiteId ? (
+              // The form takes the search panel's place, so each label on screen is unique.
+              <NewPatientForm
+                siteId={activeSiteId}
+                today={today}
+                onCancel={() => setAdding(false)}
+                onCreated={(id) => {
+                  setAdding(false);
+                  navigate(`/chart/${id}`);
+                }}
+              />
+            ) : (
+              <PatientSearch siteId={activeSiteId} today={today} />
+            )}
             <section className="flc-panel" aria-labelledby="today-list-title">
               <header>
                 <h2 id="today-list-title">Booked and seen today · {formatDate(today)}</h2>
@@ -263,17 +276,6 @@ export default function TodayScreen() {
               )}
             </section>
           </div>
-          {adding && activeSiteId ? (
-            <NewPatientForm
-              siteId={activeSiteId}
-              today={today}
-              onCancel={() => setAdding(false)}
-              onCreated={(id) => {
-                setAdding(false);
-                navigate(`/chart/${id}`);
-              }}
-            />
-          ) : null}
         </main>
       </IonContent>
     </IonPage>
