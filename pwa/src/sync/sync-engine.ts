@@ -288,6 +288,7 @@ export class SyncEngine {
   async syncOnce(): Promise<SyncOutcome> {
     if (!this.network.isOnline()) {
       this.status.update({ online: false, phase: 'idle', progress: null });
+      await this.refreshCounts();
       return { kind: 'offline' };
     }
     const started = this.clock.now();

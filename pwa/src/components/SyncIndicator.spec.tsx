@@ -1,0 +1,79 @@
+import { cleanup, render, screen, waitFor } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { FuselightDb } from '../data/db';
+import { RecordsRepository } from '../data/records-repository';
+import { CLINICIAN_ID, DEVICE_ID, patientFields } from '../data/test-fixtures';
+import { SyncEngine } from '../sync/sync-engine';
+import { describeLastSynced, SyncIndicator } from './SyncIndicator';
+
+const dbs: FuselightDb[] = [];
+afterEach(async () => {
+  cleanup();
+  for (const db of dbs.splice(0)) {
+    db.close();
+    await db.delete();
+  }
+});
+
+function engineWith(options: { online: boolean; fetch?: typeof fetch }) {
+  const db = new FuselightDb(`indicator-${crypto.randomUUID()}`);
+  dbs.push(db);
+  const engine = new SyncEngine({
+    db,
+    baseUrl: 'http://clinic.invalid',
+    auth: { tokenFor: async () => 'token', onUnauthorized: async () => undefined },
+    deviceId: DEVICE_ID,
+    pullAs: () => CLINICIAN_ID,
+    network: { isOnline: () => options.online, subscribe: () => () => undefined },
+    fetch: options.fetch ?? (async () => Promise.reject(new TypeError('network down'))),
+    random: () => 0.5,
+  });
+  return { db, engine };
+}
+
+describe('the sync indicator', () => {
+  it('shows offline, what waits in the Outbox, and never-synced, in words', async () => {
+    const { db, engine } = engineWith({ online: false });
+    await new RecordsRepository(db).create('patient', patientFields(), {
+      authorId: CLINICIAN_ID,
+      deviceId: DEVICE_ID,
+      nowMs: Date.now(),
+    });
+    await engine.syncOnce();
+    render(<SyncIndicator engine={engine} />);
+    expect(screen.getByText('Offline')).toBeTruthy();
+    expect(screen.getByText(/1 waiting/)).toBeTruthy();
+    expect(screen.getByText(/Not synced yet/)).toBeTruthy();
+    const button = screen.getByRole('button', { name: 'Sync now' });
+    expect(parseInt(button.style.minHeight, 10)).toBeGreaterThanOrEqual(48);
+  });
+
+  it('shows the error in words after a failed sync and runs a sync on "Sync now"', async () => {
+    const fetch = vi.fn(async () => Promise.reject(new TypeError('network down')));
+    const { engine } = engineWith({ online: true, fetch });
+    const { db } = { db: engine.db };
+    await new RecordsRepository(db).create('patient', patientFields(), {
+      authorId: CLINICIAN_ID,
+      deviceId: DEVICE_ID,
+      nowMs: Date.now(),
+    });
+    render(<SyncIndicator engine={engine} />);
+    await userEvent.click(screen.getByRole('button', { name: 'Sync now' }));
+    await waitFor(() =>
+      expect(screen.getByRole('alert').textContent).toMatch(/could not be reached/),
+    );
+    expect(fetch).toHaveBeenCalled();
+    expect(screen.getByText('Online')).toBeTruthy();
+    engine.stop();
+  });
+
+  it('describes the last sync time in words', () => {
+    const now = new Date('2026-12-01T10:00:00').getTime();
+    expect(describeLastSynced(null, now)).toBe('Not synced yet');
+    expect(describeLastSynced(now - 10_000, now)).toBe('Synced just now');
+    expect(describeLastSynced(now - 5 * 60_000, now)).toBe('Synced 5 min ago');
+    expect(describeLastSynced(now - 3 * 60 * 60_000, now)).toMatch(/^Synced at /);
+    expect(describeLastSynced(now - 3 * 24 * 60 * 60_000, now)).toMatch(/^Synced on /);
+  });
+});

@@ -1,0 +1,133 @@
+// Always visible: whether the tablet is online, what waits in the Outbox, when it last synced,
+// a long pull's progress and any problem in words, with a "Sync now" button.
+import { IonIcon, IonSpinner } from '@ionic/react';
+import { cloudDoneOutline, cloudOfflineOutline, syncOutline, warningOutline } from 'ionicons/icons';
+import { useEffect, useState } from 'react';
+import { requestSyncNow, useSyncStatus, type SyncEngine, type SyncStatus } from '../sync';
+
+/** "just now", "3 min ago", "at 09:41", or "on 1 Dec" for an older time. */
+export function describeLastSynced(lastSyncedAt: number | null, nowMs: number): string {
+  if (lastSyncedAt === null) return 'Not synced yet';
+  const ago = Math.max(0, nowMs - lastSyncedAt);
+  if (ago < 60_000) return 'Synced just now';
+  if (ago < 60 * 60_000) return `Synced ${Math.floor(ago / 60_000)} min ago`;
+  const at = new Date(lastSyncedAt);
+  const sameDay = new Date(nowMs).toDateString() === at.toDateString();
+  return sameDay
+    ? `Synced at ${at.toLocaleTimeString(undefined, { hour: '2-digit', minute: '2-digit' })}`
+    : `Synced on ${at.toLocaleDateString(undefined, { day: 'numeric', month: 'short' })}`;
+}
+
+export function describeOutbox(status: SyncStatus): string {
+  if (status.outboxCount === 0) return 'Outbox empty';
+  const waiting = `${status.pendingCount} waiting`;
+  return status.rejectedCount > 0 ? `${waiting}, ${status.rejectedCount} refused` : waiting;
+}
+
+function describeProgress(status: SyncStatus): string | null {
+  const progress = status.progress;
+  if (!progress) return null;
+  if (progress.step === 'push') return `Sending ${progress.done} of ${progress.total ?? '?'}`;
+  return `Receiving: ${progress.done.toLocaleString()} records so far`;
+}
+
+export function SyncIndicator(props: {
+  engine?: SyncEngine | null;
+  onSyncNow?: () => unknown;
+  /** One line for the shell's bar: the error is shortened, the full words stay in the label. */
+  compact?: boolean;
+}) {
+  const status = useSyncStatus(props.engine);
+  const [nowMs, setNowMs] = useState(() => Date.now());
+  useEffect(() => {
+    const timer = setInterval(() => setNowMs(Date.now()), 30_000);
+    return () => clearInterval(timer);
+  }, []);
+  const busy = status.phase === 'pushing' || status.phase === 'pulling';
+  const progress = describeProgress(status);
+  const syncNow = () => {
+    if (props.onSyncNow) void props.onSyncNow();
+    else if (props.engine) void props.engine.syncNow();
+    else void requestSyncNow();
+  };
+  return (
+    <section
+      aria-label={`Sync status: ${status.online ? 'online' : 'offline'}, ${describeOutbox(status)}, ${describeLastSynced(status.lastSyncedAt, nowMs)}${status.error ? `. ${status.error}` : ''}`}
+      className="fl-sync-indicator"
+      style={{
+        display: 'flex',
+        flexWrap: 'wrap',
+        alignItems: 'center',
+        gap: 12,
+        padding: props.compact ? '0 8px' : '4px 12px',
+        borderBottom: props.compact ? undefined : '1px solid var(--fl-border)',
+        background: props.compact ? undefined : 'var(--fl-surface)',
+        flex: props.compact ? '1 1 auto' : undefined,
+        justifyContent: props.compact ? 'flex-end' : undefined,
+        fontSize: props.compact ? '0.85rem' : undefined,
+      }}
+    >
+      <span
+        role="status"
+        aria-live="polite"
+        style={{ display: 'flex', alignItems: 'center', gap: 6 }}
+      >
+        <IonIcon
+          aria-hidden="true"
+          icon={
+            status.online ? (status.error ? warningOutline : cloudDoneOutline) : cloudOfflineOutline
+          }
+        />
+        <strong>{status.online ? 'Online' : 'Offline'}</strong>
+        <span>· {describeOutbox(status)}</span>
+        {props.compact ? null : (
+          <span className="fl-muted">· {describeLastSynced(status.lastSyncedAt, nowMs)}</span>
+        )}
+        {progress ? <span>· {progress}</span> : null}
+      </span>
+      {props.compact ? (
+        status.error ? (
+          <span
+            role="alert"
+            title={status.error}
+            style={{
+              maxWidth: '16rem',
+              overflow: 'hidden',
+              textOverflow: 'ellipsis',
+              whiteSpace: 'nowrap',
+            }}
+          >
+            {status.error}
+          </span>
+        ) : null
+      ) : status.error ? (
+        <span role="alert" style={{ flex: '1 1 16rem', color: 'var(--ion-color-danger, #b00020)' }}>
+          {status.error}
+        </span>
+      ) : (
+        <span style={{ flex: '1 1 0' }} />
+      )}
+      <button
+        className="fl-button"
+        type="button"
+        aria-label={busy ? 'Syncing now' : 'Sync now'}
+        disabled={busy || !status.online}
+        onClick={syncNow}
+        style={{
+          minHeight: 48,
+          minWidth: 48,
+          padding: '0 16px',
+          fontSize: '1rem',
+          borderRadius: 8,
+        }}
+      >
+        {busy ? (
+          <IonSpinner name="crescent" aria-hidden="true" />
+        ) : (
+          <IonIcon icon={syncOutline} aria-hidden="true" slot="start" />
+        )}
+        {busy ? 'Syncing…' : 'Sync now'}
+      </button>
+    </section>
+  );
+}
