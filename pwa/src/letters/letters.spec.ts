@@ -1,0 +1,205 @@
+import { readFileSync } from 'node:fs';
+import { resolve } from 'node:path';
+import { PDFDocument } from 'pdf-lib';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import {
+  exampleLetterInput,
+  exampleVisits,
+  letterPlainText,
+  type VisitFindings,
+} from '@fuselight/shared';
+import { FuselightDb } from '../data/db';
+import { OutboxRepository } from '../data/outbox-repository';
+import { RecordsRepository, type EditContext } from '../data/records-repository';
+import {
+  deliveryWords,
+  draftLetter,
+  editLetter,
+  finaliseLetter,
+  LetterRuleError,
+  requestSend,
+} from './letter-actions';
+import { layoutOfLetter, letterPdfOnTablet, type LetterContext } from './letter-sources';
+
+const SITE = exampleVisits.first.visit.id.replace(/b0001$/, 'a0009');
+const CLINICIAN = '01935a00-0000-7000-8000-000000000103';
+let db: FuselightDb;
+let records: RecordsRepository;
+let outbox: OutboxRepository;
+let now = Date.parse('2026-12-01T15:00:00.000Z');
+const ctx = (): EditContext => ({
+  authorId: CLINICIAN,
+  deviceId: 'tablet-1',
+  nowMs: (now += 1000),
+});
+const context: LetterContext = {
+  clinic: exampleLetterInput.clinic,
+  clinician: exampleLetterInput.clinician,
+  today: '2026-12-01',
+};
+
+beforeEach(() => {
+  db = new FuselightDb(`letters-${crypto.randomUUID()}`);
+  records = new RecordsRepository(db);
+  outbox = new OutboxRepository(db);
+});
+afterEach(async () => {
+  db.close();
+  await db.delete();
+});
+
+/** The invented example patient's three visits, charted on this tablet. */
+async function chartExample(): Promise<{ visitId: string; patientId: string }> {
+  const p = exampleLetterInput.patient;
+  const patientId = await records.create(
+    'patient',
+    {
+      siteId: SITE,
+      givenName: p.givenName,
+      familyName: p.familyName,
+      dateOfBirth: p.dateOfBirth,
+      clinicNumber: p.clinicNumber,
+      referrer: p.referrer,
+    },
+    ctx(),
+  );
+  let visitId = '';
+  for (const findings of [
+    exampleVisits.first,
+    exampleVisits.second,
+    exampleVisits.third,
+  ] as VisitFindings[]) {
+    visitId = await records.create(
+      'visit',
+      {
+        siteId: SITE,
+        patientId,
+        date: findings.visit.date,
+        clinicianId: CLINICIAN,
+        status: 'signed',
+        reason: findings.visit.reason,
+      },
+      ctx(),
+    );
+    for (const [collection, section] of Object.entries(findings)) {
+      if (collection === 'visit' || !section) continue;
+      const clean = Object.fromEntries(Object.entries(section).filter(([, v]) => v !== undefined));
+      await records.create(
+        collection as 'plan',
+        { ...(clean as object), siteId: SITE, patientId, visitId } as never,
+        ctx(),
+      );
+    }
+  }
+  return { visitId, patientId };
+}
+
+describe('letters on the tablet', () => {
+  it('builds the letter offline from the records in IndexedDB, with the previous visit and the trend', async () => {
+    const { visitId } = await chartExample();
+    const visit = (await records.get('visit', visitId))!;
+    const letterId = await draftLetter(
+      records,
+      visit,
+      'referrer',
+      exampleLetterInput.patient.referrer,
+      ctx(),
+    );
+    const text = letterPlainText(await layoutOfLetter(records, letterId, context));
+    expect(text).toContain(
+      'Objective angle (amblyoscope): exo 8.0° (14.1Δ) (previously exo 11.0° (19.4Δ))',
+    );
+    expect(text).toContain('12 May 2026: exo 14.0° (24.9Δ)');
+    expect(text).toContain('Follow-up in 8 weeks.');
+    expect(text).toContain('Draft — not yet finalised');
+  });
+
+  it('renders the PDF on the tablet with Lato embedded', async () => {
+    const { visitId } = await chartExample();
+    const letterId = await draftLetter(
+      records,
+      (await records.get('visit', visitId))!,
+      'referrer',
+      null,
+      ctx(),
+    );
+    const bytes = await letterPdfOnTablet(records, letterId, context);
+    const doc = await PDFDocument.load(bytes);
+    expect(doc.getPageCount()).toBeGreaterThanOrEqual(1);
+    expect(doc.getTitle()).toBe('Orthoptic assessment of Tamsin Orrery, 1 December 2026');
+    expect(Buffer.from(bytes).toString('latin1')).toMatch(/\/BaseFont \/Lato-Regular-\d+/);
+  });
+
+  it('renders the exercise handout from the prescribed exercises', async () => {
+    const { visitId } = await chartExample();
+    const letterId = await draftLetter(
+      records,
+      (await records.get('visit', visitId))!,
+      'handout',
+      null,
+      ctx(),
+    );
+    const text = letterPlainText(await layoutOfLetter(records, letterId, context));
+    expect(text).toContain('Dot card convergence, 5 minutes twice a day');
+    expect(text).toMatch(
+      /Stop the exercises and contact the clinic for advice if your symptoms get worse/,
+    );
+  });
+
+  it('never changes a final letter, and queues a send request in the Outbox', async () => {
+    const { visitId } = await chartExample();
+    const letterId = await draftLetter(
+      records,
+      (await records.get('visit', visitId))!,
+      'referrer',
+      exampleLetterInput.patient.referrer,
+      ctx(),
+    );
+    await editLetter(records, letterId, { opening: 'Dear Dr Whitcombe,' }, ctx());
+    await expect(requestSend(records, letterId, { copyToPatient: false }, ctx())).rejects.toThrow(
+      /only once it is final/,
+    );
+    await finaliseLetter(records, letterId, ctx());
+    const error = await editLetter(records, letterId, { opening: 'changed' }, ctx()).catch(
+      (e: unknown) => e,
+    );
+    expect(error).toBeInstanceOf(LetterRuleError);
+    expect((error as LetterRuleError).field).toBe('opening');
+    expect((await records.get('letter', letterId))!.fields.opening).toBe('Dear Dr Whitcombe,');
+
+    await requestSend(records, letterId, { copyToPatient: true }, ctx());
+    const letter = (await records.get('letter', letterId))!;
+    expect(letter.fields).toMatchObject({
+      status: 'final',
+      deliveryState: 'queued',
+      copyToPatient: true,
+    });
+    expect(deliveryWords(letter.fields)).toBe('Queued to send');
+    const pending = await outbox.listEntries();
+    expect(
+      pending.some((entry) => entry.recordId === letterId && 'sendRequestedAt' in entry.fields),
+    ).toBe(true);
+  });
+
+  it('words the delivery states the server writes back', () => {
+    expect(
+      deliveryWords({ status: 'final', deliveryState: 'sent', sentAt: '2026-12-01T16:00:00.000Z' }),
+    ).toBe('Sent 2026-12-01');
+    expect(
+      deliveryWords({
+        status: 'final',
+        deliveryState: 'failed',
+        deliveryError: 'no referrer e-mail address',
+      }),
+    ).toBe('Not sent: no referrer e-mail address');
+  });
+
+  it('draws with the same code as the server renderer', () => {
+    const body = (path: string) =>
+      readFileSync(resolve(import.meta.dirname, path), 'utf8')
+        .split('\n')
+        .slice(4)
+        .join('\n');
+    expect(body('./letter-pdf.ts')).toBe(body('../../../sync-server/src/letters/letter-pdf.ts'));
+  });
+});
