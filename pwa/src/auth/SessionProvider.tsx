@@ -11,10 +11,10 @@ import {
   type ReactNode,
 } from 'react';
 import { version as appVersion } from '../../package.json';
-import { configureSync, getSyncEngine, stopSync, subscribeSyncEngine } from '../sync/sync-runtime';
+// The sync engine itself is started by pwa/src/sync/SyncRuntime.tsx with SessionSyncAuth.
+import { getSyncEngine, subscribeSyncEngine } from '../sync/sync-runtime';
 import { SessionContext, type TabletSession } from './session-context';
 import { SessionStore, type AuthSnapshot } from './session-store';
-import { SessionSyncAuth } from './session-sync-auth';
 
 const HEARTBEAT_EVERY_MS = 3 * 60_000;
 const RETIREMENT_CHECK_EVERY_MS = 10_000;
@@ -72,25 +72,6 @@ export function SessionProvider({
     }, RETIREMENT_CHECK_EVERY_MS);
     return () => clearInterval(timer);
   }, [store, background, retired]);
-
-  // The sync engine runs while the tablet is enrolled and someone has a session on it; it pulls
-  // as the person using the tablet and pushes each entry under its author's session.
-  const deviceId = snapshot.tablet?.deviceId ?? null;
-  const hasPeople = snapshot.people.length > 0;
-  useEffect(() => {
-    if (!background) return;
-    if (!deviceId || !hasPeople) {
-      stopSync();
-      return;
-    }
-    configureSync({
-      baseUrl: '',
-      auth: new SessionSyncAuth(store),
-      deviceId,
-      pullAs: () => store.getSnapshot().activeUser?.id ?? null,
-    });
-    return () => stopSync();
-  }, [store, background, deviceId, hasPeople]);
 
   // Heartbeat after each sync, with the Outbox size the sync engine just counted.
   useEffect(() => {
