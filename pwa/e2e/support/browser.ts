@@ -34,7 +34,7 @@ export async function launchTablet(viewport = TABLET_LANDSCAPE): Promise<Browser
   });
 }
 
-const artifacts = resolve(import.meta.dirname, '..', '..', 'artifacts', 'screenshots');
+const artifacts = resolve(import.meta.dirname, '..', '..', '..', 'artifacts', 'screenshots');
 
 export async function screenshot(page: Page, name: string): Promise<string> {
   mkdirSync(artifacts, { recursive: true });
