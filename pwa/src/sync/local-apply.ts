@@ -259,8 +259,9 @@ export async function applyPullPage(
       if (patients.length > 0) await db.patientSearch.bulkPut(patients.map(patientSearchRow));
       if (last) {
         const stamp = greatestStamp(records);
-        if (stamp !== null)
-          await receiveIntoDeviceClock(db, options.deviceId, stamp, options.nowMs);
+        if (stamp !== null) {
+          await receiveIntoDeviceClock(db, options.deviceId, stamp, Math.floor(options.nowMs));
+        }
         await writeCursor(db, cursor);
       }
       timings.searchIndexMs += options.now() - started;
