@@ -2,7 +2,7 @@
 // npm run bench:sync — push throughput of the sync server against a throwaway PostgreSQL
 // cluster: batches of 500 changes from one and four tablets, beside a plain batched
 // INSERT … ON CONFLICT of the same rows, with a breakdown of where the push time goes.
-// Figures are printed, not asserted. BENCH_BATCHES sets the batches per tablet (default 6).
+// Then the tablet's first sync into Dexie. Figures are printed, not asserted. BENCH_BATCHES sets the batches per tablet (default 6).
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { ensurePostgres, freePort, repoRoot, run, startCluster, stopCluster } from './lib.mjs';
@@ -14,6 +14,12 @@ let failed = false;
 try {
   await run('npx', ['vitest', 'run', '--config', 'src/sync/bench/vitest.bench.config.mts'], {
     cwd: join(repoRoot, 'sync-server'),
+    env: { ...process.env, FUSELIGHT_TEST_PG_URL: url, NODE_ENV: 'test' },
+  });
+  // The tablet side: a first sync of 50,000 records into Dexie on fake-indexeddb beside a
+  // plain bulkPut of the same records (FUSELIGHT_BENCH_RECORDS changes the size).
+  await run('npx', ['vitest', 'run', '--config', 'vitest.bench.config.mts'], {
+    cwd: join(repoRoot, 'conflict-tests'),
     env: { ...process.env, FUSELIGHT_TEST_PG_URL: url, NODE_ENV: 'test' },
   });
 } catch (error) {
