@@ -1,0 +1,301 @@
+#!/usr/bin/env node
+// `npm run bench:ui`: the production PWA build served by a small static server, in Debian's
+// Chromium. Prints (does not assert):
+//   - cold start to an interactive Today screen with the network off (service worker cache);
+//   - local patient search latency over 20,000 patients through the Today screen, beside a bare
+//     Dexie indexed prefix query on the same database, measured in the same run.
+// The tablet's session and the patients are written straight into IndexedDB with Dexie (its
+// UMD build injected into the page), in the shapes the app's own stores use.
+//   node scripts/bench-ui.mjs [--no-build] [--patients 20000] [--runs 7]
+/* global window, document, HTMLInputElement, requestAnimationFrame -- code run inside the page */
+import { spawnSync } from 'node:child_process';
+import { createReadStream, existsSync, mkdtempSync, statSync } from 'node:fs';
+import { createServer } from 'node:http';
+import { tmpdir } from 'node:os';
+import { extname, join, normalize, resolve } from 'node:path';
+import { chromium } from 'playwright-core';
+
+const root = resolve(import.meta.dirname, '..');
+const dist = join(root, 'pwa', 'dist');
+const args = process.argv.slice(2);
+const option = (name, fallback) => {
+  const i = args.indexOf(name);
+  return i === -1 ? fallback : Number(args[i + 1]);
+};
+const PATIENTS = option('--patients', 20_000);
+const RUNS = option('--runs', 7);
+
+if (!args.includes('--no-build')) {
+  const built = spawnSync('npm', ['run', 'build', '-w', 'pwa', '--silent'], {
+    cwd: root,
+    stdio: ['ignore', 'ignore', 'inherit'],
+  });
+  if (built.status !== 0) throw new Error('npm run build -w pwa failed');
+}
+if (!existsSync(join(dist, 'index.html'))) throw new Error(`No build in ${dist}`);
+
+const TYPES = {
+  '.html': 'text/html; charset=utf-8',
+  '.js': 'text/javascript',
+  '.css': 'text/css',
+  '.json': 'application/json',
+  '.webmanifest': 'application/manifest+json',
+  '.png': 'image/png',
+  '.svg': 'image/svg+xml',
+  '.woff2': 'font/woff2',
+  '.map': 'application/json',
+};
+
+// Static files with the single-page fallback; /api answers 503 (no clinic server here).
+const server = createServer((req, res) => {
+  const path = decodeURIComponent(new URL(req.url ?? '/', 'http://x').pathname);
+  if (path.startsWith('/api/')) {
+    res.writeHead(503, { 'content-type': 'application/json' });
+    res.end('{"message":"no clinic server in the UI benchmark"}');
+    return;
+  }
+  let file = normalize(join(dist, path));
+  if (!file.startsWith(dist) || !existsSync(file) || statSync(file).isDirectory()) {
+    file = join(dist, 'index.html');
+  }
+  res.writeHead(200, {
+    'content-type': TYPES[extname(file)] ?? 'application/octet-stream',
+    'cache-control': 'no-cache',
+  });
+  createReadStream(file).pipe(res);
+});
+await new Promise((done) => server.listen(0, '127.0.0.1', done));
+const origin = `http://127.0.0.1:${server.address().port}`;
+
+const context = await chromium.launchPersistentContext(
+  mkdtempSync(join(tmpdir(), 'fl-bench-ui-')),
+  {
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    headless: true,
+    viewport: { width: 1280, height: 800 },
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+  },
+);
+
+const SITE = '0190c6a0-0000-7000-8000-00000000b001';
+const USER = {
+  id: '0190c6a0-0000-7000-8000-00000000b0c1',
+  name: 'Bench Clinician',
+  email: 'bench@example.test',
+  role: 'orthoptist',
+  siteIds: [SITE],
+};
+
+const median = (values) => {
+  const sorted = [...values].sort((a, b) => a - b);
+  return sorted[Math.floor(sorted.length / 2)];
+};
+const fmt = (ms) => `${ms.toFixed(1)} ms`;
+
+try {
+  // 1. First online visit: the service worker precaches the shell; the app creates its stores.
+  const page = await context.newPage();
+  await page.goto(origin);
+  await page.evaluate(async () => {
+    await navigator.serviceWorker.ready;
+  });
+  await page.addScriptTag({ path: join(root, 'node_modules', 'dexie', 'dist', 'dexie.js') });
+
+  // 2. A signed-in person on an enrolled tablet, and the patients, written with Dexie.
+  await page.evaluate(
+    async ({ user, site }) => {
+      const Dexie = window.Dexie;
+      const auth = new Dexie('fuselight-auth');
+      auth.version(1).stores({ tablet: 'key', people: 'userId', pins: 'userId', settings: 'key' });
+      const now = Date.now();
+      await auth.table('tablet').put({
+        key: 'tablet',
+        deviceId: '0190c6a0-0000-7000-8000-0000000be001',
+        deviceSecret: 'bench-secret',
+        enrolledAt: now,
+        state: 'active',
+      });
+      await auth.table('people').put({
+        userId: user.id,
+        user,
+        accessToken: 'bench-offline-token',
+        accessExpiresAt: now + 3_600_000,
+        refreshToken: null,
+        confirmedAt: now,
+        signInRequired: null,
+        activeSiteId: site,
+      });
+      await auth.table('settings').put({ key: 'activeUserId', value: user.id });
+      auth.close();
+    },
+    { user: USER, site: SITE },
+  );
+  // With a person signed in, Today opens the records database in the app's own schema. The
+  // network is off from here on: with no clinic server, a status check would end the session.
+  await context.setOffline(true);
+  await page.goto(`${origin}/today`);
+  await page.waitForSelector('input[type="search"]');
+  await page.getByText('No visits booked or seen today').waitFor();
+  await page.addScriptTag({ path: join(root, 'node_modules', 'dexie', 'dist', 'dexie.js') });
+  await page.evaluate(
+    async ({ site, count }) => {
+      const Dexie = window.Dexie;
+      const now = Date.now();
+
+      const records = new Dexie('fuselight');
+      // Open whatever version the app created, without declaring a schema of our own.
+      await records.open();
+      const given = [
+        'Ada',
+        'Bram',
+        'Cleo',
+        'Dario',
+        'Esme',
+        'Fenn',
+        'Gwen',
+        'Hugo',
+        'Iris',
+        'Jude',
+      ];
+      const family = ['Alder', 'Birch', 'Cedar', 'Dunmore', 'Elwood', 'Fairley', 'Garth', 'Hollin'];
+      const rows = [];
+      const search = [];
+      for (let i = 0; i < count; i += 1) {
+        const id = `0190c6a1-0000-7000-8000-${i.toString(16).padStart(12, '0')}`;
+        const g = given[i % given.length];
+        const f = `${family[i % family.length]}${i}`;
+        const dob = `${1940 + (i % 80)}-${String((i % 12) + 1).padStart(2, '0')}-${String((i % 28) + 1).padStart(2, '0')}`;
+        const fields = {
+          siteId: site,
+          givenName: g,
+          familyName: f,
+          dateOfBirth: dob,
+          clinicNumber: `BN-${i}`,
+        };
+        rows.push({
+          collection: 'patient',
+          id,
+          version: 1,
+          deleted: false,
+          fields,
+          conflicts: [],
+          pendingFields: [],
+          serverFields: {},
+          updatedAt: now,
+        });
+        search.push({
+          id,
+          siteId: site,
+          terms: [g.toLowerCase(), f.toLowerCase(), `bn-${i}`, dob],
+        });
+      }
+      await records.table('records').bulkPut(rows);
+      await records.table('patientSearch').bulkPut(search);
+      records.close();
+    },
+    { site: SITE, count: PATIENTS },
+  );
+  await page.close();
+
+  // 3. Cold start offline: a new page load served by the service worker, until Today's search
+  //    box is enabled and today's list has rendered.
+  await context.setOffline(true);
+  const starts = [];
+  for (let i = 0; i < RUNS; i += 1) {
+    const p = await context.newPage();
+    await p.goto(`${origin}/today`);
+    const at = await p.waitForFunction(
+      () => {
+        const box = document.querySelector('input[type="search"]');
+        const list = document.body.innerText.includes('No visits booked or seen today');
+        return box && !box.disabled && list ? performance.now() : false;
+      },
+      undefined,
+      { polling: 'raf', timeout: 30_000 },
+    );
+    starts.push(await at.jsonValue());
+    if (i < RUNS - 1) await p.close();
+    else {
+      // 4. Search latency: type a query, time until the expected patient is listed.
+      const probes = ['hollin7', 'bn-1234', 'gwen', 'cedar19', 'bn-9999', 'esme', 'dunmore15'];
+      const ui = [];
+      for (const query of probes.slice(0, RUNS)) {
+        const ms = await p.evaluate(async (typed) => {
+          const box = document.querySelector('input[type="search"]');
+          const setValue = Object.getOwnPropertyDescriptor(HTMLInputElement.prototype, 'value').set;
+          setValue.call(box, '');
+          box.dispatchEvent(new Event('input', { bubbles: true }));
+          await new Promise((r) => setTimeout(r, 100));
+          const t0 = performance.now();
+          setValue.call(box, typed);
+          box.dispatchEvent(new Event('input', { bubbles: true }));
+          for (;;) {
+            await new Promise((r) => requestAnimationFrame(r));
+            const list = document.querySelector('[aria-label="Search results"]');
+            const status = document.querySelector('.flc-status')?.textContent ?? '';
+            if (list && list.children.length > 0 && /found$/.test(status))
+              return performance.now() - t0;
+            if (performance.now() - t0 > 10_000) throw new Error(`no results for ${typed}`);
+          }
+        }, query);
+        ui.push(ms);
+      }
+      await p.addScriptTag({ path: join(root, 'node_modules', 'dexie', 'dist', 'dexie.js') });
+      const bare = await p.evaluate(
+        async (queries) => {
+          const db = new window.Dexie('fuselight');
+          await db.open();
+          const times = [];
+          for (const q of queries) {
+            const t0 = performance.now();
+            const rows = await db
+              .table('patientSearch')
+              .where('terms')
+              .startsWith(q)
+              .limit(30)
+              .toArray();
+            await db.table('records').bulkGet(rows.map((r) => ['patient', r.id]));
+            times.push(performance.now() - t0);
+          }
+          db.close();
+          return times;
+        },
+        probes.slice(0, RUNS),
+      );
+      const count = await p.evaluate(async () => {
+        const db = new window.Dexie('fuselight');
+        await db.open();
+        const n = await db.table('patientSearch').count();
+        db.close();
+        return n;
+      });
+      console.log(
+        `Fuselight UI benchmark (production build, Chromium, ${count} patients on the tablet)`,
+      );
+      console.log(
+        `  cold start to an interactive Today screen, offline: median ${fmt(median(starts))} (runs: ${starts.map(fmt).join(', ')})`,
+      );
+      console.log(
+        `  Today search, typed query to results on screen:     median ${fmt(median(ui))} (runs: ${ui.map(fmt).join(', ')})`,
+      );
+      console.log(
+        `  bare Dexie prefix query + record fetch (30 rows):    median ${fmt(median(bare))} (runs: ${bare.map(fmt).join(', ')})`,
+      );
+      console.log(
+        `  ratio (Today search / bare query): ${(median(ui) / median(bare)).toFixed(2)}×  (aim ≤ 2×)`,
+      );
+    }
+  }
+} finally {
+  await context.close();
+  server.close();
+}
