@@ -9,6 +9,7 @@ import {
   type PushResult,
 } from '@fuselight/shared';
 import type { TestApp } from '../testing/test-app';
+import { createDevice, revokeDevice, signIn, type TestDevice } from '../testing/identity-factory';
 import { HorizonService } from './horizon.service';
 import { parsePushEnvelope } from './sync.service';
 import {
@@ -17,9 +18,11 @@ import {
   createSyncTestApp,
   newId,
   patientFields,
+  signInAgain,
   signInAs,
   Tablet,
   tabletFor,
+  type Caller,
 } from './testing/sync-test-kit';
 
 let t: TestApp;
@@ -44,6 +47,17 @@ async function createPatient(tablet: Tablet, overrides: Record<string, unknown> 
   ).results;
   if (result?.status !== 'applied') throw new Error(`create answered ${JSON.stringify(result)}`);
   return { recordId, version: result.version };
+}
+
+async function signInWithDevice(person: Caller, device: TestDevice): Promise<Caller> {
+  const session = await signIn(t, { user: person.person, device });
+  return {
+    ...person,
+    deviceId: session.deviceId,
+    siteIds: session.user.siteIds,
+    token: session.accessToken,
+    device,
+  };
 }
 
 async function recordRow(recordId: string) {
@@ -421,6 +435,39 @@ describe('POST /api/sync/push: refused requests', () => {
   });
 });
 
+describe('sessions behind push and pull', () => {
+  it('answers 401 (erase) to a revoked tablet and 401 to an ended session, applying nothing', async () => {
+    const revoked = await tabletFor(t, 'orthoptist', [SITE_A]);
+    await revokeDevice(t, revoked.caller.deviceId as string);
+    const change = revoked.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    const refused = await revoked.push([change]);
+    expect(refused.status).toBe(401);
+    expect(refused.body.erase).toBe(true);
+    expect((await revoked.pull(0)).status).toBe(401);
+    expect(await recordRow(change.recordId as string)).toBeUndefined();
+
+    const signedOut = await tabletFor(t, 'orthoptist', [SITE_A]);
+    await request(t.app.getHttpServer())
+      .post('/api/auth/logout')
+      .set('authorization', `Bearer ${signedOut.caller.token}`)
+      .expect((res) => expect(res.status).toBeLessThan(300));
+    const late = signedOut.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    expect((await signedOut.push([late])).status).toBe(401);
+    expect(await recordRow(late.recordId as string)).toBeUndefined();
+  });
+
+  it('binds a session to the sites its tablet serves', async () => {
+    const person = await signInAs(t, 'orthoptist', [SITE_A, SITE_B], { desk: true });
+    const onlyA = await createDevice(t, { siteIds: [SITE_A] });
+    const tablet = new Tablet(t, await signInWithDevice(person, onlyA));
+    expect(tablet.caller.siteIds).toEqual([SITE_A]);
+    const [result] = (
+      await tablet.pushOk([tablet.change({ recordId: newId(), fields: patientFields(SITE_B) })])
+    ).results;
+    expect(result).toMatchObject({ status: 'rejected', error: expect.stringContaining(SITE_B) });
+  });
+});
+
 describe('GET /api/sync/pull', () => {
   it('pages records in ascending version, each once a page, with all fields, stamps, more and cursor', async () => {
     const puller = await tabletFor(t, 'orthoptist', [SITE_A]);
@@ -536,11 +583,11 @@ describe('tombstone horizon', () => {
     expect(await recordRow(recordId)).toBeUndefined();
     expect(await recordRow(live.recordId)).toBeDefined();
 
-    // Tokens are checked against the server clock, so the tablet signs in again after 91 days.
-    const later = new Tablet(
-      t,
-      await signInAs(t, 'orthoptist', [SITE_A], { userId: tabA.caller.userId }),
-    );
+    // Tokens are checked against the server clock: tabA's token has long expired (401), so the
+    // same person signs in again on the same tablet after 91 days.
+    expect((await tabA.pull(stale)).status).toBe(401);
+    const later = new Tablet(t, await signInAgain(t, tabA.caller));
+    expect(later.caller.deviceId).toBe(tabA.caller.deviceId);
     expect(await later.pullOk(stale)).toEqual({ reset: true });
     const fresh = await later.pullOk(0);
     expect(isPullReset(fresh)).toBe(false);

@@ -8,7 +8,9 @@
 //   const { accessToken } = await signIn(t, { user: nurse, device: tablet });
 import type { Role, SessionUser } from '@fuselight/shared';
 import request from 'supertest';
+import { EntityManager } from '@mikro-orm/postgresql';
 import { AdminSitesService, type SiteView } from '../admin/admin-sites.service';
+import { Site } from '../sites/site.entity';
 import { DevicesService } from '../devices/devices.service';
 import { UsersService } from '../users/users.service';
 import type { TestApp } from './test-app';
@@ -43,17 +45,27 @@ export interface TestSession {
   deviceId: string | null;
 }
 
+/**
+ * A site, created as an admin would. With `id`, the site gets that fixed id instead (for suites
+ * whose scenario names its sites up front); the row is then written directly, as the admin
+ * service assigns ids itself.
+ */
 export async function createSite(
   t: TestApp,
-  overrides: Partial<Pick<SiteView, 'name' | 'kind' | 'address' | 'timeZone'>> = {},
+  overrides: Partial<Pick<SiteView, 'id' | 'name' | 'kind' | 'address' | 'timeZone'>> = {},
 ): Promise<SiteView> {
   const n = next();
-  return t.app.get(AdminSitesService).create(null, {
+  const input = {
     name: overrides.name ?? `Test site ${n}`,
     kind: overrides.kind ?? 'clinic',
     address: overrides.address ?? null,
     timeZone: overrides.timeZone ?? 'Europe/London',
-  });
+  };
+  if (overrides.id === undefined) return t.app.get(AdminSitesService).create(null, input);
+  const em = t.app.get(EntityManager).fork();
+  const site = em.create(Site, { id: overrides.id, ...input, createdAt: t.clock.now() });
+  await em.persist(site).flush();
+  return { ...input, id: site.id, createdAt: site.createdAt.toISOString() };
 }
 
 export async function createUser(

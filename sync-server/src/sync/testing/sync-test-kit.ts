@@ -1,10 +1,10 @@
-// Test helpers for the sync and conflicts tiers: the real app on a fresh database, signed-in
-// callers, tablets with their own HLC, and valid patient changes.
+// Test helpers for the sync and conflicts tiers: the real app on a fresh database with two sites,
+// signed-in callers, tablets with their own HLC, and valid patient changes.
 //
-// Tokens: until the identity factory (testing/identity-factory.ts) is committed, callers are
-// minted here with the app's JwtService, and the app's session check is told to accept them
-// (the only place that happens). Switch `signInAs` to the factory once it lands.
-import { JwtService } from '@nestjs/jwt';
+// Callers are real people and real enrolled tablets (testing/identity-factory.ts), signed in
+// through POST /api/auth/login, so every request passes the real guard and session check.
+// Access tokens expire by the app's TestClock: a test that moves it past the access-token TTL
+// signs the caller in again (`signInAgain`).
 import request from 'supertest';
 import { v7 as uuidv7 } from 'uuid';
 import {
@@ -18,8 +18,14 @@ import {
   type PushResponse,
   type Role,
 } from '@fuselight/shared';
-import type { AccessTokenClaims } from '../../auth/auth-user';
-import { SESSION_CHECK, type SessionCheck } from '../../auth/session-check';
+import {
+  createDevice,
+  createSite,
+  createUser,
+  signIn,
+  type TestDevice,
+  type TestUser,
+} from '../../testing/identity-factory';
 import { createTestApp, type TestApp } from '../../testing/test-app';
 
 export const SITE_A = '0190c6a0-0000-7000-8000-00000000000a';
@@ -29,38 +35,55 @@ export interface Caller {
   userId: string;
   deviceId: string | null;
   role: Role;
+  /** The sites of the session (the person's sites that the tablet serves). */
   siteIds: string[];
   token: string;
+  person: TestUser;
+  device: TestDevice | null;
 }
 
+/** The real app on a fresh database holding the sites SITE_A and SITE_B. */
 export async function createSyncTestApp(
   options: { env?: Record<string, string> } = {},
 ): Promise<TestApp> {
   const t = await createTestApp(options);
-  const check = t.app.get<symbol, SessionCheck>(SESSION_CHECK, { strict: false });
-  check.assertActive = async () => undefined;
+  await createSite(t, { id: SITE_A, name: 'Site A' });
+  await createSite(t, { id: SITE_B, name: 'Site B', kind: 'outreach' });
   return t;
 }
 
+/** A new person of `role` at `siteIds`, signed in on a new tablet for those sites (or at a desk). */
 export async function signInAs(
   t: TestApp,
   role: Role,
   siteIds: string[],
-  options: { desk?: boolean; userId?: string } = {},
+  options: { desk?: boolean } = {},
 ): Promise<Caller> {
-  const userId = options.userId ?? uuidv7();
-  const deviceId = options.desk ? null : uuidv7();
-  // Issued at the app's (test) clock, which the guard judges expiry by.
-  const claims: AccessTokenClaims & { iat: number } = {
-    sub: userId,
-    role,
-    siteIds,
-    deviceId,
-    sessionId: uuidv7(),
-    iat: Math.floor(t.clock.now().getTime() / 1000),
+  const person = await createUser(t, { role, siteIds });
+  const device = options.desk ? null : await createDevice(t, { siteIds });
+  return signInWith(t, person, device);
+}
+
+/** The same person on the same tablet (or desk), signed in again at the app's current time. */
+export function signInAgain(t: TestApp, caller: Caller): Promise<Caller> {
+  return signInWith(t, caller.person, caller.device);
+}
+
+async function signInWith(
+  t: TestApp,
+  person: TestUser,
+  device: TestDevice | null,
+): Promise<Caller> {
+  const session = await signIn(t, { user: person, ...(device ? { device } : {}) });
+  return {
+    userId: session.user.id,
+    deviceId: session.deviceId,
+    role: session.user.role,
+    siteIds: session.user.siteIds,
+    token: session.accessToken,
+    person,
+    device,
   };
-  const token = await t.app.get(JwtService).signAsync(claims);
-  return { userId, deviceId, role, siteIds, token };
 }
 
 /** A tablet: a caller with its own hybrid logical clock, ticking on the test clock. */
