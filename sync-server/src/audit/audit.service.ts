@@ -3,6 +3,7 @@
 // records every clinical record change this way). Account events (sign-ins, tablets, people,
 // sites) are read by admins; clinical events by supervisors of the event's site.
 import type { EntityManager } from '@mikro-orm/core';
+import type { EntityManager as SqlEntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable } from '@nestjs/common';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { AuditEvent, type AuditScope } from './audit-event.entity';
@@ -55,26 +56,38 @@ export class AuditService {
 
   /**
    * Appends several events in one statement (a sync push records one per change). Plain SQL over
-   * a JSON array: the ORM's per-entity conversion cost more than the rest of a push.
+   * a JSON array bound as one parameter: the ORM's per-entity conversion, and MikroORM's
+   * `execute` (which inlines and escapes every parameter into the statement text), cost more
+   * than the rest of a push. The time is the same for the whole batch, so it travels once.
    */
   async recordMany(em: EntityManager, events: AuditInput[]): Promise<void> {
     if (events.length === 0) return;
-    const rows = events.map((event) => {
-      const row = this.row(event);
-      return { ...row, occurredAt: row.occurredAt.toISOString() };
-    });
-    await em.getConnection().execute(
+    const occurredAt = this.clock.now().toISOString();
+    const rows = events.map((event) => ({
+      id: this.ids.uuid(),
+      scope: event.scope ?? scopeOfKind(event.kind),
+      kind: event.kind,
+      actorId: event.actorId ?? null,
+      deviceId: event.deviceId ?? null,
+      siteId: event.siteId ?? null,
+      subjectType: event.subjectType,
+      subjectId: event.subjectId ?? null,
+      detail: withoutSecrets(event.detail ?? {}),
+    }));
+    const knex = (em as unknown as SqlEntityManager).getKnex();
+    const query = knex.raw(
       `insert into "audit_event"
          ("id", "occurred_at", "scope", "kind", "actor_id", "device_id", "site_id", "subject_type", "subject_id", "detail")
-       select r."id", r."occurredAt", r."scope", r."kind", r."actorId", r."deviceId", r."siteId",
+       select r."id", ?::timestamptz, r."scope", r."kind", r."actorId", r."deviceId", r."siteId",
               r."subjectType", r."subjectId", coalesce(r."detail", '{}'::jsonb)
          from jsonb_to_recordset(?::jsonb) as r(
-           "id" uuid, "occurredAt" timestamptz, "scope" text, "kind" text, "actorId" uuid,
+           "id" uuid, "scope" text, "kind" text, "actorId" uuid,
            "deviceId" uuid, "siteId" uuid, "subjectType" text, "subjectId" text, "detail" jsonb)`,
-      [JSON.stringify(rows)],
-      'run',
-      em.getTransactionContext(),
+      [occurredAt, JSON.stringify(rows)],
     );
+    const trx = em.getTransactionContext<Parameters<typeof query.transacting>[0]>();
+    if (trx) query.transacting(trx);
+    await query;
   }
 
   private row(event: AuditInput) {

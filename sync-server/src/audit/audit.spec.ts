@@ -162,6 +162,38 @@ describe('the audit trail', () => {
     expect(rows[1]?.detail).toEqual({});
   });
 
+  it('keeps quotes, backslashes and question marks of a batch intact, and rolls the batch back with its transaction', async () => {
+    const awkward = `O'Brien said "?" \\ then $1 ?? ok`;
+    await t.em().transactional(async (em) => {
+      await audit().recordMany(em, [
+        {
+          kind: 'record.changed',
+          siteId: siteB,
+          subjectType: 'visit',
+          subjectId: 'batch-kept',
+          detail: { note: awkward },
+        },
+      ]);
+    });
+    await expect(
+      t.em().transactional(async (em) => {
+        await audit().recordMany(em, [
+          { kind: 'record.changed', siteId: siteB, subjectType: 'visit', subjectId: 'batch-lost' },
+        ]);
+        throw new Error('the change failed');
+      }),
+    ).rejects.toThrow('the change failed');
+    const rows = await t
+      .em()
+      .getConnection()
+      .execute<{ subject_id: string; detail: { note?: string }; occurred_at: Date }[]>(
+        `select subject_id, detail, occurred_at from audit_event where subject_id like 'batch-%'`,
+      );
+    expect(rows.map((row) => row.subject_id)).toEqual(['batch-kept']);
+    expect(rows[0]?.detail.note).toBe(awkward);
+    expect(new Date(rows[0]?.occurred_at ?? 0).toISOString()).toBe(t.clock.now().toISOString());
+  });
+
   it('files kinds under account or clinical by their prefix', () => {
     expect(scopeOfKind('auth.sign_in')).toBe('account');
     expect(scopeOfKind('device.revoked')).toBe('account');
