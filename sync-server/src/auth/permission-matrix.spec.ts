@@ -116,6 +116,7 @@ describe('permission matrix of the identity routes', () => {
       freshSession: true,
     },
     { method: 'get', route: '/api/me', path: () => '/api/me', expect: everyone(200) },
+    { method: 'get', route: '/api/me/sites', path: () => '/api/me/sites', expect: everyone(200) },
     {
       method: 'post',
       route: '/api/me/password',

@@ -5,7 +5,7 @@ import { CurrentUser } from '../auth/auth.decorators';
 import type { AuthUser } from '../auth/auth-user';
 import { zodDto } from '../common/zod-validation.pipe';
 import { changePasswordSchema } from './users.schemas';
-import { UsersService, type MeView } from './users.service';
+import { UsersService, type MeView, type MySiteView } from './users.service';
 
 class ChangePasswordBody extends zodDto(changePasswordSchema) {}
 
@@ -20,6 +20,19 @@ export class MeController {
   @ApiResponse({ status: 200, description: 'MeView' })
   me(@CurrentUser() user: AuthUser): Promise<MeView> {
     return this.users.me(user);
+  }
+
+  @Get('sites')
+  @ApiOperation({
+    summary:
+      'The sites you belong to, with their names (for the site picker); any signed-in person, admins included',
+  })
+  @ApiResponse({
+    status: 200,
+    description: 'MySiteView[]: { id, name, kind (clinic | outreach), timeZone }, by name',
+  })
+  sites(@CurrentUser() user: AuthUser): Promise<MySiteView[]> {
+    return this.users.mySites(user);
   }
 
   @Post('password')

@@ -19,6 +19,7 @@ import { TokenService } from '../auth/token.service';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { assertSitesExist, replaceUserSites, siteIdsOfUser, siteIdsOfUsers } from './memberships';
 import { User } from './user.entity';
+import { Site, type SiteKind } from '../sites/site.entity';
 import type { changePasswordSchema, inviteUserSchema, updateUserSchema } from './users.schemas';
 
 export interface UserView {
@@ -44,6 +45,14 @@ export interface MeView {
   needsCountersign: boolean;
   mustChangePassword: boolean;
   deviceId: string | null;
+}
+
+/** A site the signed-in person belongs to, with what a clinician needs to recognise it. */
+export interface MySiteView {
+  id: string;
+  name: string;
+  kind: SiteKind;
+  timeZone: string;
 }
 
 export interface NewPersonInput {
@@ -222,6 +231,24 @@ export class UsersService {
       mustChangePassword: user.mustChangePassword,
       deviceId: caller.deviceId,
     };
+  }
+
+  /** The sites the person belongs to (every membership, not only this session's), by name. */
+  async mySites(caller: AuthUser): Promise<MySiteView[]> {
+    const em = this.em.fork();
+    const siteIds = await siteIdsOfUser(em, caller.userId);
+    if (siteIds.length === 0) return [];
+    const sites = await em.find(
+      Site,
+      { id: { $in: siteIds } },
+      { orderBy: { name: 'asc', id: 'asc' } },
+    );
+    return sites.map((site) => ({
+      id: site.id,
+      name: site.name,
+      kind: site.kind,
+      timeZone: site.timeZone,
+    }));
   }
 
   async changePassword(

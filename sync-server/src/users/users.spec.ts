@@ -2,6 +2,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import {
   bearer,
+  createDevice,
   createSite,
   createUser,
   signIn,
@@ -219,5 +220,56 @@ describe('people and sites at the admin desk', () => {
     expect(wrong.body.message).toContain('body.timeZone');
     const list = await request(server()).get('/api/admin/sites').set(bearer(admin.accessToken));
     expect(list.body.map((s: { id: string }) => s.id)).toContain(created.body.id);
+  });
+});
+
+describe('GET /api/me/sites', () => {
+  let t: TestApp;
+  const server = () => t.app.getHttpServer();
+
+  beforeAll(async () => {
+    t = await createTestApp();
+  });
+  afterAll(async () => {
+    await t.close();
+  });
+
+  it('names every site the person belongs to, by name, and none of anyone else’s', async () => {
+    const north = await createSite(t, { name: 'Northgate Eye Clinic', timeZone: 'Europe/Dublin' });
+    const school = await createSite(t, { name: 'Ashby Primary (outreach)', kind: 'outreach' });
+    const elsewhere = await createSite(t, { name: 'Someone else’s clinic' });
+    const person = await createUser(t, { role: 'orthoptist', siteIds: [north.id, school.id] });
+    await createUser(t, { role: 'orthoptist', siteIds: [elsewhere.id] });
+    // On a tablet that serves only one of them, the person still sees both names.
+    const tablet = await createDevice(t, { siteIds: [north.id] });
+    const session = await signIn(t, { user: person, device: tablet });
+    expect(session.user.siteIds).toEqual([north.id]);
+
+    const res = await request(server()).get('/api/me/sites').set(bearer(session.accessToken));
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual([
+      {
+        id: school.id,
+        name: 'Ashby Primary (outreach)',
+        kind: 'outreach',
+        timeZone: 'Europe/London',
+      },
+      { id: north.id, name: 'Northgate Eye Clinic', kind: 'clinic', timeZone: 'Europe/Dublin' },
+    ]);
+  });
+
+  it('gives an admin their own sites, an admin with none an empty list, and 401 without a token', async () => {
+    const site = await createSite(t, { name: 'Admin’s clinic' });
+    const withSite = await createUser(t, { role: 'admin', siteIds: [site.id] });
+    const withNone = await createUser(t, { role: 'admin', siteIds: [] });
+    const a = await signIn(t, { user: withSite });
+    const b = await signIn(t, { user: withNone });
+    expect((await request(server()).get('/api/me/sites').set(bearer(a.accessToken))).body).toEqual([
+      { id: site.id, name: 'Admin’s clinic', kind: 'clinic', timeZone: 'Europe/London' },
+    ]);
+    expect((await request(server()).get('/api/me/sites').set(bearer(b.accessToken))).body).toEqual(
+      [],
+    );
+    expect((await request(server()).get('/api/me/sites')).status).toBe(401);
   });
 });
