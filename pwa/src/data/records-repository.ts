@@ -139,15 +139,20 @@ export class RecordsRepository {
     return typeof this.dbSource === 'function' ? this.dbSource() : this.dbSource;
   }
 
-  /** Creates a record (validated as a whole) and returns its new id (UUID v7). */
+  /**
+   * Creates a record (validated as a whole) and returns its id: a new UUID v7, or `options.id`
+   * for a record whose id must be the same on every tablet (one Section per visit, so that two
+   * tablets starting the same Section offline edit one record and merge field by field).
+   */
   async create<C extends CollectionName>(
     collection: C,
     fields: RecordFieldsInput<C>,
     ctx: EditContext,
+    options: { id?: string } = {},
   ): Promise<string> {
     const validation = validateRecord(collection, fields);
     if (!validation.ok) throw new RecordValidationError(collection, validation.errors);
-    const id = uuidv7();
+    const id = options.id ?? uuidv7();
     await this.writeEdit(collection, id, { fields: validation.fields }, ctx, true);
     return id;
   }
