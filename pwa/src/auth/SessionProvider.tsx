@@ -54,6 +54,7 @@ export function SessionProvider({
       store
         .checkTablet()
         .then(() => store.heartbeat(appVersion))
+        .then(() => store.refreshSites())
         .catch(() => undefined);
     };
     beat();

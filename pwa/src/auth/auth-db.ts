@@ -1,6 +1,7 @@
 // The tablet's own identity store, kept apart from the records database (pwa/src/data/db.ts):
 // the enrolled tablet's credentials, each person's tokens, their PIN hash (never the PIN), and
-// the unlock policy. Only pwa/src/auth talks to it.
+// the unlock policy, and the names of the sites of the people who signed in here. Only
+// pwa/src/auth talks to it.
 import Dexie, { type EntityTable } from 'dexie';
 import type { SessionUser } from '@fuselight/shared';
 
@@ -44,6 +45,16 @@ export interface PinRecord {
   setAt: number;
 }
 
+/** A site's name as the server last gave it (GET /api/me/sites), kept so it shows offline. */
+export interface KnownSite {
+  id: string;
+  name: string;
+  kind: 'clinic' | 'outreach';
+  timeZone: string;
+  /** Epoch ms of the answer it came from. */
+  fetchedAt: number;
+}
+
 export interface AuthSetting {
   key: string;
   value: unknown;
@@ -54,6 +65,7 @@ export class AuthDb extends Dexie {
   people!: EntityTable<PersonSession, 'userId'>;
   pins!: EntityTable<PinRecord, 'userId'>;
   settings!: EntityTable<AuthSetting, 'key'>;
+  sites!: EntityTable<KnownSite, 'id'>;
 
   constructor(name = AUTH_DB_NAME) {
     super(name);
@@ -62,6 +74,13 @@ export class AuthDb extends Dexie {
       people: 'userId',
       pins: 'userId',
       settings: 'key',
+    });
+    this.version(2).stores({
+      tablet: 'key',
+      people: 'userId',
+      pins: 'userId',
+      settings: 'key',
+      sites: 'id',
     });
   }
 }

@@ -7,6 +7,12 @@ import type { FetchLike } from './identity-api';
 export const SITE_A = '0190c6a0-0000-7000-8000-00000000a001';
 export const SITE_B = '0190c6a0-0000-7000-8000-00000000a002';
 
+/** What GET /api/me/sites knows about the sites (names invented for the tests). */
+export const SITES = [
+  { id: SITE_A, name: 'Harbourview Eye Clinic', kind: 'clinic', timeZone: 'Europe/London' },
+  { id: SITE_B, name: 'Saltmarsh School (outreach)', kind: 'outreach', timeZone: 'Europe/London' },
+];
+
 export const AMARA: SessionUser = {
   id: '0190c6a0-0000-7000-8000-000000000011',
   name: 'Amara Lindqvist',
@@ -48,6 +54,8 @@ export interface FakeClinicServer {
   /** Every request seen, as "METHOD /path" with the bearer's user id if any. */
   calls: { route: string; userId: string | null; body: unknown }[];
   refuseRefresh: 'no' | 'unauthorized' | 'revoked' | 'offline';
+  /** GET /api/me/sites fails as with no network. */
+  offline: boolean;
   deviceState: 'active' | 'retired' | 'revoked';
   enrolmentCode: string;
   accessTtlSeconds: number;
@@ -88,6 +96,7 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
   const server: FakeClinicServer = {
     calls: [],
     refuseRefresh: 'no',
+    offline: false,
     deviceState: 'active',
     enrolmentCode: 'K7Q2M9XD',
     accessTtlSeconds: 600,
@@ -152,6 +161,16 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
           if (server.deviceState === 'revoked') return revoked();
           if (!caller) return json(401, { message: 'Sign in first.' });
           return json(200, { state: server.deviceState });
+        case 'GET /api/me/sites': {
+          if (server.deviceState === 'revoked') return revoked();
+          if (server.offline) throw new TypeError('Failed to fetch');
+          if (!caller) return json(401, { message: 'Sign in first.' });
+          const person = byId.get(caller);
+          return json(
+            200,
+            SITES.filter((site) => person?.siteIds.includes(site.id)),
+          );
+        }
         case 'POST /api/devices/heartbeat':
           if (server.deviceState === 'revoked') return revoked();
           return caller ? json(201, { ok: true }) : json(401, { message: 'Sign in first.' });

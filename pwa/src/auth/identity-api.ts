@@ -7,6 +7,16 @@ import {
   type Role,
   type SessionUser,
 } from '@fuselight/shared';
+import { z } from 'zod';
+
+/** One site of GET /api/me/sites; checked, so a bad answer never reaches the site picker. */
+export const mySiteSchema = z.object({
+  id: z.uuid(),
+  name: z.string().min(1),
+  kind: z.enum(['clinic', 'outreach']),
+  timeZone: z.string().min(1),
+});
+export type MySite = z.infer<typeof mySiteSchema>;
 
 export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
 
@@ -196,6 +206,11 @@ export class IdentityApi {
 
   signOut(token: string): Promise<void> {
     return this.request('POST', '/api/auth/logout', { token });
+  }
+
+  /** The sites the signed-in person belongs to, with their names (any role). */
+  async mySites(token: string): Promise<MySite[]> {
+    return z.array(mySiteSchema).parse(await this.request('GET', '/api/me/sites', { token }));
   }
 
   enrol(code: string): Promise<EnrolResponse> {

@@ -174,3 +174,53 @@ describe('sessions on a shared tablet', () => {
     ]);
   });
 });
+
+describe('site names', () => {
+  it('keeps the names of the person’s sites from GET /api/me/sites, and shows them offline after a restart', async () => {
+    const { store, server, make } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    await store.refreshSites();
+    expect(server.calls.map((c) => c.route)).toContain('GET /api/me/sites');
+    expect(store.getSnapshot().sites[SITE_B]).toMatchObject({
+      name: 'Saltmarsh School (outreach)',
+      kind: 'outreach',
+    });
+
+    server.offline = true;
+    const restarted = make();
+    await restarted.load();
+    await restarted.refreshSites();
+    expect(
+      Object.values(restarted.getSnapshot().sites)
+        .map((s) => s.name)
+        .sort(),
+    ).toEqual(['Harbourview Eye Clinic', 'Saltmarsh School (outreach)']);
+  });
+
+  it('forgets the names when the tablet is erased', async () => {
+    const { store, server } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    await store.signIn({ email: TOMASZ.email, password: PASSWORDS[TOMASZ.email]! });
+    await store.refreshSites();
+    expect(Object.keys(store.getSnapshot().sites)).toHaveLength(1);
+    server.deviceState = 'revoked';
+    await store.refreshSites();
+    expect(store.getSnapshot().erasure?.cause).toBe('revoked');
+    expect(store.getSnapshot().sites).toEqual({});
+  });
+});
+
+describe('GET /api/me/sites on the tablet', () => {
+  it('refuses an answer that is not a list of sites, naming the field', async () => {
+    const api = new IdentityApi({
+      fetch: async () =>
+        new Response(JSON.stringify([{ id: SITE_B, name: '', kind: 'clinic', timeZone: 'UTC' }]), {
+          status: 200,
+        }),
+    });
+    await expect(api.mySites('token')).rejects.toThrow(/name/);
+  });
+});

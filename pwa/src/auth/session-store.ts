@@ -3,7 +3,13 @@
 // using it now, offline unlock by PIN, the enrolled tablet's credentials, and erasure when the
 // clinic revokes or retires the tablet. Persisted in auth-db.ts; SessionProvider mirrors it.
 import type { LoginRequest, SessionUser } from '@fuselight/shared';
-import { AuthDb, type PersonSession, type PinRecord, type TabletCredentials } from './auth-db';
+import {
+  AuthDb,
+  type KnownSite,
+  type PersonSession,
+  type PinRecord,
+  type TabletCredentials,
+} from './auth-db';
 import {
   ApiError,
   IdentityApi,
@@ -68,6 +74,8 @@ export interface AuthSnapshot {
   policy: UnlockPolicy;
   /** Who was just signed in on an enrolled tablet without a PIN: offer them one next. */
   pinOfferFor: string | null;
+  /** Site names by id, as the server last gave them (kept in IndexedDB, so known offline). */
+  sites: Readonly<Record<string, KnownSite>>;
 }
 
 export type UnlockResult =
@@ -117,6 +125,7 @@ export class SessionStore {
   private retirement: { waitingChanges: number } | null = null;
   private loaded = false;
   private pinOfferFor: string | null = null;
+  private sites = new Map<string, KnownSite>();
   private erasing: Promise<void> | null = null;
   private readonly refreshing = new Map<string, Promise<string | null>>();
   private readonly listeners = new Set<() => void>();
@@ -189,6 +198,7 @@ export class SessionStore {
       retirement: this.retirement,
       policy: this.policy,
       pinOfferFor: this.pinOfferFor,
+      sites: Object.fromEntries(this.sites),
     };
   }
 
@@ -196,13 +206,15 @@ export class SessionStore {
 
   async load(): Promise<void> {
     this.erasure = readErasureNote();
-    const [tablet, people, pins, active, policy] = await Promise.all([
+    const [tablet, people, pins, active, policy, sites] = await Promise.all([
       this.db.tablet.get('tablet'),
       this.db.people.toArray(),
       this.db.pins.toArray(),
       this.db.settings.get(ACTIVE_KEY),
       this.db.settings.get(POLICY_KEY),
+      this.db.sites.toArray(),
     ]);
+    this.sites = new Map(sites.map((site) => [site.id, site]));
     this.tablet = tablet ?? null;
     this.people = new Map(people.map((p) => [p.userId, p]));
     this.pins = new Map(pins.map((p) => [p.userId, p]));
@@ -263,6 +275,8 @@ export class SessionStore {
     this.activeUserId = person.userId;
     this.pinOfferFor = this.tablet && !pin ? person.userId : null;
     this.publish();
+    // The names are for showing only: the sign-in never waits for them or fails with them.
+    this.refreshSites().catch(() => undefined);
     return person.user;
   }
 
@@ -434,7 +448,33 @@ export class SessionStore {
     this.pins.set(userId, { ...record, failedAttempts: 0 });
     this.activeUserId = userId;
     this.publish();
+    this.refreshSites().catch(() => undefined);
     return { ok: true };
+  }
+
+  // ---- site names ---------------------------------------------------------------------------
+
+  /**
+   * Asks the server for the active person's sites and keeps their names. Offline, or refused,
+   * the names last fetched stay (a person's sites come from their session, not from this list).
+   */
+  async refreshSites(): Promise<void> {
+    const userId = this.activeUserId;
+    if (!userId) return;
+    const token = await this.tokenFor(userId);
+    if (!token) return;
+    let answer: Awaited<ReturnType<IdentityApi['mySites']>>;
+    try {
+      answer = await this.api.mySites(token);
+    } catch (error) {
+      await this.eraseIfTold(error);
+      return;
+    }
+    const fetchedAt = this.now();
+    const known = answer.map((site): KnownSite => ({ ...site, fetchedAt }));
+    await this.db.sites.bulkPut(known);
+    for (const site of known) this.sites.set(site.id, site);
+    this.publish();
   }
 
   // ---- tokens (the sync seam and server calls) ---------------------------------------------
@@ -629,6 +669,7 @@ export class SessionStore {
     this.tablet = null;
     this.people.clear();
     this.pins.clear();
+    this.sites.clear();
     this.waiting.clear();
     this.activeUserId = null;
     this.retirement = null;

@@ -5,6 +5,7 @@ import { useNavigate } from 'react-router-dom';
 import { useSession } from '../../auth/session-context';
 import { useAuthState } from '../../auth/SessionProvider';
 import { countOutboxEntries } from '../../auth/outbox-count';
+import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Confirmation, SelectField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
@@ -12,7 +13,7 @@ import { identityKeys } from '../admin/identity-query-keys';
 
 export default function PersonScreen() {
   const { user, activeSiteId, deviceId } = useSession();
-  const { people, policy } = useAuthState();
+  const { people, policy, sites } = useAuthState();
   const actions = useAuthActions();
   const navigate = useNavigate();
   const [confirmingSignOut, setConfirmingSignOut] = useState(false);
@@ -38,10 +39,12 @@ export default function PersonScreen() {
         >
           {user.siteIds.map((id, index) => (
             <option key={id} value={id}>
-              Site {index + 1} ({id.slice(-6)})
+              {siteLabel(sites, id, index)}
             </option>
           ))}
         </SelectField>
+      ) : user.siteIds[0] ? (
+        <p>Working at {siteLabel(sites, user.siteIds[0], 0)}.</p>
       ) : null}
       {deviceId ? (
         <p>

@@ -44,6 +44,16 @@ async function tabletWithTwoPeople() {
 }
 
 describe('the person switcher', () => {
+  it('names each person’s sites as the server named them', async () => {
+    const store = await tabletWithTwoPeople();
+    await store.unlock(AMARA.id, '5151');
+    await store.refreshSites();
+    await store.switchPerson();
+    expect(
+      await screen.findByText('Harbourview Eye Clinic, Saltmarsh School (outreach)'),
+    ).toBeTruthy();
+  });
+
   it('lists everyone on the tablet and unlocks the chosen person with their PIN', async () => {
     const store = await tabletWithTwoPeople();
     const user = userEvent.setup();

@@ -4,6 +4,7 @@ import { useState, type FormEvent } from 'react';
 import { Link, useNavigate } from 'react-router-dom';
 import type { KnownPerson } from '../../auth/session-store';
 import { useAuthState } from '../../auth/SessionProvider';
+import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Notice, TextField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
@@ -16,7 +17,7 @@ function whyNoPin(person: KnownPerson): string {
 }
 
 export default function UnlockScreen() {
-  const { people, loaded } = useAuthState();
+  const { people, loaded, sites } = useAuthState();
   const actions = useAuthActions();
   const navigate = useNavigate();
   const [chosen, setChosen] = useState<string | null>(null);
@@ -56,6 +57,11 @@ export default function UnlockScreen() {
             <div className="fl-id-row" style={{ justifyContent: 'space-between' }}>
               <div>
                 <strong>{p.user.name}</strong>
+                {p.user.siteIds.length > 0 ? (
+                  <p className="fl-id-hint">
+                    {p.user.siteIds.map((id, index) => siteLabel(sites, id, index)).join(', ')}
+                  </p>
+                ) : null}
                 <p className="fl-id-hint">
                   {p.canUnlockWithPin ? `${p.pinAttemptsLeft} PIN attempts left` : whyNoPin(p)}
                 </p>
