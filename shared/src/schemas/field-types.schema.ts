@@ -218,6 +218,18 @@ export function emailAddress(label: string) {
   );
 }
 
+/**
+ * Any JSON value, kept as a whole (an Addendum's value before and after a change, which may be a
+ * number, text, a list or an object depending on the field it amends).
+ */
+export function jsonValue(label: string) {
+  return described(z.json({ error: `${label} must be a JSON value` }), {
+    label,
+    unit: null,
+    kind: 'object',
+  });
+}
+
 /** Registers label metadata on a composite field (an object or a list stored as one value). */
 export function compositeField<T extends z.ZodType>(
   schema: T,

@@ -21,6 +21,7 @@ export * from './motility.schema';
 export * from './plan.schema';
 export * from './attachment.schema';
 export * from './letter.schema';
+export * from './addendum.schema';
 export * from './registry';
 export * from './sync-wire.schema';
 export * from './identity.schema';

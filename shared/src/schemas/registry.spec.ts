@@ -31,7 +31,7 @@ describe('the collection registry', () => {
     expect(SCHEMA_VERSION).toBe(1);
   });
 
-  it('lists the nineteen collections by their contract names, each with a schema', () => {
+  it('lists the twenty collections by their contract names, each with a schema', () => {
     expect(COLLECTIONS).toEqual([
       'patient',
       'visit',
@@ -52,6 +52,7 @@ describe('the collection registry', () => {
       'plan',
       'attachment',
       'letter',
+      'addendum',
     ]);
     expect(Object.keys(recordSchemas).sort()).toEqual([...COLLECTIONS].sort());
   });
@@ -72,10 +73,15 @@ describe('the collection registry', () => {
     }
   });
 
-  it('places every section, attachment and letter in a visit of a patient', () => {
-    for (const collection of [...SECTION_COLLECTIONS, 'attachment', 'letter'] as const) {
+  it('places every section, attachment, letter and addendum in a visit of a patient', () => {
+    for (const collection of [
+      ...SECTION_COLLECTIONS,
+      'attachment',
+      'letter',
+      'addendum',
+    ] as const) {
       expect(requiredFields(collection)).toEqual(expect.arrayContaining(['visitId', 'patientId']));
-      if (collection !== 'attachment' && collection !== 'letter') {
+      if (collection !== 'attachment' && collection !== 'letter' && collection !== 'addendum') {
         expect(Object.keys(recordSchemas[collection].shape)).toContain('skippedReason');
       }
     }

@@ -16,7 +16,14 @@ import {
   simultaneousPerceptionSchema,
   suppressionScotomaSchema,
 } from './amblyoscope.schema';
+import { addendumSchema } from './addendum.schema';
 import { attachmentSchema } from './attachment.schema';
+import {
+  COLLECTIONS,
+  SECTION_COLLECTIONS,
+  type CollectionName,
+  type SectionCollectionName,
+} from './collection-names.schema';
 import { coverTestSchema, prismCoverTestSchema } from './cover-test.schema';
 import { type FieldMeta, metaOfSchema } from './field-types.schema';
 import { letterSchema } from './letter.schema';
@@ -27,36 +34,20 @@ import { SECTION_PLACEMENT_KEYS, type SectionPlacementKey } from './section.sche
 import { visualAcuitySchema } from './acuity.schema';
 import { visitSchema } from './visit.schema';
 
-/** Version of these record schemas; a device sends it with every push. */
+/**
+ * Version of these record schemas; a device sends it with every push. An additive change (a new
+ * collection or a new optional field) keeps it: everything a device of the same version sends
+ * stays valid. A change that would refuse what such a device sends is a new version.
+ */
 export const SCHEMA_VERSION = 1;
 
-export const SECTION_COLLECTIONS = [
-  'amblyoscopeSetup',
-  'simultaneousPerception',
-  'amblyoscopeAngles',
-  'suppressionScotoma',
-  'fusion',
-  'fusionalRanges',
-  'grossStereopsis',
-  'visualAcuity',
-  'coverTest',
-  'prismCoverTest',
-  'nearPointConvergence',
-  'accommodation',
-  'stereoacuity',
-  'motility',
-  'plan',
-] as const;
-export type SectionCollectionName = (typeof SECTION_COLLECTIONS)[number];
-
-export const COLLECTIONS = [
-  'patient',
-  'visit',
-  ...SECTION_COLLECTIONS,
-  'attachment',
-  'letter',
-] as const;
-export type CollectionName = (typeof COLLECTIONS)[number];
+export {
+  COLLECTIONS,
+  SECTION_COLLECTIONS,
+  collectionWords,
+  type CollectionName,
+  type SectionCollectionName,
+} from './collection-names.schema';
 
 export const recordSchemas = {
   patient: patientSchema,
@@ -78,6 +69,7 @@ export const recordSchemas = {
   plan: planSchema,
   attachment: attachmentSchema,
   letter: letterSchema,
+  addendum: addendumSchema,
 } as const satisfies Record<CollectionName, z.ZodObject>;
 
 export type RecordSchemas = typeof recordSchemas;

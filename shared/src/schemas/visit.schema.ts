@@ -1,6 +1,6 @@
 // One sitting with a patient. Signing facts are separate fields so that a signature and a
 // supervisor's countersignature, made on different devices, merge without a conflict. Addenda
-// become their own records later rather than one array here.
+// are their own records (addendum.schema.ts) rather than one array here.
 import { z } from 'zod';
 import { calendarDate, choice, id, instant, text, yesNo } from './field-types.schema';
 

@@ -7,6 +7,7 @@ import { Migration20261201020000SyncRecords } from './Migration20261201020000Syn
 import { Migration20261201040000ReviewDesk } from './Migration20261201040000ReviewDesk';
 import { Migration20261201050000LettersMail } from './Migration20261201050000LettersMail';
 import { Migration20261201050100FinalLetterGuard } from './Migration20261201050100FinalLetterGuard';
+import { Migration20261201060000AddendumRecords } from './Migration20261201060000AddendumRecords';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -14,5 +15,9 @@ export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201020000SyncRecords', class: Migration20261201020000SyncRecords },
   { name: 'Migration20261201040000ReviewDesk', class: Migration20261201040000ReviewDesk },
   { name: 'Migration20261201050000LettersMail', class: Migration20261201050000LettersMail },
-  { name: 'Migration20261201050100FinalLetterGuard', class: Migration20261201050100FinalLetterGuard },
+  {
+    name: 'Migration20261201050100FinalLetterGuard',
+    class: Migration20261201050100FinalLetterGuard,
+  },
+  { name: 'Migration20261201060000AddendumRecords', class: Migration20261201060000AddendumRecords },
 ];

@@ -1,4 +1,7 @@
 import { Module } from '@nestjs/common';
+import { APP_INTERCEPTOR } from '@nestjs/core';
+import { AddendumOnResolveInterceptor } from './addendum-on-resolve.interceptor';
+import { AddendumPublisher } from './addendum-publisher.service';
 import { CountersignService } from './countersign.service';
 import { DisputeDeskService } from './dispute-desk.service';
 import { RecordHistoryService } from './record-history.service';
@@ -6,11 +9,19 @@ import { ReviewController } from './review.controller';
 
 /**
  * The supervisor's Review desk: Disputes enriched for the desk, countersigning and returns, and
- * record histories. Its migration adds the field-value history and the Addendum trigger on the
- * sync storage (migrations/Migration20261201040000ReviewDesk.ts).
+ * record histories. Its migrations add the field-value history and the Addendum trigger on the
+ * sync storage (Migration20261201040000ReviewDesk), and the link from each trigger-written
+ * Addendum to the synced `addendum` record the AddendumPublisher writes for tablets
+ * (Migration20261201060000AddendumRecords).
  */
 @Module({
   controllers: [ReviewController],
-  providers: [CountersignService, DisputeDeskService, RecordHistoryService],
+  providers: [
+    CountersignService,
+    DisputeDeskService,
+    RecordHistoryService,
+    AddendumPublisher,
+    { provide: APP_INTERCEPTOR, useClass: AddendumOnResolveInterceptor },
+  ],
 })
 export class ReviewModule {}

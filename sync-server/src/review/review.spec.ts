@@ -12,6 +12,7 @@ import {
   type PushResponse,
 } from '@fuselight/shared';
 import { sqlRows } from '../records/sql';
+import { AddendumPublisher } from './addendum-publisher.service';
 import {
   bearer,
   createDevice,
@@ -84,6 +85,23 @@ async function pullRecord(
     if (!page.more) break;
   }
   if (!found) throw new Error(`record ${recordId} is not in the pull`);
+  return found;
+}
+
+async function pullCollection(
+  tablet: TabletSession,
+  collection: string,
+): Promise<PullPage['records']> {
+  let after = 0;
+  const found: PullPage['records'] = [];
+  for (;;) {
+    const res = await http().get('/api/sync/pull').query({ after }).set(bearer(tablet.accessToken));
+    expect(res.status).toBe(200);
+    const page = res.body as PullPage;
+    found.push(...page.records.filter((r) => r.collection === collection));
+    after = page.cursor;
+    if (!page.more) break;
+  }
   return found;
 }
 
@@ -631,6 +649,41 @@ describe('a dispute on a Signed visit', () => {
       note: 'Both tablets measured after signing; 21° confirmed',
       by: { name: 'Corin Hale' },
     });
+    // The Addendum reaches the tablets as an `addendum` record, stamped by the supervisor.
+    const synced = await pullCollection(studentTablet, 'addendum');
+    const mine = synced.filter((r) => r.fields.conflictId === conflictId);
+    expect(mine).toHaveLength(1);
+    expect(mine[0]!.fields).toEqual({
+      siteId: siteA,
+      visitId: ids.visitId,
+      patientId: ids.patientId,
+      authorId: supervisorAId,
+      writtenAt: t.clock.now().toISOString(),
+      text: 'Both tablets measured after signing; 21° confirmed',
+      amendedCollection: 'amblyoscopeAngles',
+      amendedRecordId: ids.anglesId,
+      amendedField: 'objectiveHorizontalDeg',
+      previousValue: 12,
+      newValue: 21,
+      conflictId,
+    });
+    expect(mine[0]!.deleted).toBe(false);
+    expect(mine[0]!.stamps.text).toMatchObject({ by: supervisorAId, device: 'server' });
+    expect(mine[0]!.version).toBeGreaterThan(0);
+    const [link] = await sqlRows<{ addendum_record_id: string }>(
+      t.em(),
+      `select "addendum_record_id"::text as "addendum_record_id" from "review_addendum" where "conflict_id" = ?`,
+      [conflictId],
+    );
+    expect(link?.addendum_record_id).toBe(mine[0]!.id);
+    // Publishing again writes nothing more.
+    expect(await t.app.get(AddendumPublisher).publishPending()).toEqual([]);
+    expect(
+      (await pullCollection(studentTablet, 'addendum')).filter(
+        (r) => r.fields.conflictId === conflictId,
+      ),
+    ).toHaveLength(1);
+
     const angles = await http()
       .get(`/api/review/records/amblyoscopeAngles/${ids.anglesId}/history`)
       .set(bearer(supervisorA.accessToken))
@@ -653,5 +706,39 @@ describe('a dispute on a Signed visit', () => {
       conflictId,
     ]);
     expect(rows).toEqual([]);
+    const synced = await pullCollection(studentTablet, 'addendum');
+    expect(synced.filter((r) => r.fields.conflictId === conflictId)).toEqual([]);
+  });
+
+  it('publishes an Addendum the resolving request left unpublished on the next run', async () => {
+    const ids = await chartVisit();
+    await signVisit(ids.visitId);
+    const conflictId = await openAngleDispute(ids.anglesId, ids.anglesVersion, [30, 31]);
+    await http()
+      .post(`/api/conflicts/${conflictId}/resolve`)
+      .set(bearer(supervisorA.accessToken))
+      .send({ value: 30, note: 'Re-measured: 30°' })
+      .expect(200);
+    // As if the process had stopped between the resolution and the publishing.
+    const [row] = await sqlRows<{ addendum_record_id: string }>(
+      t.em(),
+      `select "addendum_record_id"::text as "addendum_record_id" from "review_addendum" where "conflict_id" = ?`,
+      [conflictId],
+    );
+    await sqlRows(t.em(), `delete from "sync_record" where "id" = ?`, [row!.addendum_record_id]);
+    await sqlRows(
+      t.em(),
+      `update "review_addendum" set "addendum_record_id" = null where "conflict_id" = ?`,
+      [conflictId],
+    );
+    const written = await t.app.get(AddendumPublisher).publishPending();
+    expect(written).toHaveLength(1);
+    const synced = await pullCollection(studentTablet, 'addendum');
+    expect(synced.find((r) => r.id === written[0])?.fields).toMatchObject({
+      conflictId,
+      text: 'Re-measured: 30°',
+      previousValue: 12,
+      newValue: 30,
+    });
   });
 });

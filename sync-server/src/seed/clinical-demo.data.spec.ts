@@ -76,6 +76,21 @@ describe('the clinical demo scenario', () => {
     expect(result.result).toBe('harmonious ARC');
   });
 
+  it('adds to a signed visit through addendum records, never by a marker in a plan', () => {
+    const addenda = records.filter((r) => r.collection === 'addendum');
+    expect(addenda.length).toBeGreaterThan(0);
+    for (const addendum of addenda) {
+      const visit = records.find(
+        (r) => r.collection === 'visit' && r.id === addendum.fields.visitId,
+      );
+      expect(visit?.fields.status).toBe('signed');
+      expect(addendum.fields.patientId).toBe(visit?.fields.patientId);
+      expect(String(addendum.fields.writtenAt) > String(visit?.fields.signedAt)).toBe(true);
+    }
+    const plans = records.filter((r) => r.collection === 'plan');
+    expect(plans.some((p) => String(p.fields.impression ?? '').startsWith('Addendum'))).toBe(false);
+  });
+
   it('makes ids that are version-7 UUIDs', () => {
     expect(demoRecordId('fusion', 42)).toMatch(
       /^[0-9a-f]{8}-[0-9a-f]{4}-7[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/,

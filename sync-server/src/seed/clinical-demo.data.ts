@@ -38,6 +38,7 @@ const COLLECTION_CODES: Record<CollectionName, number> = {
   plan: 17,
   attachment: 18,
   letter: 19,
+  addendum: 20,
 };
 
 /** A fixed, valid version-7 UUID per collection and serial number. */
@@ -54,6 +55,8 @@ interface DemoVisit {
   sections: Sections;
   /** A junior's visit still waiting for the supervisor. */
   awaitingCountersign?: boolean;
+  /** What was added after signing, each an `addendum` record by the visit's clinician. */
+  addenda?: readonly { writtenAt: string; text: string }[];
 }
 
 interface DemoPatient {
@@ -273,6 +276,12 @@ const PATIENTS: DemoPatient[] = [
             8,
           ),
         ),
+        addenda: [
+          {
+            writtenAt: '2026-06-18T09:20:00.000Z',
+            text: 'Parent phoned: Maisie had a cold on the day and was very tired. Keep the referral; recheck near control at the next visit before any listing.',
+          },
+        ],
       },
     ],
   },
@@ -872,11 +881,15 @@ const TODAY_BOOKINGS: readonly { patient: number; reason: string }[] = [
   { patient: 10, reason: 'Exercises review' },
 ];
 
-/** Every record of the scenario, patients first, then each visit followed by its Sections. */
+/**
+ * Every record of the scenario, patients first, then each visit followed by its Sections and
+ * its Addenda.
+ */
 export function clinicalDemoRecords({ today }: ClinicalDemoOptions): DemoRecord[] {
   const records: DemoRecord[] = [];
   let visitSerial = 0;
   let sectionSerial = 0;
+  let addendumSerial = 0;
   PATIENTS.forEach((patient, index) => {
     const patientId = demoRecordId('patient', index + 1);
     const siteId = DEMO_SITES[patient.site].id;
@@ -921,6 +934,14 @@ export function clinicalDemoRecords({ today }: ClinicalDemoOptions): DemoRecord[
           collection: collection as SectionCollectionName,
           id: demoRecordId(collection as SectionCollectionName, sectionSerial),
           fields: { siteId, visitId, patientId, ...fields },
+        });
+      }
+      for (const addendum of visit.addenda ?? []) {
+        addendumSerial += 1;
+        records.push({
+          collection: 'addendum',
+          id: demoRecordId('addendum', addendumSerial),
+          fields: { siteId, visitId, patientId, authorId: clinicianId, ...addendum },
         });
       }
     }

@@ -1,6 +1,8 @@
 // The computed interpretations of a visit's findings, always with the caution that they support
 // and do not replace the clinician's judgement.
 import { useMemo } from 'react';
+import type { Addendum } from '../../data/charting';
+import { AddendaList } from './AddendaList';
 import { interpretVisit, type VisitSectionValues } from './interpretations';
 
 export function CautionNote({ caution }: { caution: string }) {
@@ -14,9 +16,14 @@ export function CautionNote({ caution }: { caution: string }) {
 export function InterpretationSummary({
   sections,
   ageYears,
+  addenda = [],
+  who = (id) => id,
 }: {
   sections: VisitSectionValues;
   ageYears: number | undefined;
+  /** Addenda of a signed visit, shown under the signed content they add to or correct. */
+  addenda?: readonly Addendum[];
+  who?: (id: string) => string;
 }) {
   const summary = useMemo(
     () => interpretVisit(sections, ageYears === undefined ? {} : { ageYears }),
@@ -50,6 +57,16 @@ export function InterpretationSummary({
           </article>
         ))
       )}
+      {addenda.length > 0 ? (
+        <div aria-labelledby="interpretation-addenda-title">
+          <h3 id="interpretation-addenda-title">Addenda after signing</h3>
+          <p className="fl-muted">
+            Added after the visit was signed. A correction from a resolved dispute is already in the
+            Section’s value above; the signed value is shown as the value before.
+          </p>
+          <AddendaList addenda={addenda} label="Addenda to the signed visit" who={who} />
+        </div>
+      ) : null}
     </section>
   );
 }

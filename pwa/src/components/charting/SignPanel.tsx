@@ -10,13 +10,8 @@ import {
   useCharting,
   type VisitBundle,
 } from '../../data/charting';
+import { AddendaList, when } from './AddendaList';
 import { DisputeMark, VisitStatusBadge } from './ScreenState';
-
-function when(iso: string | null | undefined): string {
-  if (!iso) return 'an unknown time';
-  const date = new Date(iso);
-  return Number.isNaN(date.getTime()) ? iso : date.toLocaleString();
-}
 
 export function SignPanel({
   bundle,
@@ -37,7 +32,7 @@ export function SignPanel({
   const fields = visit.fields;
   const signAnswer = canSign(visit, user);
   const countersignAnswer = canCountersign(visit, user);
-  const addendumAnswer = canAddAddendum(visit);
+  const addendumAnswer = canAddAddendum(visit, user);
 
   const act = async (action: () => Promise<unknown>) => {
     setError(null);
@@ -108,18 +103,7 @@ export function SignPanel({
       {addenda.length === 0 ? (
         <p className="fl-muted">No Addenda.</p>
       ) : (
-        <ul className="flc-list" aria-label="Addenda">
-          {addenda.map((item) => (
-            <li key={item.id} className="flc-addendum">
-              <strong>
-                Addendum by {item.authorName || who(item.authorId)}, {when(item.writtenAt)}
-              </strong>
-              <DisputeMark field="impression" conflicts={item.conflicts} />
-              {'\n'}
-              {item.text}
-            </li>
-          ))}
-        </ul>
+        <AddendaList addenda={addenda} label="Addenda" who={(id) => who(id)} />
       )}
       {addendumAnswer === true ? (
         <form

@@ -10,12 +10,13 @@ import {
 } from '@fuselight/shared';
 import { type EditContext, type LocalRecord, type RecordsRepository } from '../records-repository';
 import {
+  addendumFromRecord,
+  byWrittenAt,
   canAddAddendum,
   canCountersign,
   canEditSections,
   canSign,
-  parseAddendum,
-  writeAddendumImpression,
+  parseLegacyAddendum,
   type Addendum,
 } from './visit-rules';
 
@@ -143,7 +144,7 @@ export class ChartingRepository {
         byIdAscending,
       );
       for (const record of records) {
-        if (collection === 'plan' && parseAddendum(record as LocalRecord<'plan'>) !== null)
+        if (collection === 'plan' && parseLegacyAddendum(record as LocalRecord<'plan'>) !== null)
           continue;
         const visitId = (record.fields as { visitId: string }).visitId;
         const sections = byVisit.get(visitId) ?? {};
@@ -156,31 +157,37 @@ export class ChartingRepository {
     return byVisit;
   }
 
-  /** A visit with its patient, its Sections (one record per collection) and its addenda. */
+  /**
+   * A visit with its patient, its Sections (one record per collection) and its Addenda, oldest
+   * first (its `addendum` records, and any kept as plan records by earlier app versions).
+   */
   async visitBundle(visitId: string): Promise<VisitBundle | null> {
     const visit = await this.records.get('visit', visitId);
     if (!visit || visit.deleted) return null;
     const patient = (await this.records.get('patient', visit.fields.patientId)) ?? null;
     const sections: VisitSectionRecords = {};
     const addenda: Addendum[] = [];
-    await Promise.all(
-      SECTION_COLLECTIONS.map(async (collection) => {
+    await Promise.all([
+      ...SECTION_COLLECTIONS.map(async (collection) => {
         const records = (await this.records.listByField(collection, 'visitId', visitId)).sort(
           byIdAscending,
         );
         for (const record of records) {
           if (collection === 'plan') {
-            const addendum = parseAddendum(record as LocalRecord<'plan'>);
-            if (addendum) {
-              addenda.push(addendum);
+            const legacy = parseLegacyAddendum(record as LocalRecord<'plan'>);
+            if (legacy) {
+              addenda.push(legacy);
               continue;
             }
           }
           if (!sections[collection]) (sections as Record<string, unknown>)[collection] = record;
         }
       }),
-    );
-    addenda.sort((a, b) => a.writtenAt.localeCompare(b.writtenAt));
+      this.records.listByField('addendum', 'visitId', visitId).then((records) => {
+        for (const record of records) addenda.push(addendumFromRecord(record));
+      }),
+    ]);
+    addenda.sort(byWrittenAt);
     return { visit, patient, sections, addenda };
   }
 
@@ -271,7 +278,9 @@ export class ChartingRepository {
       );
     }
     const existing = (await this.records.listByField(collection, 'visitId', visitId))
-      .filter((r) => collection !== 'plan' || parseAddendum(r as LocalRecord<'plan'>) === null)
+      .filter(
+        (r) => collection !== 'plan' || parseLegacyAddendum(r as LocalRecord<'plan'>) === null,
+      )
       .sort(byIdAscending)[0];
     if (existing) {
       await this.records.update(collection, existing.id, fields as never, ctx);
@@ -319,29 +328,29 @@ export class ChartingRepository {
     );
   }
 
-  /** An Addendum to a signed visit: a new record beside the signed content, never an edit of it. */
+  /**
+   * An Addendum to a signed visit: a new `addendum` record beside the signed content, never an
+   * edit of it. Resolves once the record and its Outbox entry are in IndexedDB.
+   */
   async addAddendum(
     visitId: string,
     input: { text: string; author: SessionUser },
     ctx: EditContext,
   ): Promise<string> {
     const visit = await this.requireVisit(visitId);
-    const why = canAddAddendum(visit);
+    const why = canAddAddendum(visit, input.author);
     if (why !== true) throw new VisitRuleError(why);
     const text = input.text.trim();
     if (text === '') throw new VisitRuleError('Write what the Addendum adds or corrects.');
     return this.records.create(
-      'plan',
+      'addendum',
       {
         siteId: visit.fields.siteId,
         visitId,
         patientId: visit.fields.patientId,
-        impression: writeAddendumImpression({
-          authorId: input.author.id,
-          authorName: input.author.name,
-          writtenAt: new Date(ctx.nowMs).toISOString(),
-          text,
-        }),
+        authorId: input.author.id,
+        writtenAt: new Date(ctx.nowMs).toISOString(),
+        text,
       },
       ctx,
     );

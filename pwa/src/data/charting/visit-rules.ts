@@ -1,20 +1,46 @@
-// Who may do what to a visit, and how an Addendum is stored. The shared visit schema has no
-// addendum collection yet, so an Addendum is a separate `plan` record of the visit whose
-// impression starts with a fixed marker line naming its author and time; the signed Sections
-// are never edited. (When the schemas gain an addendum collection, only this file changes.)
-import type { SessionUser } from '@fuselight/shared';
+// Who may do what to a visit, and how an Addendum is read. An Addendum is an `addendum` record
+// beside the signed content (shared/src/schemas/addendum.schema.ts), written on a tablet or by
+// the server when a supervisor resolves a dispute on a Signed visit; the signed Sections are never
+// edited. Earlier app versions kept an Addendum as a second `plan` record whose impression starts
+// with a marker line; such records are still read as Addenda, so none drops out of sight, but
+// nothing writes them any more.
+import {
+  fieldMeta,
+  isCollectionName,
+  type CollectionName,
+  type FieldMeta,
+  type JsonValue,
+  type SessionUser,
+} from '@fuselight/shared';
 import type { LocalRecord } from '../records-repository';
 
-export const ADDENDUM_PREFIX = 'Addendum ·';
+/** The marker line of an Addendum kept as a `plan` record by earlier app versions. */
+export const LEGACY_ADDENDUM_PREFIX = 'Addendum ·';
+
+/** The field an Addendum amends (set when a resolved dispute wrote it), with the values. */
+export interface AddendumAmendment {
+  collection: CollectionName;
+  recordId: string | null;
+  field: string;
+  /** The field's label in words ("Objective horizontal angle"). */
+  fieldLabel: string;
+  previousValue: JsonValue | null;
+  newValue: JsonValue | null;
+  conflictId: string | null;
+}
 
 export interface Addendum {
   id: string;
   authorId: string;
-  authorName: string;
+  /** Only the earlier plan-record form carried a name; otherwise null. */
+  authorName: string | null;
   writtenAt: string;
   text: string;
+  amendment: AddendumAmendment | null;
   /** Field names disputed between devices. */
   conflicts: string[];
+  /** Where it is stored: its own record, or an earlier app's `plan` record. */
+  storedAs: 'addendum' | 'plan';
 }
 
 type Visit = LocalRecord<'visit'>;
@@ -44,38 +70,69 @@ export function canCountersign(visit: Visit, user: SessionUser | null): RuleAnsw
   return true;
 }
 
-export function canAddAddendum(visit: Visit): RuleAnswer {
+export function canAddAddendum(visit: Visit, user: SessionUser | null = null): RuleAnswer {
   if (visit.fields.status === 'draft') {
     return 'This visit is not signed yet: change its Sections directly.';
   }
+  if (user?.role === 'admin') return 'An admin account cannot add to clinical visits.';
   return true;
 }
 
-/** The impression text of an addendum record: a marker line, then what was written. */
-export function writeAddendumImpression(input: {
-  authorId: string;
-  authorName: string;
-  writtenAt: string;
-  text: string;
-}): string {
-  // Tabs cannot be typed into a person's name here, so they separate the marker's parts.
-  const name = input.authorName.replace(/[\t\n]/g, ' ');
-  return `${ADDENDUM_PREFIX}\t${input.writtenAt}\t${input.authorId}\t${name}\n${input.text}`;
+function labelOf(collection: CollectionName, field: string): string {
+  if (field === 'deleted') return 'Deleted';
+  return (fieldMeta[collection] as Record<string, FieldMeta>)[field]?.label ?? field;
 }
 
-/** The addendum a plan record holds, or null when it is the visit's own plan. */
-export function parseAddendum(record: LocalRecord<'plan'>): Addendum | null {
+/** An `addendum` record as the screens show it. */
+export function addendumFromRecord(record: LocalRecord<'addendum'>): Addendum {
+  const f = record.fields;
+  const collection = f.amendedCollection;
+  const amendment: AddendumAmendment | null =
+    collection && isCollectionName(collection) && f.amendedField
+      ? {
+          collection,
+          recordId: f.amendedRecordId ?? null,
+          field: f.amendedField,
+          fieldLabel: labelOf(collection, f.amendedField),
+          previousValue: (f.previousValue ?? null) as JsonValue | null,
+          newValue: (f.newValue ?? null) as JsonValue | null,
+          conflictId: f.conflictId ?? null,
+        }
+      : null;
+  return {
+    id: record.id,
+    authorId: f.authorId,
+    authorName: null,
+    writtenAt: f.writtenAt,
+    text: f.text,
+    amendment,
+    conflicts: record.conflicts,
+    storedAs: 'addendum',
+  };
+}
+
+/** The Addendum an earlier app version kept in a plan record, or null for the visit's own plan. */
+export function parseLegacyAddendum(record: LocalRecord<'plan'>): Addendum | null {
   const impression = record.fields.impression;
-  if (typeof impression !== 'string' || !impression.startsWith(`${ADDENDUM_PREFIX}\t`)) return null;
+  if (typeof impression !== 'string' || !impression.startsWith(`${LEGACY_ADDENDUM_PREFIX}\t`)) {
+    return null;
+  }
   const newline = impression.indexOf('\n');
   const header = newline === -1 ? impression : impression.slice(0, newline);
   const [, writtenAt = '', authorId = '', authorName = ''] = header.split('\t');
   return {
     id: record.id,
     authorId,
-    authorName,
+    authorName: authorName || null,
     writtenAt,
     text: newline === -1 ? '' : impression.slice(newline + 1),
+    amendment: null,
     conflicts: record.conflicts,
+    storedAs: 'plan',
   };
+}
+
+/** Oldest first; same time: by id, so every tablet lists them in one order. */
+export function byWrittenAt(a: Addendum, b: Addendum): number {
+  return a.writtenAt.localeCompare(b.writtenAt) || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
 }

@@ -31,6 +31,7 @@ const SECTION_WORDS: Record<CollectionName, string> = {
   plan: 'Plan',
   attachment: 'Attachment',
   letter: 'Letter',
+  addendum: 'Addendum',
 };
 
 /** "Amblyoscope angles", "Patient details"; an unknown collection keeps its own name. */

@@ -179,8 +179,8 @@ describe('signing, countersigning and addenda', () => {
     expect(plan!.fields.impression).toBe('Controlled exophoria');
   });
 
-  it('adds an Addendum as a separate record and leaves the signed plan as it was', async () => {
-    const { repos, visitId, charting } = await setupVisit();
+  it('adds an Addendum as an addendum record with its Outbox entry and leaves the signed plan as it was', async () => {
+    const { repos, visitId, patientId, charting } = await setupVisit();
     await charting.saveSection(
       visitId,
       'plan',
@@ -195,13 +195,123 @@ describe('signing, countersigning and addenda', () => {
     await user.click(screen.getByRole('button', { name: 'Add Addendum' }));
     const list = await screen.findByRole('list', { name: 'Addenda' }, { timeout: 5000 });
     expect(within(list).getByText(/Parent called: glasses broken\./)).toBeTruthy();
+    expect(within(list).getByText(/^Addendum by you,/)).toBeTruthy();
+    // Under the interpretation, beneath the signed content, too.
+    const under = within(sectionNamed('Interpretation')).getByRole('list', {
+      name: 'Addenda to the signed visit',
+    });
+    expect(within(under).getByText(/Parent called: glasses broken\./)).toBeTruthy();
 
     const plans = await repos.records.listByField('plan', 'visitId', visitId);
-    expect(plans).toHaveLength(2);
+    expect(plans.map((p) => p.fields.impression)).toEqual(['Controlled exophoria']);
+    const [addendum, ...more] = await repos.records.listByField('addendum', 'visitId', visitId);
+    expect(more).toEqual([]);
+    expect(addendum!.fields).toEqual({
+      siteId: TEST_SITE_ID,
+      visitId,
+      patientId,
+      authorId: ORTHOPTIST.id,
+      writtenAt: expect.stringMatching(/^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z$/),
+      text: 'Parent called: glasses broken.',
+    });
+    const entries = await repos.outbox.listEntries();
+    expect(entries.some((e) => e.collection === 'addendum' && e.recordId === addendum!.id)).toBe(
+      true,
+    );
     const bundle = await charting.visitBundle(visitId);
     expect(bundle!.sections.plan!.fields.impression).toBe('Controlled exophoria');
-    expect(bundle!.addenda.map((a) => [a.text, a.authorId])).toEqual([
-      ['Parent called: glasses broken.', ORTHOPTIST.id],
+    expect(bundle!.addenda.map((a) => [a.text, a.authorId, a.storedAs])).toEqual([
+      ['Parent called: glasses broken.', ORTHOPTIST.id, 'addendum'],
+    ]);
+  });
+
+  it('refuses an empty Addendum on screen and in the repository, writing nothing', async () => {
+    const { repos, visitId, charting } = await setupVisit();
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    await expect(
+      charting.addAddendum(visitId, { text: '   ', author: ORTHOPTIST }, editContext()),
+    ).rejects.toThrow('Write what the Addendum adds or corrects.');
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    await user.click(await screen.findByRole('button', { name: 'Add Addendum' }));
+    expect(await screen.findByText('Write what the Addendum adds or corrects.')).toBeTruthy();
+    expect(await repos.records.listByField('addendum', 'visitId', visitId)).toEqual([]);
+  });
+
+  it('shows an Addendum the server wrote for a resolved dispute, with the field amended and its values', async () => {
+    const { repos, visitId, patientId, charting } = await setupVisit();
+    await charting.saveSection(
+      visitId,
+      'amblyoscopeAngles',
+      { objectiveHorizontalDeg: 12 },
+      editContext(),
+    );
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    const anglesId = (await repos.records.listByField('amblyoscopeAngles', 'visitId', visitId))[0]!
+      .id;
+    // As a pull would leave it: a record this tablet did not make.
+    await repos.db.records.put({
+      collection: 'addendum',
+      id: '0190c6a0-0000-7000-8000-00000000ad01',
+      version: 7001,
+      deleted: false,
+      fields: {
+        siteId: TEST_SITE_ID,
+        visitId,
+        patientId,
+        authorId: SUPERVISOR.id,
+        writtenAt: '2026-12-02T09:00:00.000Z',
+        text: 'Both tablets measured after signing; 21° confirmed',
+        amendedCollection: 'amblyoscopeAngles',
+        amendedRecordId: anglesId,
+        amendedField: 'objectiveHorizontalDeg',
+        previousValue: 12,
+        newValue: 21,
+        conflictId: '0190c6a0-0000-7000-8000-00000000cf01',
+      },
+      conflicts: [],
+      pendingFields: [],
+      serverFields: {},
+      updatedAt: Date.now(),
+    });
+    renderVisit(repos, visitId);
+    const list = await screen.findByRole('list', { name: 'Addenda' });
+    expect(
+      within(list).getByText('Amends Amblyoscope angles · Objective horizontal angle: 12° → 21°'),
+    ).toBeTruthy();
+    expect(within(list).getByText(/^Addendum from a resolved dispute by /)).toBeTruthy();
+    expect(within(list).getByText(/21° confirmed/)).toBeTruthy();
+  });
+
+  it('still shows an Addendum an earlier app version kept as a marked plan record, apart from the plan', async () => {
+    const { repos, visitId, charting } = await setupVisit();
+    await charting.saveSection(
+      visitId,
+      'plan',
+      { impression: 'Controlled exophoria' },
+      editContext(),
+    );
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    await repos.db.records.put({
+      collection: 'plan',
+      id: '0190c6a0-0000-7000-8000-ffffffffff01',
+      version: 12,
+      deleted: false,
+      fields: {
+        siteId: TEST_SITE_ID,
+        visitId,
+        patientId: (await repos.records.get('visit', visitId))!.fields.patientId,
+        impression: `Addendum ·\t2026-12-01T10:00:00.000Z\t${ORTHOPTIST.id}\tTest Orthoptist\nCalled the school.`,
+      },
+      conflicts: [],
+      pendingFields: [],
+      serverFields: {},
+      updatedAt: Date.now(),
+    });
+    const bundle = await charting.visitBundle(visitId);
+    expect(bundle!.sections.plan!.fields.impression).toBe('Controlled exophoria');
+    expect(bundle!.addenda.map((a) => [a.text, a.authorName, a.storedAs])).toEqual([
+      ['Called the school.', 'Test Orthoptist', 'plan'],
     ]);
   });
 

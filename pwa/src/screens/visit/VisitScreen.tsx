@@ -1,6 +1,7 @@
 // Visit: one sitting with a patient. Its Sections are forms saved to IndexedDB as they change,
 // the computed interpretation sits beside them with its caution, and the visit is signed,
-// countersigned and added to (Addenda) here.
+// countersigned and added to (Addenda) here; the Addenda also show under the interpretation,
+// beneath the signed content they add to or correct.
 import { YesNoChoice } from '../../components/controls';
 import {
   IonBackButton,
@@ -14,6 +15,7 @@ import {
 import type { SectionCollectionName } from '@fuselight/shared';
 import { useCallback, useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router-dom';
+import { useSession } from '../../auth/session-context';
 import { AcuityEntries } from '../../components/charting/AcuityEntries';
 import { AmblyoscopeSummary } from '../../components/charting/AmblyoscopeSummary';
 import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
@@ -120,7 +122,9 @@ function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean
 }
 
 function VisitBody({ bundle }: { bundle: VisitBundle }) {
-  const { visit, patient, sections } = bundle;
+  const { visit, patient, sections, addenda } = bundle;
+  const { user } = useSession();
+  const who = useCallback((id: string) => (user && id === user.id ? 'you' : id), [user]);
   const locked = !canEditSections(visit);
   const [statuses, setStatuses] = useState<Record<string, SaveStatus>>({});
   const reporters = useMemo(() => {
@@ -217,7 +221,7 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
           </SectionForm>
         );
       })}
-      <InterpretationSummary sections={values} ageYears={age} />
+      <InterpretationSummary sections={values} ageYears={age} addenda={addenda} who={who} />
       <SignPanel bundle={bundle} blockedReason={blockedReason} />
     </main>
   );
