@@ -29,6 +29,7 @@ import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
 import { SessionProvider } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
+import { ReviewTabBadge } from '../screens/review/ReviewTabCount';
 import { SyncRuntime } from '../sync/SyncRuntime';
 import {
   BenchScreen,
@@ -122,6 +123,7 @@ function AppTabs() {
           <IonTabButton tab="review" href="/review">
             <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
             <IonLabel>Review desk</IonLabel>
+            <ReviewTabBadge />
           </IonTabButton>
         ) : null}
         {canSee(role, 'admin') ? (

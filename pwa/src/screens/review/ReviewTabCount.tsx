@@ -1,0 +1,59 @@
+// The count on the Review desk tab: open Disputes plus visits waiting for a countersignature, from
+// GET /api/review/summary (the same query the desk's own tabs read, so they agree). It is a
+// server figure, so offline, or when the last ask failed, the tab shows no number at all rather
+// than a stale one.
+import { IonBadge } from '@ionic/react';
+import { useQuery } from '@tanstack/react-query';
+import { useSyncExternalStore } from 'react';
+import { reviewKeys, type ReviewApi, type ReviewSummary } from './review-api';
+import { useSessionReviewApi } from './review-context';
+
+const REFRESH_EVERY_MS = 60_000;
+
+function subscribeOnline(onChange: () => void): () => void {
+  window.addEventListener('online', onChange);
+  window.addEventListener('offline', onChange);
+  return () => {
+    window.removeEventListener('online', onChange);
+    window.removeEventListener('offline', onChange);
+  };
+}
+
+/** What the badge shows: null for nothing (offline, failed, not yet known, or nothing waiting). */
+export function tabCount(
+  summary: ReviewSummary | undefined,
+  state: { online: boolean; failed: boolean },
+): number | null {
+  if (!state.online || state.failed || !summary) return null;
+  const total = summary.openDisputes + summary.awaitingCountersign;
+  return total > 0 ? total : null;
+}
+
+export function ReviewTabCount({ api }: { api: ReviewApi }) {
+  const online = useSyncExternalStore(subscribeOnline, () => navigator.onLine);
+  const summary = useQuery({
+    queryKey: reviewKeys.summary(),
+    queryFn: () => api.summary(),
+    enabled: online,
+    refetchInterval: online ? REFRESH_EVERY_MS : false,
+    retry: false,
+  });
+  // A failed ask after a good one still leaves the old data: treat it as unknown.
+  const failed = summary.isError || summary.errorUpdatedAt > summary.dataUpdatedAt;
+  const count = tabCount(summary.data, { online, failed });
+  if (count === null || !summary.data) return null;
+  const { openDisputes, awaitingCountersign } = summary.data;
+  return (
+    <IonBadge
+      color="danger"
+      aria-label={`${openDisputes} open Dispute${openDisputes === 1 ? '' : 's'}, ${awaitingCountersign} visit${awaitingCountersign === 1 ? '' : 's'} to countersign`}
+    >
+      {count > 99 ? '99+' : count}
+    </IonBadge>
+  );
+}
+
+/** The badge for the signed-in supervisor's session (App.tsx puts it on the tab). */
+export function ReviewTabBadge() {
+  return <ReviewTabCount api={useSessionReviewApi()} />;
+}
