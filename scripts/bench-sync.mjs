@@ -22,6 +22,8 @@ try {
     cwd: join(repoRoot, 'conflict-tests'),
     env: { ...process.env, FUSELIGHT_TEST_PG_URL: url, NODE_ENV: 'test' },
   });
+  // The same first sync in Debian's Chromium on a real IndexedDB.
+  await run('node', [join(repoRoot, 'scripts', 'bench-first-sync-browser.mjs')], { cwd: repoRoot });
 } catch (error) {
   failed = true;
   console.error(error instanceof Error ? error.message : String(error));

@@ -147,6 +147,8 @@ export interface PullApplyTimings {
 
 export interface PullApplyOptions {
   deviceId: string;
+  /** The page's greatest stamp when the reader already found it (else it is looked for here). */
+  greatestStamp?: string | null;
   nowMs: number;
   chunkSize: number;
   /** True when the tablet held nothing before this sync: skips reading existing records. */
@@ -211,8 +213,10 @@ function greatestStamp(records: readonly PulledRecord[]): string | null {
 }
 
 /**
- * Stores one pull page in chunks (one transaction each, yielding to the screen between them);
- * the last chunk's transaction also moves the cursor and the device clock.
+ * Stores one pull page in chunks (one transaction each, yielding to the screen before each, so
+ * reading the page and writing its first chunk are separate stretches); the last chunk's
+ * transaction also moves the cursor and the device clock. The page has been checked as a whole
+ * before this is called; a chunk is written whole or not at all.
  */
 export async function applyPullPage(
   db: FuselightDb,
@@ -232,6 +236,9 @@ export async function applyPullPage(
   for (let index = 0; index < chunkCount; index += 1) {
     const chunk = records.slice(index * options.chunkSize, (index + 1) * options.chunkSize);
     const last = index === chunkCount - 1;
+    const yieldStarted = options.now();
+    await options.yieldToUi();
+    timings.yieldMs += options.now() - yieldStarted;
     await db.transaction('rw', [db.records, db.outbox, db.meta, db.patientSearch], async () => {
       let started = options.now();
       // A fresh tablet with nothing in its Outbox has nothing local to protect.
@@ -258,7 +265,8 @@ export async function applyPullPage(
       const patients = merged.filter((record) => record.collection === 'patient');
       if (patients.length > 0) await db.patientSearch.bulkPut(patients.map(patientSearchRow));
       if (last) {
-        const stamp = greatestStamp(records);
+        const stamp =
+          options.greatestStamp === undefined ? greatestStamp(records) : options.greatestStamp;
         if (stamp !== null) {
           await receiveIntoDeviceClock(db, options.deviceId, stamp, Math.floor(options.nowMs));
         }
@@ -267,11 +275,6 @@ export async function applyPullPage(
       timings.searchIndexMs += options.now() - started;
     });
     options.onChunk?.(chunk.length);
-    if (!last) {
-      const started = options.now();
-      await options.yieldToUi();
-      timings.yieldMs += options.now() - started;
-    }
   }
   return { collections: [...touched], timings };
 }

@@ -1,0 +1,166 @@
+// The first-sync benchmark page, run in Chromium by scripts/bench-first-sync-browser.mjs: the
+// real sync engine pulls every page from the script's local pull endpoint into a real IndexedDB,
+// beside plain Dexie bulkPuts of the same rows. While each runs, a requestAnimationFrame loop and
+// a long-task observer say how responsive the screen stayed (the engine yields with its own
+// default, as in the app).
+import { FuselightDb, type StoredRecord } from '../src/data/db';
+import { SyncEngine, type SyncTimings } from '../src/sync/sync-engine';
+
+export interface BenchOptions {
+  total: number;
+  pageLimit: number;
+  /** The engine's chunk size; null keeps the engine's default. */
+  chunkSize: number | null;
+  rawChunk: number;
+  userId: string;
+  deviceId: string;
+}
+
+export interface Responsiveness {
+  /** Longest time between two requestAnimationFrame callbacks. */
+  longestFrameGapMs: number;
+  frames: number;
+  /** Longest main-thread task the long-task observer saw (0: none over 50 ms). */
+  longestTaskMs: number;
+  longTasks: number;
+  /** Sum over long tasks of their time beyond 50 ms. */
+  blockingMs: number;
+}
+
+export interface RunFigures {
+  ms: number;
+  screen: Responsiveness;
+}
+
+export type BenchRun = 'raw-one-call' | 'raw-chunked' | 'sync';
+
+export type SyncFigures = RunFigures & {
+  timings: SyncTimings;
+  outcome: string;
+  records: number;
+  searchRows: number;
+};
+
+const status = (text: string) => {
+  const element = document.getElementById('status');
+  if (element) element.textContent = text;
+};
+
+const nextFrame = () => new Promise<number>((resolve) => requestAnimationFrame(resolve));
+
+/** Starts watching the screen; the returned function stops and reports. */
+function watchScreen(): () => Promise<Responsiveness> {
+  let running = true;
+  let frames = 0;
+  let last = performance.now();
+  let longestGap = 0;
+  const onFrame = (time: number) => {
+    if (!running) return;
+    longestGap = Math.max(longestGap, time - last);
+    last = time;
+    frames += 1;
+    requestAnimationFrame(onFrame);
+  };
+  requestAnimationFrame(onFrame);
+  const tasks: number[] = [];
+  const supported = PerformanceObserver.supportedEntryTypes.includes('longtask');
+  const observer = supported
+    ? new PerformanceObserver((list) => {
+        for (const entry of list.getEntries()) tasks.push(entry.duration);
+      })
+    : null;
+  observer?.observe({ type: 'longtask' });
+  return async () => {
+    // One more frame, so a stall at the very end is counted too.
+    await nextFrame();
+    running = false;
+    for (const entry of observer?.takeRecords() ?? []) tasks.push(entry.duration);
+    observer?.disconnect();
+    return {
+      longestFrameGapMs: longestGap,
+      frames,
+      longestTaskMs: tasks.length > 0 ? Math.max(...tasks) : 0,
+      longTasks: tasks.length,
+      blockingMs: tasks.reduce((sum, duration) => sum + Math.max(0, duration - 50), 0),
+    };
+  };
+}
+
+async function freshDb(name: string): Promise<FuselightDb> {
+  await FuselightDb.delete(name);
+  const db = new FuselightDb(name);
+  await db.open();
+  return db;
+}
+
+async function drop(db: FuselightDb): Promise<void> {
+  db.close();
+  await db.delete();
+}
+
+async function rawPut(rows: StoredRecord[], chunk: number | null): Promise<RunFigures> {
+  const db = await freshDb(chunk === null ? 'bench-raw' : 'bench-raw-chunked');
+  await nextFrame();
+  const stop = watchScreen();
+  const started = performance.now();
+  if (chunk === null) await db.records.bulkPut(rows);
+  else
+    for (let i = 0; i < rows.length; i += chunk) await db.records.bulkPut(rows.slice(i, i + chunk));
+  const ms = performance.now() - started;
+  const screen = await stop();
+  const stored = await db.records.count();
+  await drop(db);
+  if (stored !== rows.length) throw new Error(`plain bulkPut stored ${stored} of ${rows.length}`);
+  return { ms, screen };
+}
+
+async function engineSync(options: BenchOptions): Promise<SyncFigures> {
+  const db = await freshDb('bench-sync');
+  const engine = new SyncEngine({
+    db,
+    baseUrl: '',
+    auth: { tokenFor: async () => 'bench-token', onUnauthorized: async () => undefined },
+    deviceId: options.deviceId,
+    pullAs: () => options.userId,
+    // A wall clock with sub-millisecond steps, so the breakdown of small steps is not all zeros.
+    clock: { now: () => performance.timeOrigin + performance.now() },
+    network: { isOnline: () => true, subscribe: () => () => undefined },
+    pageLimit: options.pageLimit,
+    ...(options.chunkSize === null ? {} : { chunkSize: options.chunkSize }),
+  });
+  await nextFrame();
+  const stop = watchScreen();
+  const started = performance.now();
+  const outcome = await engine.syncOnce();
+  const ms = performance.now() - started;
+  const screen = await stop();
+  engine.stop();
+  const timings = engine.lastTimings as SyncTimings;
+  const records = await db.records.count();
+  const searchRows = await db.patientSearch.count();
+  await drop(db);
+  return {
+    ms,
+    screen,
+    timings,
+    outcome: JSON.stringify(outcome),
+    records,
+    searchRows,
+  };
+}
+
+/** One measurement; the script gives each its own fresh browser profile. */
+async function runFirstSyncBench(
+  run: BenchRun,
+  options: BenchOptions,
+): Promise<RunFigures | SyncFigures> {
+  status(run);
+  if (run === 'sync') return engineSync(options);
+  const rows = (await (await fetch('/bench/rows.json')).json()) as StoredRecord[];
+  if (rows.length !== options.total) throw new Error(`expected ${options.total} rows`);
+  return rawPut(rows, run === 'raw-chunked' ? options.rawChunk : null);
+}
+
+(window as unknown as { runFirstSyncBench: typeof runFirstSyncBench }).runFirstSyncBench =
+  runFirstSyncBench;
+status('ready');
