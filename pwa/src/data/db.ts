@@ -165,11 +165,35 @@ function nameTerms(value: unknown): string[] {
     ]);
 }
 
+const TYPED_ISO_DATE = /^(\d{4})-(\d{1,2})(?:-(\d{1,2}))?$/;
+const TYPED_DAY_FIRST_DATE = /^(\d{1,2})[/.](\d{1,2})[/.](\d{4})$/;
+
+/**
+ * A typed date of birth as the YYYY-MM-DD prefix the index holds ("2016-4-9", "9/4/2016" and
+ * "09.04.2016" → "2016-04-09"; "2016-4" → "2016-04"); any other word as it is. A date is one
+ * term: its hyphens are not word breaks. A one-digit day after a two-digit month is left as
+ * typed, a prefix of the day still being typed ("2016-04-1" finds the 10th to the 19th).
+ */
+function dateTerm(word: string): string {
+  const dayFirst = TYPED_DAY_FIRST_DATE.exec(word);
+  if (dayFirst) {
+    const [, d = '', m = '', y = ''] = dayFirst;
+    return `${y}-${m.padStart(2, '0')}-${d.padStart(2, '0')}`;
+  }
+  const iso = TYPED_ISO_DATE.exec(word);
+  if (!iso) return word;
+  const [, y = '', m = '', d] = iso;
+  const month = m.padStart(2, '0');
+  if (d === undefined) return `${y}-${month}`;
+  return `${y}-${month}-${m.length === 1 ? d.padStart(2, '0') : d}`;
+}
+
 /** Normalises what a person types into the search box into the same form as the terms. */
 export function searchWords(query: string): string[] {
   return normalise(query)
     .split(/[\s,]+/u)
-    .filter((word) => word.length > 0);
+    .filter((word) => word.length > 0)
+    .map(dateTerm);
 }
 
 export function patientSearchRow(record: StoredRecord): PatientSearchRow {

@@ -13,6 +13,7 @@ import {
   CLINICIAN_ID,
   DEVICE_ID,
   OTHER_CLINICIAN_ID,
+  OTHER_SITE_ID,
   patientFields,
   planFields,
   visitFields,
@@ -215,6 +216,64 @@ describe('the records repository', () => {
     await records.update('patient', okafor, { familyName: 'Eze' }, ctx());
     expect(await ids('oka')).toEqual([]);
     expect(await ids('eze')).toEqual(['Eze']);
+  });
+
+  it('finds a date of birth typed whole, in part, unpadded or day first, as one term', async () => {
+    await records.create('patient', patientFields(), ctx());
+    await records.create(
+      'patient',
+      patientFields({ givenName: 'Tomas', familyName: 'Ilves', dateOfBirth: '2016-11-04' }),
+      ctx(),
+    );
+    await records.create(
+      'patient',
+      patientFields({ givenName: 'Ines', familyName: 'Varga', dateOfBirth: '2016-04-19' }),
+      ctx(),
+    );
+    const ids = async (query: string) =>
+      (await records.searchPatients(query)).map((p) => p.fields.familyName).sort();
+    expect(await ids('2016-04-09')).toEqual(['Okafor']);
+    expect(await ids('2016-4-9')).toEqual(['Okafor']);
+    expect(await ids('9/4/2016')).toEqual(['Okafor']);
+    expect(await ids('09.04.2016')).toEqual(['Okafor']);
+    expect(await ids('2016-04')).toEqual(['Okafor', 'Varga']);
+    expect(await ids('2016-4')).toEqual(['Okafor', 'Varga']);
+    expect(await ids('2016-04-1')).toEqual(['Varga']);
+    expect(await ids('2016')).toEqual(['Ilves', 'Okafor', 'Varga']);
+    expect(await ids('amara 9/4/2016')).toEqual(['Okafor']);
+    expect(await ids('ines 2016-04-09')).toEqual([]);
+    expect(await ids('2016-13-40')).toEqual([]);
+  });
+
+  it('lists a patient once when several of their terms match, keeps the limit and the site', async () => {
+    await records.create(
+      'patient',
+      patientFields({ givenName: 'Ada', familyName: 'Adams-Adair' }),
+      ctx(),
+    );
+    for (let i = 0; i < 4; i += 1) {
+      await records.create(
+        'patient',
+        patientFields({ givenName: `Adele${i}`, familyName: 'Quarry', clinicNumber: `FL-7${i}` }),
+        ctx(),
+      );
+    }
+    await records.create(
+      'patient',
+      patientFields({ siteId: OTHER_SITE_ID, givenName: 'Adrian', familyName: 'Yeo' }),
+      ctx(),
+    );
+    const found = await records.searchPatients('ada');
+    expect(found.map((p) => p.fields.givenName)).toEqual(['Ada']);
+    expect(await records.searchPatients('ad', { limit: 3 })).toHaveLength(3);
+    const all = (await records.searchPatients('ad')).map((p) => p.fields.givenName);
+    expect(all).toHaveLength(6);
+    expect(new Set(all).size).toBe(6);
+    expect(
+      (await records.searchPatients('ad', { siteId: OTHER_SITE_ID })).map(
+        (p) => p.fields.givenName,
+      ),
+    ).toEqual(['Adrian']);
   });
 
   it('searches 20,000 patients quickly', async () => {

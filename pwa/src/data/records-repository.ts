@@ -66,6 +66,9 @@ export class RecordNotFoundError extends Error {
 
 export type PlacementField = 'patientId' | 'visitId';
 
+/** Search rows read at a time while checking the second and later typed words. */
+const SEARCH_ROW_CHUNK = 200;
+
 export interface ListFilter {
   /** Include tombstoned records (default false). */
   includeDeleted?: boolean;
@@ -221,33 +224,58 @@ export class RecordsRepository {
 
   /**
    * Patients whose name words, clinic number or date of birth start with every word typed
-   * (e.g. "oka 2016"), through the multi-entry `terms` index.
+   * (e.g. "oka 2016", "2016-04-09", "9/4/2016"), through the multi-entry `terms` index, in the
+   * index's order. The first word's matches are read as primary keys only (one indexed read, no
+   * cursor), made distinct here; the other words and the site are checked on their search rows.
    */
   async searchPatients(
     query: string,
     options: { limit?: number; siteId?: string } = {},
   ): Promise<LocalRecord<'patient'>[]> {
-    const typed = searchWords(query);
-    const [first, ...rest] = typed;
+    const [first, ...rest] = searchWords(query);
     if (first === undefined) return [];
     const limit = options.limit ?? 50;
-    const rows = await this.db.patientSearch
-      .where('terms')
-      .startsWith(first)
-      .distinct()
-      .filter(
-        (row) =>
-          (options.siteId === undefined || row.siteId === options.siteId) &&
-          rest.every((word) => row.terms.some((term) => term.startsWith(word))),
-      )
-      .limit(limit)
-      .toArray();
+    const narrowed = rest.length > 0 || options.siteId !== undefined;
+    const candidates = await this.patientIdsByTermPrefix(first, narrowed ? null : limit);
+    let matched = candidates.slice(0, limit);
+    if (narrowed) {
+      matched = [];
+      for (let i = 0; i < candidates.length && matched.length < limit; i += SEARCH_ROW_CHUNK) {
+        const rows = await this.db.patientSearch.bulkGet(candidates.slice(i, i + SEARCH_ROW_CHUNK));
+        for (const row of rows) {
+          if (
+            row &&
+            (options.siteId === undefined || row.siteId === options.siteId) &&
+            rest.every((word) => row.terms.some((term) => term.startsWith(word)))
+          ) {
+            matched.push(row.id);
+            if (matched.length === limit) break;
+          }
+        }
+      }
+    }
     const records = await this.db.records.bulkGet(
-      rows.map((row) => ['patient', row.id] as unknown as string),
+      matched.map((id) => ['patient', id] as unknown as string),
     );
     return records.filter(
       (record): record is StoredRecord => record !== undefined && !record.deleted,
     ) as LocalRecord<'patient'>[];
+  }
+
+  /**
+   * Ids of patients with a term starting with `prefix`, each once, in index order; `wanted`
+   * (when given) bounds the read: a patient has only a few terms, so four times as many index
+   * entries almost always hold that many patients, and the whole range is read when not.
+   */
+  private async patientIdsByTermPrefix(prefix: string, wanted: number | null): Promise<string[]> {
+    const range = () => this.db.patientSearch.where('terms').startsWith(prefix);
+    if (wanted !== null) {
+      const bound = wanted * 4;
+      const keys = await range().limit(bound).primaryKeys();
+      const ids = [...new Set(keys)];
+      if (ids.length >= wanted || keys.length < bound) return ids;
+    }
+    return [...new Set(await range().primaryKeys())];
   }
 
   private async writeEdit(

@@ -54,22 +54,6 @@ export function localDate(now: Date = new Date()): string {
   return `${y}-${m}-${d}`;
 }
 
-const DATE_QUERY = /^\d{4}(-\d{1,2}(-\d{1,2})?)?$/;
-const DAY_FIRST_DATE = /^(\d{1,2})[/.](\d{1,2})[/.](\d{4})$/;
-
-/** Reads a typed date of birth ("2016-04-09", "2016-04", "9/4/2016") as a YYYY-MM-DD prefix. */
-export function dateQueryPrefix(query: string): string | null {
-  const trimmed = query.trim();
-  const dayFirst = DAY_FIRST_DATE.exec(trimmed);
-  if (dayFirst) {
-    const [, d, m, y] = dayFirst;
-    return `${y}-${m!.padStart(2, '0')}-${d!.padStart(2, '0')}`;
-  }
-  if (!DATE_QUERY.test(trimmed)) return null;
-  const [y, m, d] = trimmed.split('-');
-  return [y, m?.padStart(2, '0'), d?.padStart(2, '0')].filter(Boolean).join('-');
-}
-
 function byIdAscending<T extends { id: string }>(a: T, b: T): number {
   return a.id < b.id ? -1 : a.id > b.id ? 1 : 0;
 }
@@ -103,22 +87,11 @@ export class ChartingRepository {
   }
 
   /**
-   * Patients on the tablet matching what was typed: name words and clinic number through the
-   * search index; a date of birth (whole or in part) through the same index as one term.
+   * Patients on the tablet matching what was typed: name words, clinic number and date of birth
+   * (whole or in part, "2016-04-09" or "9/4/2016"), through the search index.
    */
   async searchPatients(query: string, limit = 30): Promise<LocalRecord<'patient'>[]> {
-    const datePrefix = dateQueryPrefix(query);
-    if (datePrefix === null) return this.records.searchPatients(query, { limit });
-    // The generic search splits typed words at hyphens, which breaks a date into pieces; a date
-    // of birth is one term in the index, so look it up as one prefix here.
-    const db = this.records.db;
-    const rows = await db.patientSearch
-      .where('terms')
-      .startsWith(datePrefix)
-      .limit(limit)
-      .toArray();
-    const found = await Promise.all(rows.map((row) => this.records.get('patient', row.id)));
-    return found.filter((p): p is LocalRecord<'patient'> => p !== undefined && !p.deleted);
+    return this.records.searchPatients(query, { limit });
   }
 
   async patient(patientId: string): Promise<LocalRecord<'patient'> | null> {

@@ -78,6 +78,42 @@ describe('the Today screen', () => {
     expect(await screen.findByText('No patient on this tablet matches “zzz”.')).toBeTruthy();
   });
 
+  it('finds a date of birth typed day first or unpadded, and counts only this query’s results', async () => {
+    const repos = setup();
+    await addPatient(repos, {
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+    });
+    await addPatient(repos, {
+      givenName: 'Oswin',
+      familyName: 'Belgrave',
+      dateOfBirth: '2016-04-19',
+      clinicNumber: 'QX-9921',
+    });
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    const box = screen.getByLabelText('Name, clinic number or date of birth');
+
+    await user.type(box, '9/4/2016');
+    const status = () =>
+      within(screen.getByRole('region', { name: 'Find a patient' })).getByRole('status')
+        .textContent;
+    await waitFor(() => expect(status()).toBe('1 patient found'));
+    const results = screen.getByRole('list', { name: 'Search results' });
+    expect(within(results).getAllByRole('listitem')).toHaveLength(1);
+    expect(within(results).getByText('Wren Altamira')).toBeTruthy();
+
+    await user.clear(box);
+    await user.type(box, '2016-4');
+    await waitFor(() => expect(status()).toBe('2 patients found'));
+    expect(screen.getByText('Oswin Belgrave')).toBeTruthy();
+    expect(screen.getByRole('list', { name: 'Search results' }).getAttribute('aria-busy')).toBe(
+      'false',
+    );
+  });
+
   it('starts a draft visit for a found patient and lists it as today’s, ready to resume', async () => {
     const repos = setup();
     const patientId = await addPatient(repos, {

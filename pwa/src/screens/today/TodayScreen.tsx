@@ -2,7 +2,7 @@
 // patient on the tablet, registering a new patient, and starting or resuming a visit. Reads
 // only IndexedDB, so it works with the network off.
 import { IonContent, IonHeader, IonPage, IonTitle, IonToolbar } from '@ionic/react';
-import { useDeferredValue, useId, useState } from 'react';
+import { memo, useCallback, useId, useMemo, useState } from 'react';
 import { Link, useNavigate } from 'react-router-dom';
 import { useSession } from '../../auth/session-context';
 import { NewPatientForm } from '../../components/charting/NewPatientForm';
@@ -83,7 +83,8 @@ function TodayRow({ entry }: { entry: TodayEntry }) {
   );
 }
 
-function SearchResult({
+// Rows are memoised: a keystroke re-renders the search box, not 30 rows of the last results.
+const SearchResult = memo(function SearchResult({
   patient,
   draftVisitId,
   onStart,
@@ -129,13 +130,13 @@ function SearchResult({
       </div>
     </li>
   );
-}
+});
 
 function PatientSearch({ siteId, today }: { siteId: string | null; today: string }) {
   const inputId = useId();
   const [query, setQuery] = useState('');
-  const deferred = useDeferredValue(query);
-  const results = usePatientLookup(deferred);
+  // No deferred value: the lookup is one indexed read, and its 30 rows render within a frame.
+  const results = usePatientLookup(query);
   const todays = useTodaysVisits(siteId, today);
   const charting = useCharting();
   const editContext = useEditContext();
@@ -144,39 +145,58 @@ function PatientSearch({ siteId, today }: { siteId: string | null; today: string
   const [startError, setStartError] = useState<string | null>(null);
   const [starting, setStarting] = useState(false);
 
-  const draftFor = (patientId: string) =>
-    todays.data?.find(
-      (e) => e.visit.fields.patientId === patientId && e.visit.fields.status === 'draft',
-    )?.visit.id;
+  const drafts = useMemo(
+    () =>
+      new Map(
+        (todays.data ?? [])
+          .filter((e) => e.visit.fields.status === 'draft')
+          .map((e) => [e.visit.fields.patientId, e.visit.id] as const),
+      ),
+    [todays.data],
+  );
 
-  const start = async (patient: LocalRecord<'patient'>) => {
-    setStartError(null);
-    if (!user || !siteId) {
-      setStartError('Sign in and choose a site before starting a visit.');
-      return;
-    }
-    setStarting(true);
-    try {
-      const visitId = await charting.startVisit(
-        { patientId: patient.id, siteId, clinicianId: user.id, date: today },
-        editContext(),
-      );
-      navigate(`/visit/${visitId}`);
-    } catch (error) {
-      setStartError(error instanceof Error ? error.message : String(error));
-    } finally {
-      setStarting(false);
-    }
-  };
+  // Stable while the person, site and day are, so the memoised rows are not re-rendered.
+  const onStart = useCallback(
+    (patient: LocalRecord<'patient'>) => {
+      const start = async () => {
+        setStartError(null);
+        if (!user || !siteId) {
+          setStartError('Sign in and choose a site before starting a visit.');
+          return;
+        }
+        setStarting(true);
+        try {
+          const visitId = await charting.startVisit(
+            { patientId: patient.id, siteId, clinicianId: user.id, date: today },
+            editContext(),
+          );
+          navigate(`/visit/${visitId}`);
+        } catch (error) {
+          setStartError(error instanceof Error ? error.message : String(error));
+        } finally {
+          setStarting(false);
+        }
+      };
+      void start();
+    },
+    [charting, editContext, navigate, siteId, today, user],
+  );
 
-  const trimmed = deferred.trim();
+  const trimmed = query.trim();
+  // While a query runs (a few milliseconds), the previous query's rows and count stay as they
+  // were, marked busy, rather than flashing "Searching…" at every keystroke; the status line
+  // speaks once this query's results are in.
+  const searching = results.isPending || results.isPlaceholderData;
+  const [shownStatus, setShownStatus] = useState('');
   let status = 'Type a name, clinic number or date of birth (YYYY-MM-DD).';
   if (trimmed !== '') {
     if (results.isError) status = 'Search failed on this tablet.';
+    else if (results.isPlaceholderData) status = shownStatus;
     else if (results.isPending) status = 'Searching…';
     else
       status = `${results.data.length} ${results.data.length === 1 ? 'patient' : 'patients'} found`;
   }
+  if (!results.isPlaceholderData && status !== shownStatus) setShownStatus(status);
 
   return (
     <section className="flc-panel" aria-labelledby="find-patient-title">
@@ -203,18 +223,18 @@ function PatientSearch({ siteId, today }: { siteId: string | null; today: string
         {results.isError ? (
           <ErrorState title="The patient search could not run." error={results.error} />
         ) : trimmed !== '' && results.data && results.data.length > 0 ? (
-          <ul className="flc-list" aria-label="Search results">
+          <ul className="flc-list" aria-label="Search results" aria-busy={searching}>
             {results.data.map((patient) => (
               <SearchResult
                 key={patient.id}
                 patient={patient}
-                draftVisitId={draftFor(patient.id)}
-                onStart={(p) => void start(p)}
+                draftVisitId={drafts.get(patient.id)}
+                onStart={onStart}
                 starting={starting}
               />
             ))}
           </ul>
-        ) : trimmed !== '' && results.data?.length === 0 ? (
+        ) : trimmed !== '' && !searching && results.data?.length === 0 ? (
           <EmptyState>No patient on this tablet matches “{trimmed}”.</EmptyState>
         ) : null}
       </div>
