@@ -9,6 +9,7 @@ import {
   type SessionUser,
 } from '@fuselight/shared';
 import { type EditContext, type LocalRecord, type RecordsRepository } from '../records-repository';
+import { sectionRecordId } from '../record-ids';
 import {
   addendumFromRecord,
   byWrittenAt,
@@ -250,14 +251,24 @@ export class ChartingRepository {
         'This visit is signed; its Sections are locked. Write an Addendum.',
       );
     }
-    const existing = (await this.records.listByField(collection, 'visitId', visitId))
-      .filter(
-        (r) => collection !== 'plan' || parseLegacyAddendum(r as LocalRecord<'plan'>) === null,
-      )
-      .sort(byIdAscending)[0];
+    // One record per Section and visit, with an id every tablet derives alike, so two tablets
+    // that start the same Section offline write one record and the server merges their fields.
+    // Older records with random ids are still found and kept.
+    const sharedId = sectionRecordId(visitId, collection);
+    const candidates = (await this.records.listByField(collection, 'visitId', visitId)).filter(
+      (r) => collection !== 'plan' || parseLegacyAddendum(r as LocalRecord<'plan'>) === null,
+    );
+    const existing =
+      candidates.find((r) => r.id === sharedId) ?? [...candidates].sort(byIdAscending)[0];
     if (existing) {
       await this.records.update(collection, existing.id, fields as never, ctx);
       return existing.id;
+    }
+    const tombstone = await this.records.get(collection, sharedId);
+    if (tombstone) {
+      await this.records.restore(collection, sharedId, ctx);
+      await this.records.update(collection, sharedId, fields as never, ctx);
+      return sharedId;
     }
     return this.records.create(
       collection,
@@ -268,6 +279,7 @@ export class ChartingRepository {
         ...fields,
       } as never,
       ctx,
+      { id: sharedId },
     );
   }
 
