@@ -6,6 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startClinic, type Clinic } from '../harness/clinic-server';
 import { deskToken, listConflicts, resolveConflict, serverSnapshot } from '../harness/server-view';
 import { SimTablet } from '../harness/sim-tablet';
+import { ChartingRepository } from '@pwa/data/charting/charting-repository';
 
 let clinic: Clinic;
 let nurse: TestUser;
@@ -109,6 +110,44 @@ describe('two tablets edit one visit offline', () => {
       await expectConverged(a, b);
     },
   );
+});
+
+describe('two tablets start the same Section of a visit offline', () => {
+  it('write one record (the id is derived from the visit), merge their fields, and converge', async () => {
+    const a = await tablet('section-a');
+    const b = await tablet('section-b');
+    const { visitId } = await sharedVisit(a, [b]);
+    a.network.offline = true;
+    b.network.offline = true;
+    const idA = await new ChartingRepository(a.records).saveSection(
+      visitId,
+      'coverTest',
+      { nearFinding: 'phoria' },
+      a.ctx(),
+    );
+    const idB = await new ChartingRepository(b.records).saveSection(
+      visitId,
+      'coverTest',
+      { distanceFinding: 'tropia' },
+      b.ctx(),
+    );
+    expect(idB).toBe(idA);
+    a.network.offline = false;
+    b.network.offline = false;
+    await a.sync();
+    await b.sync();
+    await a.sync();
+    // step          result
+    expect(statusesOf(a, idA).at(-1)).toBe('applied');
+    expect(statusesOf(b, idA).at(-1)).toBe('merged');
+    for (const t of [a, b]) {
+      expect((await t.get('coverTest', idA))?.fields).toMatchObject({
+        nearFinding: 'phoria',
+        distanceFinding: 'tropia',
+      });
+    }
+    await expectConverged(a, b);
+  });
 });
 
 describe('two tablets set the same field to different values', () => {
