@@ -1,0 +1,56 @@
+// The tablet's own store of attachment files (photos, scanned PDFs), separate from the records
+// database: a file's bytes stay here until the server holds them, and a file fetched from the
+// server on demand is kept here as a cache. The attachment record itself syncs like any record.
+// A file's bytes are written once; its upload progress lives in its own small table, so a retry
+// never rewrites megabytes.
+import Dexie, { type EntityTable } from 'dexie';
+
+export type AttachmentFileState = 'waiting' | 'uploaded' | 'cached';
+
+export interface AttachmentFile {
+  /** The attachment record's id. */
+  attachmentId: string;
+  sha256: string;
+  mimeType: string;
+  byteSize: number;
+  /** The file's bytes (an ArrayBuffer: stored reliably by every browser's IndexedDB). */
+  bytes: ArrayBuffer;
+  /** Author of the attachment, whose session uploads it. */
+  authorId: string;
+  createdAt: number;
+}
+
+export interface AttachmentTransfer {
+  attachmentId: string;
+  /** waiting: taken here, not yet on the server; uploaded: the server has it; cached: fetched. */
+  state: AttachmentFileState;
+  attempts: number;
+  lastError: string | null;
+  /** Earliest time (ms) of the next upload attempt. */
+  nextAttemptAt: number;
+}
+
+export class AttachmentDb extends Dexie {
+  files!: EntityTable<AttachmentFile, 'attachmentId'>;
+  transfers!: EntityTable<AttachmentTransfer, 'attachmentId'>;
+
+  constructor(name = 'fuselight-attachments') {
+    super(name);
+    this.version(1).stores({
+      files: 'attachmentId, sha256',
+      transfers: 'attachmentId, state, nextAttemptAt',
+    });
+  }
+}
+
+/** The stored file as a Blob of its media type, for thumbnails and the viewer. */
+export function blobOf(file: Pick<AttachmentFile, 'bytes' | 'mimeType'>): Blob {
+  return new Blob([file.bytes], { type: file.mimeType });
+}
+
+let defaultDb: AttachmentDb | null = null;
+
+export function getAttachmentDb(): AttachmentDb {
+  defaultDb ??= new AttachmentDb();
+  return defaultDb;
+}
