@@ -3,71 +3,24 @@
 // offline, registers a patient and charts a full Bench session, reloads offline and finds it all,
 // then goes online and the records reach the server. A second tablet edits other fields of the
 // same visit and both edits survive. Axe checks each Bench step.
-import { randomUUID } from 'node:crypto';
-import AxeBuilder from '@axe-core/playwright';
-import { hash } from '@node-rs/argon2';
-import pg from 'pg';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { expectNoSeriousViolations } from './support/accessibility';
 import { baseUrl, launchTablet, screenshot } from './support/browser';
+import { newPerson, newSite, runTag, seedClinic, withDb } from './support/clinic-fixtures';
+import { enrolClinicianTablet, serviceWorkerReady, signInAdmin } from './support/tablet-flows';
 
-const run = randomUUID().slice(0, 8);
-const siteId = randomUUID();
-const siteName = `Harbour Orthoptics ${run}`;
-const admin = {
-  id: randomUUID(),
-  name: 'Tomas Ardent',
+const run = runTag();
+const site = newSite(`Harbour Orthoptics ${run}`);
+const admin = newPerson('Tomas Ardent', 'admin', {
   email: `tomas.${run}@harbour.test`,
   password: `admin-pass-${run}`,
-  role: 'admin',
-};
-const clinician = {
-  id: randomUUID(),
-  name: 'Priya Lund',
+});
+const clinician = newPerson('Priya Lund', 'orthoptist', {
   email: `priya.${run}@harbour.test`,
   password: `clinician-pass-${run}`,
-  role: 'orthoptist',
-};
+});
 const patient = { given: 'Wren', family: `Calloway${run}`, dob: '2017-03-14', number: `HB-${run}` };
-
-function databaseUrl(): string {
-  const url = process.env.FUSELIGHT_E2E_DATABASE_URL;
-  if (!url)
-    throw new Error(
-      'FUSELIGHT_E2E_DATABASE_URL is not set: run end-to-end tests through `npm test`.',
-    );
-  return url;
-}
-
-async function withDb<T>(work: (client: pg.Client) => Promise<T>): Promise<T> {
-  const client = new pg.Client({ connectionString: databaseUrl() });
-  await client.connect();
-  try {
-    return await work(client);
-  } finally {
-    await client.end();
-  }
-}
-
-async function seedPeople(): Promise<void> {
-  await withDb(async (client) => {
-    await client.query(
-      `insert into "site" ("id", "name", "kind", "time_zone") values ($1, $2, 'clinic', 'Europe/London')`,
-      [siteId, siteName],
-    );
-    for (const person of [admin, clinician]) {
-      await client.query(
-        `insert into "app_user" ("id", "email", "name", "role", "password_hash", "created_at", "updated_at")
-         values ($1, $2, $3, $4, $5, now(), now())`,
-        [person.id, person.email, person.name, person.role, await hash(person.password)],
-      );
-      await client.query(`insert into "user_site" ("user_id", "site_id") values ($1, $2)`, [
-        person.id,
-        siteId,
-      ]);
-    }
-  });
-}
 
 async function serverFields(collection: string, visitId: string) {
   return withDb(async (client) => {
@@ -89,49 +42,23 @@ async function until<T>(what: string, probe: () => Promise<T | null | undefined 
   }
 }
 
-async function signIn(page: Page, person: { email: string; password: string }) {
-  await page.getByRole('heading', { name: 'Sign in' }).first().waitFor();
-  await page.getByLabel('E-mail address').fill(person.email);
-  await page.getByLabel('Password').fill(person.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-}
-
-/** Registers a tablet on the Fleet (admin page) and enrols `tablet` with the code. */
+/**
+ * Registers a tablet on the Fleet (admin page), enrols `tablet` with the code, signs the
+ * clinician in with a PIN and waits until the shell is precached.
+ */
 async function enrolTablet(adminPage: Page, tablet: BrowserContext, name: string): Promise<Page> {
-  await adminPage.goto(`${baseUrl()}/fleet`);
-  await adminPage.getByRole('heading', { name: 'Fleet' }).first().waitFor();
-  await adminPage.getByLabel('Tablet name').fill(name);
-  await adminPage.getByLabel(siteName).check();
-  await adminPage.getByRole('button', { name: 'Register tablet' }).click();
-  const codeLocator = adminPage.getByTestId('enrolment-code');
-  await codeLocator.waitFor();
-  const code = (await codeLocator.textContent())?.trim() ?? '';
-  const page = await tablet.newPage();
-  await page.goto(`${baseUrl()}/enrol`);
-  await page.getByLabel('Enrolment code').fill(code);
-  await page.getByRole('button', { name: 'Enrol', exact: true }).click();
-  await signIn(page, clinician);
-  await page.getByRole('heading', { name: 'PIN for offline use' }).first().waitFor();
-  await page.getByLabel('New PIN (4 to 8 digits)').fill('582913');
-  await page.getByLabel('The same PIN again').fill('582913');
-  await page.getByRole('button', { name: 'Save PIN' }).click();
-  await page.getByRole('heading', { name: 'Today' }).first().waitFor();
-  // The shell must be precached before the tablet goes offline.
-  await page.evaluate(async () => {
-    await navigator.serviceWorker.ready;
+  const page = await enrolClinicianTablet(adminPage, tablet, {
+    name,
+    site,
+    clinician,
+    pin: '582913',
   });
+  // The shell must be precached before the tablet goes offline.
+  await serviceWorkerReady(page);
   return page;
 }
 
-async function axeStep(page: Page, step: string) {
-  const results = await new AxeBuilder({ page }).include('.fl-bench').analyze();
-  const serious = results.violations.filter(
-    (v) => v.impact === 'serious' || v.impact === 'critical',
-  );
-  expect(
-    serious.map((v) => `${step}: ${v.id} ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`),
-  ).toEqual([]);
-}
+const axeStep = (page: Page, step: string) => expectNoSeriousViolations(page, '.fl-bench', step);
 
 async function goStep(page: Page, title: string) {
   await page
@@ -159,14 +86,12 @@ describe('the Bench on an enrolled tablet', () => {
   let visitId = '';
 
   beforeAll(async () => {
-    await seedPeople();
+    await seedClinic(site, [admin, clinician]);
     desk = await launchTablet();
     tabletA = await launchTablet();
     tabletB = await launchTablet();
     adminPage = await desk.newPage();
-    await adminPage.goto(baseUrl());
-    await signIn(adminPage, admin);
-    await adminPage.getByRole('heading', { name: 'Fleet' }).first().waitFor();
+    await signInAdmin(adminPage, admin);
   });
   afterAll(async () => {
     await desk?.close();

@@ -1,106 +1,27 @@
 // Today, Chart and Visit in Debian's Chromium at tablet sizes, against the real server and an
 // empty migrated database: the people and the tablet are made here, the patient through the UI.
 // Axe checks each screen for serious violations; a screenshot of each goes to the artifacts.
-import { randomUUID } from 'node:crypto';
-import AxeBuilder from '@axe-core/playwright';
-import { hash } from '@node-rs/argon2';
-import pg from 'pg';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { expectNoSeriousViolations } from './support/accessibility';
 import { TABLET_PORTRAIT, baseUrl, launchTablet, screenshot } from './support/browser';
+import { newPerson, newSite, runTag, seedClinic } from './support/clinic-fixtures';
+import { enrolClinicianTablet, signInAdmin } from './support/tablet-flows';
 
-const run = randomUUID().slice(0, 8);
-const siteId = randomUUID();
-const siteName = `Larkfield Eye Room ${run}`;
-const admin = {
-  id: randomUUID(),
-  name: 'Odile Marrack',
+const run = runTag();
+const site = newSite(`Larkfield Eye Room ${run}`);
+const admin = newPerson('Odile Marrack', 'admin', {
   email: `odile.${run}@larkfield.test`,
   password: `admin-pass-${run}`,
-  role: 'admin',
-};
-const clinician = {
-  id: randomUUID(),
-  name: 'Bastian Reyne',
+});
+const clinician = newPerson('Bastian Reyne', 'orthoptist', {
   email: `bastian.${run}@larkfield.test`,
   password: `clinician-pass-${run}`,
-  role: 'orthoptist',
-};
+});
 const patient = { given: 'Juno', family: `Farrowby${run}`, dob: '2015-09-21', number: `LK-${run}` };
 
-function databaseUrl(): string {
-  const url = process.env.FUSELIGHT_E2E_DATABASE_URL;
-  if (!url)
-    throw new Error(
-      'FUSELIGHT_E2E_DATABASE_URL is not set: run end-to-end tests through `npm test`.',
-    );
-  return url;
-}
-
-async function seedPeople(): Promise<void> {
-  const client = new pg.Client({ connectionString: databaseUrl() });
-  await client.connect();
-  try {
-    await client.query(
-      `insert into "site" ("id", "name", "kind", "time_zone") values ($1, $2, 'clinic', 'Europe/London')`,
-      [siteId, siteName],
-    );
-    for (const person of [admin, clinician]) {
-      await client.query(
-        `insert into "app_user" ("id", "email", "name", "role", "password_hash", "created_at", "updated_at")
-         values ($1, $2, $3, $4, $5, now(), now())`,
-        [person.id, person.email, person.name, person.role, await hash(person.password)],
-      );
-      await client.query(`insert into "user_site" ("user_id", "site_id") values ($1, $2)`, [
-        person.id,
-        siteId,
-      ]);
-    }
-  } finally {
-    await client.end();
-  }
-}
-
-async function signIn(page: Page, person: { email: string; password: string }) {
-  await page.getByRole('heading', { name: 'Sign in' }).first().waitFor();
-  await page.getByLabel('E-mail address').fill(person.email);
-  await page.getByLabel('Password').fill(person.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-}
-
-async function enrolTablet(adminPage: Page, tablet: BrowserContext): Promise<Page> {
-  await adminPage.goto(`${baseUrl()}/fleet`);
-  await adminPage.getByRole('heading', { name: 'Fleet' }).first().waitFor();
-  await adminPage.getByLabel('Tablet name').fill(`Charting tablet ${run}`);
-  await adminPage.getByLabel(siteName).check();
-  await adminPage.getByRole('button', { name: 'Register tablet' }).click();
-  const codeLocator = adminPage.getByTestId('enrolment-code');
-  await codeLocator.waitFor();
-  const code = (await codeLocator.textContent())?.trim() ?? '';
-  const page = await tablet.newPage();
-  await page.goto(`${baseUrl()}/enrol`);
-  await page.getByLabel('Enrolment code').fill(code);
-  await page.getByRole('button', { name: 'Enrol', exact: true }).click();
-  await signIn(page, clinician);
-  await page.getByRole('heading', { name: 'PIN for offline use' }).first().waitFor();
-  await page.getByLabel('New PIN (4 to 8 digits)').fill('274913');
-  await page.getByLabel('The same PIN again').fill('274913');
-  await page.getByRole('button', { name: 'Save PIN' }).click();
-  await page.getByRole('heading', { name: 'Today' }).first().waitFor();
-  return page;
-}
-
-async function noSeriousViolations(page: Page, screenName: string) {
-  const results = await new AxeBuilder({ page }).include('main.flc-page').analyze();
-  const serious = results.violations.filter(
-    (v) => v.impact === 'serious' || v.impact === 'critical',
-  );
-  expect(
-    serious.map(
-      (v) => `${screenName}: ${v.id} ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`,
-    ),
-  ).toEqual([]);
-}
+const noSeriousViolations = (page: Page, screenName: string) =>
+  expectNoSeriousViolations(page, 'main.flc-page', screenName);
 
 describe('the charting screens on an enrolled tablet', () => {
   let desk: BrowserContext;
@@ -108,14 +29,17 @@ describe('the charting screens on an enrolled tablet', () => {
   let page: Page;
 
   beforeAll(async () => {
-    await seedPeople();
+    await seedClinic(site, [admin, clinician]);
     desk = await launchTablet();
     tablet = await launchTablet(TABLET_PORTRAIT);
     const adminPage = await desk.newPage();
-    await adminPage.goto(baseUrl());
-    await signIn(adminPage, admin);
-    await adminPage.getByRole('heading', { name: 'Fleet' }).first().waitFor();
-    page = await enrolTablet(adminPage, tablet);
+    await signInAdmin(adminPage, admin);
+    page = await enrolClinicianTablet(adminPage, tablet, {
+      name: `Charting tablet ${run}`,
+      site,
+      clinician,
+      pin: '274913',
+    });
   });
   afterAll(async () => {
     await desk?.close();

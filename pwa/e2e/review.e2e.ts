@@ -4,55 +4,31 @@
 // seed). The tablets are real enrolled devices with device-bound sessions talking sync protocol 1
 // to the real server from this process; only the supervisor's desk runs in the browser.
 import { randomUUID } from 'node:crypto';
-import { hash } from '@node-rs/argon2';
-import pg from 'pg';
 import type { BrowserContext } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { baseUrl, launchTablet, screenshot } from './support/browser';
+import {
+  type Person,
+  type Role,
+  newPerson,
+  newSite,
+  runTag,
+  seedClinic,
+} from './support/clinic-fixtures';
+import { openAndSignIn } from './support/tablet-flows';
 
-const run = randomUUID().slice(0, 8);
-const siteId = randomUUID();
-const siteName = `Harbour Street Clinic ${run}`;
-const person = (name: string, role: string) => ({
-  id: randomUUID(),
-  name,
-  email: `${name.split(' ')[0]!.toLowerCase()}.${run}@harbour.test`,
-  password: `${role}-pass-${run}`,
-  role,
-});
+const run = runTag();
+const site = newSite(`Harbour Street Clinic ${run}`);
+const siteId = site.id;
+const person = (name: string, role: Role) =>
+  newPerson(name, role, {
+    email: `${name.split(' ')[0]!.toLowerCase()}.${run}@harbour.test`,
+    password: `${role}-pass-${run}`,
+  });
 const admin = person('Ines Marlowe', 'admin');
 const supervisor = person('Corin Hale', 'supervisor');
 const ada = person('Ada Quill', 'orthoptist');
 const bram = person('Bram Osei', 'orthoptist');
-
-async function seed(): Promise<void> {
-  const url = process.env.FUSELIGHT_E2E_DATABASE_URL;
-  if (!url)
-    throw new Error(
-      'FUSELIGHT_E2E_DATABASE_URL is not set: run end-to-end tests through `npm test`.',
-    );
-  const client = new pg.Client({ connectionString: url });
-  await client.connect();
-  try {
-    await client.query(
-      `insert into "site" ("id", "name", "kind", "time_zone") values ($1, $2, 'clinic', 'Europe/London')`,
-      [siteId, siteName],
-    );
-    for (const p of [admin, supervisor, ada, bram]) {
-      await client.query(
-        `insert into "app_user" ("id", "email", "name", "role", "password_hash", "created_at", "updated_at")
-         values ($1, $2, $3, $4, $5, now(), now())`,
-        [p.id, p.email, p.name, p.role, await hash(p.password)],
-      );
-      await client.query(`insert into "user_site" ("user_id", "site_id") values ($1, $2)`, [
-        p.id,
-        siteId,
-      ]);
-    }
-  } finally {
-    await client.end();
-  }
-}
 
 async function api<T>(method: string, path: string, body?: unknown, token?: string): Promise<T> {
   const res = await fetch(`${baseUrl()}${path}`, {
@@ -76,11 +52,7 @@ class SyncedTablet {
     readonly token: string,
   ) {}
 
-  static async enrol(
-    adminToken: string,
-    label: string,
-    clinician: typeof ada,
-  ): Promise<SyncedTablet> {
+  static async enrol(adminToken: string, label: string, clinician: Person): Promise<SyncedTablet> {
     const ticket = await api<{ deviceId: string; enrolmentCode: string }>(
       'POST',
       '/api/admin/devices',
@@ -173,7 +145,7 @@ describe('the Review desk resolves a dispute between two tablets', () => {
   const anglesId = randomUUID();
 
   beforeAll(async () => {
-    await seed();
+    await seedClinic(site, [admin, supervisor, ada, bram]);
     const adminSession = await api<{ accessToken: string }>('POST', '/api/auth/login', {
       email: admin.email,
       password: admin.password,
@@ -222,11 +194,7 @@ describe('the Review desk resolves a dispute between two tablets', () => {
     expect((await two.sync()).map((r) => r.status)).toEqual(['conflict']);
 
     const page = await desk.newPage();
-    await page.goto(baseUrl());
-    await page.getByRole('heading', { name: 'Sign in' }).first().waitFor();
-    await page.getByLabel('E-mail address').fill(supervisor.email);
-    await page.getByLabel('Password').fill(supervisor.password);
-    await page.getByRole('button', { name: 'Sign in' }).click();
+    await openAndSignIn(page, supervisor);
     await page.locator('ion-tab-button[tab="review"]').click();
     await page.getByRole('button', { name: 'Disputes (1)' }).waitFor({ timeout: 15_000 });
     const row = page.getByRole('row', { name: /Mira Tenby/ });

@@ -1,0 +1,91 @@
+// The steps through the app's own screens that several end-to-end files take to get a clinician
+// working on an enrolled tablet: sign in, register a tablet on the Fleet, enrol a browser with the
+// one-time code, sign the clinician in on it and set the offline PIN. Each step waits for the
+// screen it ends on, so a step that does not arrive fails the test.
+import type { BrowserContext, Page } from 'playwright-core';
+import { baseUrl } from './browser';
+import type { Person, Site } from './clinic-fixtures';
+
+/** On the Sign in screen (waited for), signs the person in. */
+export async function signIn(page: Page, person: Pick<Person, 'email' | 'password'>) {
+  await page.getByRole('heading', { name: 'Sign in' }).first().waitFor();
+  await page.getByLabel('E-mail address').fill(person.email);
+  await page.getByLabel('Password').fill(person.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+}
+
+/** Opens the app and signs the person in (on a browser that is not an enrolled tablet). */
+export async function openAndSignIn(page: Page, person: Pick<Person, 'email' | 'password'>) {
+  await page.goto(baseUrl());
+  await signIn(page, person);
+}
+
+/** Opens the app, signs the admin in and waits for the Fleet, where admins land. */
+export async function signInAdmin(page: Page, admin: Pick<Person, 'email' | 'password'>) {
+  await openAndSignIn(page, admin);
+  await page.getByRole('heading', { name: 'Fleet' }).first().waitFor();
+}
+
+/** Goes to the Fleet screen on a signed-in admin's page. */
+export async function openFleet(adminPage: Page) {
+  await adminPage.goto(`${baseUrl()}/fleet`);
+  await adminPage.getByRole('heading', { name: 'Fleet' }).first().waitFor();
+}
+
+/** On the Fleet, registers a tablet for the site and returns the one-time enrolment code shown. */
+export async function registerTablet(adminPage: Page, name: string, site: Site): Promise<string> {
+  await adminPage.getByLabel('Tablet name').fill(name);
+  await adminPage.getByLabel(site.name).check();
+  await adminPage.getByRole('button', { name: 'Register tablet' }).click();
+  const codeLocator = adminPage.getByTestId('enrolment-code');
+  await codeLocator.waitFor();
+  return (await codeLocator.textContent())?.trim() ?? '';
+}
+
+/** Opens the enrolment screen in the tablet's browser and enrols it with the code. */
+export async function enrolTablet(tablet: BrowserContext, code: string): Promise<Page> {
+  const page = await tablet.newPage();
+  await page.goto(`${baseUrl()}/enrol`);
+  await page.getByRole('heading', { name: 'Enrol this tablet' }).first().waitFor();
+  await page.getByLabel('Enrolment code').fill(code);
+  await page.getByRole('button', { name: 'Enrol', exact: true }).click();
+  return page;
+}
+
+/** Signs the clinician in on an enrolled tablet, which offers a PIN for offline use next. */
+export async function signInClinician(page: Page, clinician: Pick<Person, 'email' | 'password'>) {
+  await signIn(page, clinician);
+  await page.getByRole('heading', { name: 'PIN for offline use' }).first().waitFor();
+}
+
+/** On the PIN offer, sets the PIN and waits for the clinician's Today. */
+export async function setPin(page: Page, pin: string) {
+  await page.getByLabel('New PIN (4 to 8 digits)').fill(pin);
+  await page.getByLabel('The same PIN again').fill(pin);
+  await page.getByRole('button', { name: 'Save PIN' }).click();
+  await page.getByRole('heading', { name: 'Today' }).first().waitFor();
+}
+
+/**
+ * From a signed-in admin's page: registers a tablet on the Fleet, enrols `tablet` with the code,
+ * signs the clinician in on it and sets the PIN. Returns the tablet's page on Today.
+ */
+export async function enrolClinicianTablet(
+  adminPage: Page,
+  tablet: BrowserContext,
+  options: { name: string; site: Site; clinician: Person; pin: string },
+): Promise<Page> {
+  await openFleet(adminPage);
+  const code = await registerTablet(adminPage, options.name, options.site);
+  const page = await enrolTablet(tablet, code);
+  await signInClinician(page, options.clinician);
+  await setPin(page, options.pin);
+  return page;
+}
+
+/** Waits until the service worker is ready (the shell precached), e.g. before going offline. */
+export async function serviceWorkerReady(page: Page) {
+  await page.evaluate(async () => {
+    await navigator.serviceWorker.ready;
+  });
+}
