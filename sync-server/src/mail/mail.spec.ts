@@ -224,6 +224,25 @@ describe('mail: final letters by e-mail through the outbox', () => {
     expect(smtp.mails).toHaveLength(0);
   });
 
+  it('sends a timed request with a copy to the patient address on file', async () => {
+    const s = await pushLetterScenario(t);
+    await s.tablet.pushOk('patient', s.patientId, { email: 'orrery.family@home.example' }, 0);
+    await s.tablet.pushOk('letter', s.letterId, {
+      status: 'final',
+      finalisedAt: '2026-12-01T15:20:00.000Z',
+      finalisedBy: s.tablet.person.id,
+      sendRequestedAt: '2026-12-01T15:21:00.000Z',
+      copyToPatient: true,
+    });
+    expect(await mail.runOnce()).toMatchObject({ enqueued: 1, sent: 2 });
+    expect(smtp.mails.map((m) => m.to[0]).sort()).toEqual([
+      'a.whitcombe@practice.example',
+      'orrery.family@home.example',
+    ]);
+    expect(smtp.mails.every((m) => pdfAttachmentOf(m.raw) !== null)).toBe(true);
+    expect((await letterFields(s.letterId)).deliveryState).toBe('sent');
+  });
+
   it('does not send a draft', async () => {
     const s = await pushLetterScenario(t);
     await mail.runOnce();
