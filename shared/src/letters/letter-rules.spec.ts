@@ -40,6 +40,22 @@ describe('letterChangeProblems', () => {
     ).toEqual([]);
   });
 
+  it('accepts a timed send request with the patient copy choice on a final letter', () => {
+    expect(
+      letterChangeProblems(finalLetter, {
+        sendRequestedAt: '2026-12-01T16:00:00.000Z',
+        copyToPatient: true,
+      }),
+    ).toEqual([]);
+    expect(letterChangeProblems(finalLetter, { copyToPatient: true })[0]?.field).toBe(
+      'copyToPatient',
+    );
+    expect(
+      letterChangeProblems({ status: 'draft' }, { sendRequestedAt: '2026-12-01T16:00:00.000Z' })[0]
+        ?.field,
+    ).toBe('sendRequestedAt');
+  });
+
   it('refuses a send request on a draft and delivery results from a tablet', () => {
     expect(
       letterChangeProblems({ status: 'draft' }, { deliveryState: 'queued' })[0]?.message,

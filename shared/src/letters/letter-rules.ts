@@ -25,6 +25,9 @@ export function letterChangeProblems(
   const problems: LetterProblem[] = [];
   const wasFinal = current?.status === 'final';
   const becomesFinal = changed.status === 'final';
+  const final = wasFinal || becomesFinal;
+  const requestsSend =
+    changed.deliveryState === 'queued' || (changed.sendRequestedAt ?? null) !== null;
   for (const field of Object.keys(changed)) {
     if ((LETTER_DELIVERY_FIELDS as readonly string[]).includes(field)) {
       problems.push({
@@ -34,13 +37,12 @@ export function letterChangeProblems(
       continue;
     }
     if (field === 'deliveryState') {
-      const value = changed.deliveryState;
-      if (value !== 'queued') {
+      if (changed.deliveryState !== 'queued') {
         problems.push({
           field,
           message: 'deliveryState may only be set to queued by a tablet (a send request)',
         });
-      } else if (!wasFinal && !becomesFinal) {
+      } else if (!final) {
         problems.push({
           field,
           message: 'deliveryState: a letter can be sent only once it is final',
@@ -48,6 +50,17 @@ export function letterChangeProblems(
       }
       continue;
     }
+    if (field === 'sendRequestedAt') {
+      if (changed.sendRequestedAt !== null && !final) {
+        problems.push({
+          field,
+          message: 'sendRequestedAt: a letter can be sent only once it is final',
+        });
+      }
+      continue;
+    }
+    // Whether the patient gets a copy is part of the send request, so it may come with one.
+    if (field === 'copyToPatient' && requestsSend) continue;
     if (wasFinal && !(field === 'status' && changed.status === 'final')) {
       problems.push({
         field,
