@@ -232,7 +232,7 @@ describe('attachments: resumable upload by content hash, download in scope', () 
       .em()
       .getConnection()
       .execute(`select count(*)::int as n from attachment_blob where sha256 = '${hash}'`);
-    expect(blobs[0].n).toBe(1);
+    expect(blobs[0]?.n).toBe(1);
   });
 
   it('refuses content that is not a photo or PDF, by its bytes, with a clear message', async () => {
