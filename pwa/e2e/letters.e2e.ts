@@ -12,7 +12,7 @@ import {
 } from '@fuselight/shared';
 import type { BrowserContext } from 'playwright-core';
 import { letterFonts } from '../src/letters/letter-fonts';
-import { renderLetterPdf } from '../src/letters/letter-pdf';
+import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
 import { launchTablet, screenshot } from './support/browser';
 
 const require = createRequire(import.meta.url);

@@ -1,8 +1,8 @@
-// Lato (SIL Open Font License, see fonts/OFL.txt) inlined into the letters chunk at build time: the
+// Lato (SIL Open Font License, see shared/src/letters/fonts/OFL.txt) inlined into the letters chunk at build time: the
 // service worker precaches JavaScript, so letters render offline without a font request.
-import latoBoldDataUrl from './fonts/Lato-Bold.ttf?inline';
-import latoRegularDataUrl from './fonts/Lato-Regular.ttf?inline';
-import type { LetterFonts } from './letter-pdf';
+import latoBoldDataUrl from '@fuselight/shared/letters/fonts/Lato-Bold.ttf?inline';
+import latoRegularDataUrl from '@fuselight/shared/letters/fonts/Lato-Regular.ttf?inline';
+import type { LetterFonts } from '@fuselight/shared/letter-pdf';
 
 function bytesOfDataUrl(dataUrl: string): Uint8Array {
   const base64 = dataUrl.slice(dataUrl.indexOf(',') + 1);

@@ -85,7 +85,7 @@ export async function letterPdfOnTablet(
 ): Promise<Uint8Array> {
   const layout = await layoutOfLetter(records, letterId, context);
   const [{ renderLetterPdf }, { letterFonts }] = await Promise.all([
-    import('./letter-pdf'),
+    import('@fuselight/shared/letter-pdf'),
     import('./letter-fonts'),
   ]);
   return renderLetterPdf(layout, letterFonts());

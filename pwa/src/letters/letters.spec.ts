@@ -1,5 +1,3 @@
-import { readFileSync } from 'node:fs';
-import { resolve } from 'node:path';
 import { PDFDocument } from 'pdf-lib';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import {
@@ -192,14 +190,5 @@ describe('letters on the tablet', () => {
         deliveryError: 'no referrer e-mail address',
       }),
     ).toBe('Not sent: no referrer e-mail address');
-  });
-
-  it('draws with the same code as the server renderer', () => {
-    const body = (path: string) =>
-      readFileSync(resolve(import.meta.dirname, path), 'utf8')
-        .split('\n')
-        .slice(4)
-        .join('\n');
-    expect(body('./letter-pdf.ts')).toBe(body('../../../sync-server/src/letters/letter-pdf.ts'));
   });
 });

@@ -9,7 +9,7 @@ import {
   STOP_AND_ASK_ADVICE,
 } from '@fuselight/shared';
 import { letterFonts } from './letter-fonts';
-import { renderLetterPdf } from './letter-pdf';
+import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
 import { pdfText } from './pdf-text.testing';
 
 /** pdfjs splits runs where pdf-lib drew separate strings; compare with spaces squeezed. */

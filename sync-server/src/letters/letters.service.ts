@@ -5,7 +5,7 @@ import { AuditService } from '../audit/audit.service';
 import type { AuthUser } from '../auth/auth-user';
 import { assertSiteAccess } from '../auth/scope';
 import { letterFonts } from './letter-fonts';
-import { renderLetterPdf } from './letter-pdf';
+import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
 import { LetterSourceService } from './letter-source.service';
 import { RecordAccess } from './record-access';
 

@@ -14,7 +14,7 @@ import {
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { APP_CONFIG, type AppConfig } from '../config/app-config';
 import { letterFonts } from '../letters/letter-fonts';
-import { renderLetterPdf } from '../letters/letter-pdf';
+import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
 import { LetterSourceService } from '../letters/letter-source.service';
 import { letterFileName } from '../letters/letters.service';
 import { RecordAccess } from '../letters/record-access';

@@ -1,7 +1,9 @@
-// Draws a letter layout from @fuselight/shared onto A4 pages with pdf-lib, Lato embedded. The same
-// drawing code runs on the tablet (pwa/src/letters/letter-pdf.ts) and on the server; each end
-// supplies the font bytes. The design is Fuselight's own: a teal letterhead band, an identifier
-// strip, a three-column findings table, boxed interpretations and a vector trend chart.
+// Draws a letter layout onto A4 pages with pdf-lib, Lato embedded. Pure: layout and font bytes
+// in, PDF bytes out, so the tablet (offline) and the server (for e-mail) run this same code; each
+// end supplies the font bytes (shared/src/letters/fonts, SIL Open Font License). The design is
+// Fuselight's own: a teal letterhead band, an identifier strip, a three-column findings table,
+// boxed interpretations and a vector trend chart. Imported as `@fuselight/shared/letter-pdf` so
+// that pdf-lib stays out of every chunk that does not draw a letter.
 import fontkit from '@pdf-lib/fontkit';
 import {
   PDFDocument,
@@ -11,7 +13,7 @@ import {
   type RGB,
   degrees as rotation,
 } from 'pdf-lib';
-import type { LetterBlock, LetterLayout, TrendPoint } from '@fuselight/shared';
+import type { LetterBlock, LetterLayout, TrendPoint } from './index';
 
 export interface LetterFonts {
   regular: Uint8Array;
