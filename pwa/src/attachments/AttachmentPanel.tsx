@@ -1,19 +1,10 @@
 // The Attachments panel of a Visit: take a photo with the tablet camera or choose a file (photos
 // and PDFs), give it a caption, see thumbnails, and open one full screen. Files stay on the tablet
 // until the server has them; files attached on another tablet are fetched only when opened.
+// Plain controls in the Visit screen's own style (charting.css), like the Sections around it.
 //
 // Mount on the Visit screen: <AttachmentPanel visitId={visit.id} />
-import {
-  IonButton,
-  IonCard,
-  IonCardContent,
-  IonCardHeader,
-  IonCardTitle,
-  IonInput,
-  IonItem,
-  IonModal,
-  IonNote,
-} from '@ionic/react';
+import { IonModal } from '@ionic/react';
 import { MAX_ATTACHMENT_BYTES } from '@fuselight/shared';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { useSessionStore } from '../auth/SessionProvider';
@@ -25,9 +16,10 @@ import {
   useRepositories,
   type LocalRecord,
 } from '../data';
-import { blobOf, getAttachmentDb } from './attachment-db';
+import { blobOf, getAttachmentDb, type AttachmentTransfer } from './attachment-db';
 import { attachFile } from './attachment-intake';
 import { attachmentBlob, transferStates, uploadWaitingFiles } from './attachment-transfer';
+import './AttachmentPanel.css';
 
 export interface AttachmentPanelProps {
   visitId: string;
@@ -36,6 +28,27 @@ export interface AttachmentPanelProps {
 }
 
 const UPLOAD_EVERY_MS = 30_000;
+
+/** Where a file is, in words. */
+function whereWords(transfer: AttachmentTransfer | undefined): string {
+  if (!transfer) return 'On another tablet or the server; opened on demand';
+  switch (transfer.state) {
+    case 'waiting':
+      return transfer.lastError
+        ? `Kept on this tablet until uploaded (${transfer.lastError})`
+        : 'Kept on this tablet until uploaded';
+    case 'uploaded':
+      return 'On the server';
+    case 'cached':
+      return 'Fetched from the server';
+  }
+}
+
+/** A refusal from the intake reads as a sentence, without the field name it carries for logs. */
+function refusalWords(error: unknown): string {
+  const text = error instanceof Error ? error.message : String(error);
+  return `Not attached: ${text.replace(/^(file|caption): /, '')}`;
+}
 
 function Thumbnail({
   attachment,
@@ -47,17 +60,19 @@ function Thumbnail({
   local: boolean;
 }) {
   const [url, setUrl] = useState<string | null>(null);
+  const caption = attachment.fields.caption ?? null;
   useEffect(() => {
     let made: string | null = null;
+    let gone = false;
     void getAttachmentDb()
       .files.get(attachment.id)
       .then((file) => {
-        if (file && attachment.fields.mimeType.startsWith('image/')) {
-          made = URL.createObjectURL(blobOf(file));
-          setUrl(made);
-        }
+        if (gone || !file || !attachment.fields.mimeType.startsWith('image/')) return;
+        made = URL.createObjectURL(blobOf(file));
+        setUrl(made);
       });
     return () => {
+      gone = true;
       if (made) URL.revokeObjectURL(made);
     };
   }, [attachment.id, attachment.fields.mimeType, local]);
@@ -66,20 +81,16 @@ function Thumbnail({
       type="button"
       className="attachment-thumb"
       onClick={onOpen}
-      aria-label={`Open ${attachment.fields.caption ?? 'attachment'}`}
+      aria-label={`Open ${caption ?? 'attachment'}`}
     >
       {url ? (
-        <img
-          src={url}
-          alt={attachment.fields.caption ?? 'Attachment'}
-          width={96}
-          height={96}
-          style={{ objectFit: 'cover' }}
-        />
+        <img src={url} alt={caption ?? 'Attachment'} width={96} height={96} />
       ) : (
-        <span>{attachment.fields.mimeType === 'application/pdf' ? 'PDF' : 'Tap to load'}</span>
+        <span className="attachment-thumb__stand-in">
+          {attachment.fields.mimeType === 'application/pdf' ? 'PDF' : 'Tap to load'}
+        </span>
       )}
-      <small>{attachment.fields.caption ?? ''}</small>
+      <small>{caption ?? 'No caption'}</small>
     </button>
   );
 }
@@ -95,8 +106,9 @@ export function AttachmentPanel({
   const visit = useRecord('visit', visitId).data;
   const attachments = useRecordsByField('attachment', 'visitId', visitId).data ?? [];
   const [caption, setCaption] = useState('');
-  const [message, setMessage] = useState<string | null>(null);
-  const [states, setStates] = useState<Map<string, string>>(new Map());
+  const [message, setMessage] = useState<{ text: string; refused: boolean } | null>(null);
+  const [busy, setBusy] = useState(false);
+  const [states, setStates] = useState<Map<string, AttachmentTransfer>>(new Map());
   const [viewer, setViewer] = useState<{ url: string; mimeType: string; caption: string } | null>(
     null,
   );
@@ -105,15 +117,7 @@ export function AttachmentPanel({
   const ids = attachments.map((a) => a.id).join(',');
 
   const refreshStates = useCallback(async () => {
-    const rows = await transferStates(getAttachmentDb(), ids ? ids.split(',') : []);
-    setStates(
-      new Map(
-        [...rows].map(([id, row]) => [
-          id,
-          row.state === 'waiting' && row.lastError ? `waiting: ${row.lastError}` : row.state,
-        ]),
-      ),
-    );
+    setStates(await transferStates(getAttachmentDb(), ids ? ids.split(',') : []));
   }, [ids]);
 
   const upload = useCallback(async () => {
@@ -126,20 +130,31 @@ export function AttachmentPanel({
 
   useEffect(() => {
     // Read upload states (and try any waiting file) once the panel is on screen, then every 30 s.
-    const first = setTimeout(() => void upload(), 0);
-    const timer = setInterval(() => void upload(), UPLOAD_EVERY_MS);
-    const online = () => void upload();
+    const first = setTimeout(() => void upload().catch(() => undefined), 0);
+    const timer = setInterval(() => void upload().catch(() => undefined), UPLOAD_EVERY_MS);
+    const online = () => void upload().catch(() => undefined);
     window.addEventListener('online', online);
     return () => {
       clearTimeout(first);
       clearInterval(timer);
       window.removeEventListener('online', online);
     };
-  }, [upload, refreshStates]);
+  }, [upload]);
 
-  const take = async (file: File | undefined) => {
+  useEffect(
+    () => () => {
+      if (viewer) URL.revokeObjectURL(viewer.url);
+    },
+    [viewer],
+  );
+
+  const take = async (input: HTMLInputElement) => {
+    const file = input.files?.[0];
+    // Cleared at once, so choosing the same file again (after a refusal) is seen as a choice.
+    input.value = '';
     if (!file || !visit) return;
     setMessage(null);
+    setBusy(true);
     try {
       await attachFile(
         records,
@@ -148,10 +163,16 @@ export function AttachmentPanel({
         editContext(),
       );
       setCaption('');
+      setMessage({
+        text: `Attached ${file.name || 'the file'}; kept on this tablet until uploaded.`,
+        refused: false,
+      });
       await refreshStates();
-      void upload();
+      void upload().catch(() => undefined);
     } catch (error) {
-      setMessage(error instanceof Error ? error.message : String(error));
+      setMessage({ text: refusalWords(error), refused: true });
+    } finally {
+      setBusy(false);
     }
   };
 
@@ -170,84 +191,114 @@ export function AttachmentPanel({
       });
       await refreshStates();
     } catch (error) {
-      setMessage(error instanceof Error ? error.message : String(error));
+      setMessage({
+        text: `Could not open the file: ${error instanceof Error ? error.message : String(error)}`,
+        refused: true,
+      });
     }
   };
 
   if (!visit) return null;
   return (
-    <IonCard data-testid="attachment-panel">
-      <IonCardHeader>
-        <IonCardTitle>Photos and files</IonCardTitle>
-      </IonCardHeader>
-      <IonCardContent>
-        <IonItem>
-          <IonInput
-            label="Caption"
-            labelPlacement="stacked"
-            maxlength={500}
-            value={caption}
-            onIonInput={(e) => setCaption(String(e.detail.value ?? ''))}
-          />
-        </IonItem>
+    <section
+      className="flc-panel"
+      aria-labelledby="attachments-title"
+      data-testid="attachment-panel"
+    >
+      <header>
+        <h2 id="attachments-title">Photos and files</h2>
+      </header>
+      <div className="flc-field">
+        <label htmlFor={`attachment-caption-${visitId}`}>Caption</label>
         <input
-          ref={camera}
-          type="file"
-          accept="image/*"
-          capture="environment"
-          hidden
-          onChange={(e) => void take(e.target.files?.[0])}
+          id={`attachment-caption-${visitId}`}
+          className="flc-input"
+          type="text"
+          maxLength={500}
+          value={caption}
+          onChange={(event) => setCaption(event.target.value)}
         />
-        <input
-          ref={chooser}
-          type="file"
-          accept="image/jpeg,image/png,image/webp,image/heic,application/pdf"
-          hidden
-          onChange={(e) => void take(e.target.files?.[0])}
-        />
-        <IonButton onClick={() => camera.current?.click()}>Take a photo</IonButton>
-        <IonButton fill="outline" onClick={() => chooser.current?.click()}>
+      </div>
+      <input
+        ref={camera}
+        type="file"
+        accept="image/*"
+        capture="environment"
+        hidden
+        aria-label="Photo from the camera"
+        onChange={(event) => void take(event.target)}
+      />
+      <input
+        ref={chooser}
+        type="file"
+        accept="image/jpeg,image/png,image/webp,image/heic,application/pdf"
+        hidden
+        aria-label="File to attach"
+        onChange={(event) => void take(event.target)}
+      />
+      <div className="flc-actions">
+        <button
+          type="button"
+          className="flc-button flc-button--primary"
+          disabled={busy}
+          onClick={() => camera.current?.click()}
+        >
+          Take a photo
+        </button>
+        <button
+          type="button"
+          className="flc-button"
+          disabled={busy}
+          onClick={() => chooser.current?.click()}
+        >
           Choose a file
-        </IonButton>
-        {message && (
-          <IonNote color="danger" role="alert">
-            {message}
-          </IonNote>
-        )}
-        <div className="attachment-grid">
+        </button>
+      </div>
+      <p className="flc-message" role="status">
+        {message && !message.refused ? message.text : ''}
+      </p>
+      <p className="flc-message flc-message--error" role="alert">
+        {message?.refused ? message.text : ''}
+      </p>
+      {attachments.length === 0 ? (
+        <p className="fl-muted">No photos or files on this visit yet.</p>
+      ) : (
+        <ul className="attachment-grid" aria-label="Photos and files of this visit">
           {attachments.map((attachment) => (
-            <div key={attachment.id}>
+            <li key={attachment.id}>
               <Thumbnail
                 attachment={attachment}
                 local={states.has(attachment.id)}
                 onOpen={() => void openViewer(attachment)}
               />
-              <IonNote>
+              <p className="fl-muted">
                 {attachment.fields.uploadedAt
                   ? 'On the server'
-                  : (states.get(attachment.id) ?? 'On another tablet')}
-              </IonNote>
-            </div>
+                  : whereWords(states.get(attachment.id))}
+              </p>
+            </li>
           ))}
-        </div>
-        <IonModal isOpen={viewer !== null} onDidDismiss={() => setViewer(null)}>
-          {viewer &&
-            (viewer.mimeType === 'application/pdf' ? (
-              <iframe
-                title={viewer.caption || 'Attachment'}
-                src={viewer.url}
-                style={{ width: '100%', height: '100%', border: 0 }}
-              />
-            ) : (
-              <img
-                src={viewer.url}
-                alt={viewer.caption || 'Attachment'}
-                style={{ width: '100%', height: '100%', objectFit: 'contain', background: '#000' }}
-              />
-            ))}
-          <IonButton onClick={() => setViewer(null)}>Close</IonButton>
-        </IonModal>
-      </IonCardContent>
-    </IonCard>
+        </ul>
+      )}
+      <IonModal isOpen={viewer !== null} onDidDismiss={() => setViewer(null)}>
+        {viewer &&
+          (viewer.mimeType === 'application/pdf' ? (
+            <iframe
+              title={viewer.caption || 'Attachment'}
+              src={viewer.url}
+              style={{ width: '100%', height: '100%', border: 0 }}
+            />
+          ) : (
+            <img
+              src={viewer.url}
+              alt={viewer.caption || 'Attachment'}
+              style={{ width: '100%', height: '100%', objectFit: 'contain', background: '#000' }}
+            />
+          ))}
+        <button type="button" className="flc-button" onClick={() => setViewer(null)}>
+          Close
+        </button>
+      </IonModal>
+    </section>
   );
 }

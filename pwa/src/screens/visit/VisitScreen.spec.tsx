@@ -2,10 +2,15 @@ import { CLINICAL_CAUTION } from '@fuselight/shared';
 import { render, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { afterEach, describe, expect, it } from 'vitest';
+import { AuthDb, type KnownSite } from '../../auth/auth-db';
+import { SessionProvider } from '../../auth/SessionProvider';
+import { SessionContext } from '../../auth/session-context';
+import { SessionStore } from '../../auth/session-store';
 import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
 import {
   ORTHOPTIST,
   SUPERVISOR,
+  TEST_DEVICE_ID,
   TEST_SITE_ID,
   editContext,
   freshRepositories,
@@ -16,12 +21,25 @@ import VisitScreen from './VisitScreen';
 
 type Repos = ReturnType<typeof freshRepositories>;
 const opened: Repos[] = [];
+const authDbs: AuthDb[] = [];
 afterEach(async () => {
   for (const repos of opened.splice(0)) {
     repos.db.close();
     await repos.db.delete();
   }
+  for (const db of authDbs.splice(0)) {
+    db.close();
+    await db.delete();
+  }
 });
+
+/** The tablet's identity database, holding the site names GET /api/me/sites last gave. */
+async function authDbWith(sites: readonly Omit<KnownSite, 'fetchedAt'>[] = []): Promise<AuthDb> {
+  const db = new AuthDb(`visit-auth-${crypto.randomUUID()}`);
+  authDbs.push(db);
+  await db.sites.bulkPut(sites.map((site) => ({ ...site, fetchedAt: Date.now() })));
+  return db;
+}
 
 async function setupVisit(overrides: Record<string, unknown> = {}) {
   const repos = freshRepositories();
@@ -52,13 +70,29 @@ async function setupVisit(overrides: Record<string, unknown> = {}) {
   return { repos, patientId, visitId, charting: new ChartingRepository(repos.records) };
 }
 
-function renderVisit(repos: Repos, visitId: string, user = ORTHOPTIST) {
-  return renderScreen(<VisitScreen />, {
-    repositories: repos,
-    user,
-    path: `/visit/${visitId}`,
-    route: '/visit/:visitId',
-  });
+/**
+ * The Visit screen under a session store (the panels read site names and tokens from it), with the
+ * test's person in the session context. The store never reaches a network: background is off.
+ */
+function renderVisit(repos: Repos, visitId: string, user = ORTHOPTIST, authDb?: AuthDb) {
+  const db = authDb ?? new AuthDb(`visit-auth-${crypto.randomUUID()}`);
+  if (!authDb) authDbs.push(db);
+  const store = new SessionStore({ db: () => db, countOutbox: async () => 0 });
+  return renderScreen(
+    <SessionProvider store={store} background={false}>
+      <SessionContext.Provider
+        value={{ user, deviceId: TEST_DEVICE_ID, activeSiteId: TEST_SITE_ID }}
+      >
+        <VisitScreen />
+      </SessionContext.Provider>
+    </SessionProvider>,
+    {
+      repositories: repos,
+      user,
+      path: `/visit/${visitId}`,
+      route: '/visit/:visitId',
+    },
+  );
 }
 
 function sectionNamed(name: string): HTMLElement {
@@ -345,6 +379,73 @@ describe('signing, countersigning and addenda', () => {
       }),
     );
     expect(await within(sectionNamed('Sign and Addenda')).findByText('Countersigned')).toBeTruthy();
+  });
+});
+
+describe('letters and photos on the Visit', () => {
+  it('puts the site name the tablet holds on the letterhead, with a placeholder address line', async () => {
+    const { repos, visitId } = await setupVisit();
+    const authDb = await authDbWith([
+      { id: TEST_SITE_ID, name: 'Brackenfold Orthoptic Clinic', kind: 'clinic', timeZone: 'UTC' },
+    ]);
+    renderVisit(repos, visitId, ORTHOPTIST, authDb);
+    const letters = await screen.findByRole('region', { name: 'Letters' });
+    expect(
+      await within(letters).findByText(
+        'Letterhead: Brackenfold Orthoptic Clinic · Site address not on this tablet (the letter the clinic server sends prints it)',
+      ),
+    ).toBeTruthy();
+  });
+
+  it('shows the visit with a stand-in letterhead name when the tablet has no site names yet', async () => {
+    const { repos, visitId } = await setupVisit();
+    renderVisit(repos, visitId);
+    const letters = await screen.findByRole('region', { name: 'Letters' });
+    expect(
+      within(letters).getByText(
+        /^Letterhead: Clinic site …00a001 \(name not synced to this tablet yet\)/,
+      ),
+    ).toBeTruthy();
+    expect(screen.getByRole('region', { name: 'Near point of convergence' })).toBeTruthy();
+    expect(screen.getByRole('button', { name: 'Sign visit' })).toBeTruthy();
+  });
+
+  it('places Letters after signing and Photos and files as their own section, both in the jump list', async () => {
+    const { repos, visitId } = await setupVisit();
+    renderVisit(repos, visitId);
+    const sign = await screen.findByRole('region', { name: 'Sign and Addenda' });
+    const letters = await screen.findByRole('region', { name: 'Letters' });
+    const files = await screen.findByRole('region', { name: 'Photos and files' });
+    const follows = (a: Node, b: Node) =>
+      (a.compareDocumentPosition(b) & Node.DOCUMENT_POSITION_FOLLOWING) !== 0;
+    expect(follows(sign, letters)).toBe(true);
+    expect(follows(letters, files)).toBe(true);
+    expect(letters.contains(files)).toBe(false);
+    // The panels themselves, not the stand-in a failing panel leaves.
+    expect(within(files).getByRole('button', { name: 'Choose a file' })).toBeTruthy();
+    expect(within(letters).getByRole('button', { name: 'New exercise handout' })).toBeTruthy();
+    expect(letters.closest('#section-letters')).toBeTruthy();
+    expect(files.closest('#section-attachments')).toBeTruthy();
+    const jumps = screen.getByRole('navigation', { name: 'Sections of this visit' });
+    expect(within(jumps).getByRole('button', { name: 'Letters' })).toBeTruthy();
+    expect(within(jumps).getByRole('button', { name: 'Photos and files' })).toBeTruthy();
+  });
+
+  it('drafts a letter on a signed visit, whose Sections stay locked', async () => {
+    const { repos, visitId, charting } = await setupVisit();
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    const letters = await screen.findByRole('region', { name: 'Letters' });
+    await user.click(within(letters).getByRole('button', { name: 'New letter to the referrer' }));
+    await waitFor(async () =>
+      expect(await repos.records.listByField('letter', 'visitId', visitId)).toHaveLength(1),
+    );
+    expect(
+      within(sectionNamed('Near point of convergence')).getByLabelText(
+        'Near point of convergence, break',
+      ),
+    ).toHaveProperty('disabled', true);
   });
 });
 

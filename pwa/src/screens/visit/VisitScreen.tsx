@@ -1,7 +1,8 @@
 // Visit: one sitting with a patient. Its Sections are forms saved to IndexedDB as they change,
 // the computed interpretation sits beside them with its caution, and the visit is signed,
 // countersigned and added to (Addenda) here; the Addenda also show under the interpretation,
-// beneath the signed content they add to or correct.
+// beneath the signed content they add to or correct. Letters sit beside the Sign panel (a letter
+// is usually written once the visit is signed); photos and files are a section of their own.
 import { YesNoChoice } from '../../components/controls';
 import {
   IonBackButton,
@@ -15,6 +16,8 @@ import {
 import type { SectionCollectionName } from '@fuselight/shared';
 import { useCallback, useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router-dom';
+import { AttachmentPanel } from '../../attachments/AttachmentPanel';
+import { useAuthState } from '../../auth/SessionProvider';
 import { useSession } from '../../auth/session-context';
 import { AcuityEntries } from '../../components/charting/AcuityEntries';
 import { AmblyoscopeSummary } from '../../components/charting/AmblyoscopeSummary';
@@ -33,12 +36,15 @@ import { ageOnDate, type VisitSectionValues } from '../../components/charting/in
 import type { SaveStatus } from '../../components/charting/useSectionAutosave';
 import '../../components/charting/charting.css';
 import { useEditContext } from '../../data';
+import { LetterPanel } from '../../letters/LetterPanel';
 import {
   canEditSections,
   useCharting,
   useVisitBundle,
   type VisitBundle,
 } from '../../data/charting';
+import { PanelBoundary } from './PanelBoundary';
+import { clinicForLetters } from './visit-letterhead';
 
 interface SectionSpec {
   collection: SectionCollectionName;
@@ -63,6 +69,8 @@ const JUMPS: readonly [string, string][] = [
   ...SECTIONS.map((s): [string, string] => [`section-${s.collection}`, s.title]),
   ['section-interpretation', 'Interpretation'],
   ['section-sign', 'Sign'],
+  ['section-letters', 'Letters'],
+  ['section-attachments', 'Photos and files'],
 ];
 
 function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean }) {
@@ -124,6 +132,11 @@ function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean
 function VisitBody({ bundle }: { bundle: VisitBundle }) {
   const { visit, patient, sections, addenda } = bundle;
   const { user } = useSession();
+  const { sites } = useAuthState();
+  const clinic = useMemo(
+    () => clinicForLetters(sites, visit.fields.siteId),
+    [sites, visit.fields.siteId],
+  );
   const who = useCallback((id: string) => (user && id === user.id ? 'you' : id), [user]);
   const locked = !canEditSections(visit);
   const [statuses, setStatuses] = useState<Record<string, SaveStatus>>({});
@@ -223,6 +236,16 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
       })}
       <InterpretationSummary sections={values} ageYears={age} addenda={addenda} who={who} />
       <SignPanel bundle={bundle} blockedReason={blockedReason} />
+      <div id="section-letters">
+        <PanelBoundary title="Letters">
+          <LetterPanel visitId={visit.id} clinic={clinic} />
+        </PanelBoundary>
+      </div>
+      <div id="section-attachments">
+        <PanelBoundary title="Photos and files">
+          <AttachmentPanel visitId={visit.id} />
+        </PanelBoundary>
+      </div>
     </main>
   );
 }
