@@ -116,9 +116,18 @@ export function AttachmentPanel({
   const chooser = useRef<HTMLInputElement>(null);
   const ids = attachments.map((a) => a.id).join(',');
 
-  const refreshStates = useCallback(async () => {
-    setStates(await transferStates(getAttachmentDb(), ids ? ids.split(',') : []));
-  }, [ids]);
+  // Merged, not replaced: a refresh begun before a new file's record reached the list (its
+  // closure holds the older ids) must not drop the new file's state again.
+  const refreshStates = useCallback(
+    async (also: readonly string[] = []) => {
+      const rows = await transferStates(getAttachmentDb(), [
+        ...(ids ? ids.split(',') : []),
+        ...also,
+      ]);
+      setStates((shown) => new Map([...shown, ...rows]));
+    },
+    [ids],
+  );
 
   const upload = useCallback(async () => {
     await uploadWaitingFiles(getAttachmentDb(), {
@@ -156,7 +165,7 @@ export function AttachmentPanel({
     setMessage(null);
     setBusy(true);
     try {
-      await attachFile(
+      const attachmentId = await attachFile(
         records,
         getAttachmentDb(),
         { file, caption, visit, maxBytes },
@@ -167,7 +176,7 @@ export function AttachmentPanel({
         text: `Attached ${file.name || 'the file'}; kept on this tablet until uploaded.`,
         refused: false,
       });
-      await refreshStates();
+      await refreshStates([attachmentId]);
       void upload().catch(() => undefined);
     } catch (error) {
       setMessage({ text: refusalWords(error), refused: true });
