@@ -522,11 +522,39 @@ describe('merge properties', () => {
             });
             return field?.value;
           });
-          // Same-device writes can be case 1 (own earlier write), so only all-distinct devices converge on the max.
+          // Same-device writes can be case 1 (own earlier write), so only all-distinct devices
+          // converge on the max. Equal values are case 2 ("nothing to resolve"): a write equal to
+          // the current value leaves its stamp out of the race, so with repeated values the
+          // provisional value may depend on arrival order (the next test shows it); the spec
+          // promises the greatest stamp only among differing values, and a supervisor settles it.
           fc.pre(new Set(writes.map((w) => w.device)).size === writes.length);
+          fc.pre(new Set(writes.map((w) => JSON.stringify(w.value))).size === writes.length);
           expect(jsonEqual(finals[0], finals[1])).toBe(true);
         },
       ),
     );
+  });
+  it('leaves an equal write out of the race (case 2), so repeated values can order the provisional value', () => {
+    // tab-b and tab-c both write x:2, tab-a writes x:0; tab-b's and tab-a's stamps tie on time.
+    const stamp = (ms: number, device: string) =>
+      formatStamp({ wallMs: ms, counter: 0, deviceId: device });
+    const apply = (order: { value: JsonValue; hlc: string; device: string }[]) => {
+      let field: ServerFieldState | undefined;
+      order.forEach((w, index) => {
+        const decision = mergeField(field, { ...w, by: 'u', baseVersion: 0 });
+        if (decision.kind === 'equal' || decision.provisional.source === 'server') return;
+        field = {
+          value: decision.provisional.value,
+          stamp: { hlc: decision.provisional.hlc, version: index + 1, by: 'u', device: w.device },
+          conflictOpen: true,
+        };
+      });
+      return field?.value;
+    };
+    const a = { value: { x: 0 }, hlc: stamp(1_000_001, 'tab-a'), device: 'tab-a' };
+    const b = { value: { x: 2 }, hlc: stamp(1_000_001, 'tab-b'), device: 'tab-b' };
+    const c = { value: { x: 2 }, hlc: stamp(1_000_000, 'tab-c'), device: 'tab-c' };
+    expect(apply([a, b, c])).toEqual({ x: 2 });
+    expect(apply([c, b, a])).toEqual({ x: 0 });
   });
 });
