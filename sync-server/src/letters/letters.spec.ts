@@ -61,7 +61,7 @@ describe('letters on the server', () => {
     );
     expect(edit.results[0]).toMatchObject({
       status: 'rejected',
-      error: expect.stringMatching(/could not store this change/),
+      error: expect.stringMatching(/this letter is final and can no longer be changed/),
     });
     const back = await own.tablet.push('letter', own.letterId, { status: 'draft' }, version);
     expect(back.results[0]?.status).toBe('rejected');

@@ -1,7 +1,8 @@
 // Decides, change by change and in request order, what a push does to the records it has locked:
-// validation (shape, values, scope, broken clock), then the shared merge rule (mergeChange), then
-// the record's next state, the conflicts it opens or joins, its result and its audit line. It holds
-// the working state of the batch in memory; the service writes the plans in a few statements.
+// validation (shape, values, scope, broken clock, the letter rules), then the shared merge rule
+// (mergeChange), then the record's next state, the conflicts it opens or joins, its result and its
+// audit line. It holds the working state of the batch in memory; the service writes the plans in a
+// few statements.
 import {
   TOMBSTONE_FIELD,
   isStampTooFarAhead,
@@ -20,6 +21,7 @@ import { canWriteClinical, hasSiteAccess } from '../auth/scope';
 import type { AuthUser } from '../auth/auth-user';
 import type { IdGenerator } from '../common/clock.provider';
 import { describeZodError } from '../common/zod-validation.pipe';
+import { letterPushProblem } from '../letters/letter-push-rule';
 import type { VersionAllocator } from '../records/record-version';
 import type { ConflictInsert, RecordWrite } from '../records/record-store';
 import type { StoredCandidate, StoredRecord, StoredStamp } from '../records/stored-record';
@@ -108,6 +110,12 @@ export class PushPlanner {
     const fields = validation.fields as Record<string, JsonValue>;
     const scopeProblem = this.scopeProblem(record, fields);
     if (scopeProblem) return rejected(scopeProblem);
+    if (change.collection === 'letter') {
+      const letterProblem = letterPushProblem(record, changedValues(record, fields), {
+        deleting: change.deleted === true,
+      });
+      if (letterProblem) return rejected(`changes.${index}: ${letterProblem}`);
+    }
     return { kind: 'accepted', plan: this.merge(record, change, fields) };
   }
 
@@ -246,6 +254,26 @@ export class PushPlanner {
   collectionOf(recordId: string): CollectionName | undefined {
     return this.records.get(recordId)?.collection;
   }
+}
+
+/**
+ * The fields of a change whose values differ from the stored record's. A final letter is judged
+ * on what would change, as the database trigger judges it (a field sent again with the value it
+ * already has changes nothing; a null where the field is absent adds a key, which does), so the
+ * planner refuses in words what the trigger would refuse.
+ */
+function changedValues(
+  record: StoredRecord | undefined,
+  fields: Record<string, JsonValue>,
+): Record<string, JsonValue> {
+  if (!record || record.deleted) return fields;
+  return Object.fromEntries(
+    Object.entries(fields).filter(
+      ([field, value]) =>
+        !Object.hasOwn(record.fields, field) ||
+        JSON.stringify(record.fields[field]) !== JSON.stringify(value),
+    ),
+  );
 }
 
 function rejected(error: string): PlanOutcome {

@@ -615,3 +615,168 @@ describe('the audit trail of a push', () => {
     }
   });
 });
+
+describe('POST /api/sync/push: final letters', () => {
+  // Its own tablet: earlier tests move the test clock past the shared tablets' sessions.
+  let tab: Tablet;
+  beforeAll(async () => {
+    tab = await tabletFor(t, 'orthoptist', [SITE_A]);
+  });
+
+  async function finalLetter(tablet: Tablet) {
+    const recordId = newId();
+    const [result] = (
+      await tablet.pushOk([
+        tablet.change({
+          recordId,
+          collection: 'letter',
+          fields: {
+            siteId: SITE_A,
+            visitId: newId(),
+            patientId: newId(),
+            kind: 'referrer',
+            status: 'final',
+            opening: 'Dear Dr Fairweather,',
+            finalisedBy: tablet.caller.person.id,
+            finalisedAt: '2026-12-01T15:20:00.000Z',
+          },
+        }),
+      ])
+    ).results;
+    if (result?.status !== 'applied') throw new Error(`letter answered ${JSON.stringify(result)}`);
+    return { recordId, version: result.version };
+  }
+
+  it('rejects an edit of a final letter in words a person can act on, before the database, and applies the rest', async () => {
+    const { recordId, version } = await finalLetter(tab);
+    const edit = tab.change({
+      recordId,
+      collection: 'letter',
+      baseVersion: version,
+      fields: { opening: 'Changed after finalising' },
+    });
+    const good = tab.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    const [r0, r1] = (await tab.pushOk([edit, good])).results;
+    expect(r0).toEqual({
+      changeId: edit.changeId,
+      status: 'rejected',
+      error:
+        'changes.0: fields.opening: opening: this letter is final and can no longer be changed; write a new letter instead',
+    });
+    expect(r1).toMatchObject({ status: 'applied' });
+    expect((await recordRow(recordId))?.fields.opening).toBe('Dear Dr Fairweather,');
+    expect(await recordRow(good.recordId as string)).toBeDefined();
+  });
+
+  it('rejects an edit after a finalisation earlier in the same push, and a deletion of a final letter', async () => {
+    const recordId = newId();
+    const draft = tab.change({
+      recordId,
+      collection: 'letter',
+      fields: {
+        siteId: SITE_A,
+        visitId: newId(),
+        patientId: newId(),
+        kind: 'handout',
+        status: 'draft',
+      },
+    });
+    const finalise = tab.change({
+      recordId,
+      collection: 'letter',
+      fields: {
+        status: 'final',
+        finalisedBy: tab.caller.person.id,
+        finalisedAt: '2026-12-01T15:20:00.000Z',
+      },
+    });
+    const late = tab.change({ recordId, collection: 'letter', fields: { planText: 'Late' } });
+    const remove = tab.change({ recordId, collection: 'letter', fields: {}, deleted: true });
+    const [r0, r1, r2, r3] = (await tab.pushOk([draft, finalise, late, remove])).results;
+    expect(r0).toMatchObject({ status: 'applied' });
+    expect(r1).toMatchObject({ status: 'applied' });
+    expect(r2).toMatchObject({
+      status: 'rejected',
+      error: expect.stringMatching(/^changes\.2: fields\.planText: .*this letter is final/),
+    });
+    expect(r3).toMatchObject({
+      status: 'rejected',
+      error:
+        'changes.3: deleted: this letter is final and cannot be deleted; it stays on the record',
+    });
+    const row = await recordRow(recordId);
+    expect(row).toMatchObject({ deleted: false, fields: { status: 'final' } });
+    expect(row?.fields.planText).toBeUndefined();
+  });
+
+  it('accepts a send request on a final letter, and a field sent again with the value it has', async () => {
+    const { recordId, version } = await finalLetter(tab);
+    const send = tab.change({
+      recordId,
+      collection: 'letter',
+      baseVersion: version,
+      fields: {
+        deliveryState: 'queued',
+        sendRequestedAt: '2026-12-01T15:30:00.000Z',
+        copyToPatient: true,
+        status: 'final',
+        opening: 'Dear Dr Fairweather,',
+      },
+    });
+    const [result] = (await tab.pushOk([send])).results;
+    expect(result?.status).not.toBe('rejected');
+    expect((await recordRow(recordId))?.fields).toMatchObject({
+      deliveryState: 'queued',
+      sendRequestedAt: '2026-12-01T15:30:00.000Z',
+      copyToPatient: true,
+      opening: 'Dear Dr Fairweather,',
+    });
+  });
+
+  it('rejects a tablet’s write of the fields that belong to the clinic server’s mailer', async () => {
+    const { recordId, version } = await finalLetter(tab);
+    const forged = tab.change({
+      recordId,
+      collection: 'letter',
+      baseVersion: version,
+      fields: { sentAt: '2026-12-01T15:40:00.000Z' },
+    });
+    const [result] = (await tab.pushOk([forged])).results;
+    expect(result).toMatchObject({
+      status: 'rejected',
+      error:
+        "changes.0: fields.sentAt: sentAt is written by the clinic server's mailer, not by a tablet",
+    });
+    expect((await recordRow(recordId))?.fields.sentAt).toBeUndefined();
+  });
+
+  it('rejects in words a null for a paragraph a final letter never had, which would still change it', async () => {
+    const { recordId, version } = await finalLetter(tab);
+    const cleared = tab.change({
+      recordId,
+      collection: 'letter',
+      baseVersion: version,
+      fields: { closing: null },
+    });
+    const [result] = (await tab.pushOk([cleared])).results;
+    expect(result).toMatchObject({
+      status: 'rejected',
+      error: expect.stringMatching(/^changes\.0: fields\.closing: .*this letter is final/),
+    });
+    expect(Object.hasOwn((await recordRow(recordId))!.fields, 'closing')).toBe(false);
+  });
+
+  it('keeps the database trigger as the last line of defence for a write that skips the push', async () => {
+    const { recordId } = await finalLetter(tab);
+    await expect(
+      t
+        .em()
+        .getConnection()
+        .execute(
+          `update "sync_record" set "fields" = "fields" || '{"opening":"Bypassed"}'::jsonb where "id" = ?`,
+          [recordId],
+        ),
+    ).rejects.toMatchObject({ code: '22023' });
+    expect((await recordRow(recordId))?.fields.opening).toBe('Dear Dr Fairweather,');
+  });
+});
