@@ -17,7 +17,7 @@ export default defineConfig({
     include: ['src/**/*.spec.ts'],
     environment: 'node',
     globalSetup: [here('../sync-server/src/testing/global-setup.ts')],
-    setupFiles: ['reflect-metadata', 'fake-indexeddb/auto'],
+    setupFiles: ['reflect-metadata', 'fake-indexeddb/auto', './src/fast-check-setup.ts'],
     testTimeout: 120_000,
     hookTimeout: 60_000,
     pool: 'forks',

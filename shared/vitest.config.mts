@@ -1,5 +1,9 @@
 import { defineConfig } from 'vitest/config';
 
 export default defineConfig({
-  test: { include: ['src/**/*.spec.ts'], environment: 'node' },
+  test: {
+    include: ['src/**/*.spec.ts'],
+    environment: 'node',
+    setupFiles: ['./src/fast-check-setup.ts'],
+  },
 });
