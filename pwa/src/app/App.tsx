@@ -20,8 +20,9 @@ import {
   shieldCheckmarkOutline,
   tabletPortraitOutline,
 } from 'ionicons/icons';
+import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
-import { Route } from 'react-router-dom';
+import { Route, useLocation } from 'react-router-dom';
 import { SyncIndicator } from '../components/SyncIndicator';
 import { UpdatePrompt } from '../components/UpdatePrompt';
 import { canSee } from '../auth/access';
@@ -72,6 +73,23 @@ const admin = (node: ReactNode) => <RequireArea area="admin">{screen(node)}</Req
 
 function AppTabs() {
   const role = useSession().user?.role;
+  // The Bench is full screen and carries its own sync indicator.
+  const onBench = useLocation().pathname.startsWith('/bench/');
+  return (
+    <>
+      <AppTabsInner role={role} />
+      {/* Always visible on clinical screens: Ionic's tab bar shows only tab buttons, so the
+          sync indicator docks just above it instead. */}
+      {canSee(role, 'clinical') && !onBench ? (
+        <div className="fl-sync-dock">
+          <SyncIndicator compact />
+        </div>
+      ) : null}
+    </>
+  );
+}
+
+function AppTabsInner({ role }: { role: Role | undefined }) {
   return (
     <IonTabs>
       <IonRouterOutlet>
@@ -148,7 +166,6 @@ function AppTabs() {
           <IonIcon icon={personCircleOutline} aria-hidden="true" />
           <IonLabel>You</IonLabel>
         </IonTabButton>
-        <SyncIndicator compact />
       </IonTabBar>
     </IonTabs>
   );
