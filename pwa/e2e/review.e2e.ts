@@ -1,25 +1,22 @@
 // Two tablets disagree about an amblyoscope angle while offline, both sync, and a supervisor
-// resolves the dispute on the Review desk in Chromium; both tablets then pull the chosen value.
-// People, the site and the tablets are made here in the empty migrated database (never the demo
-// seed). The tablets are real enrolled devices with device-bound sessions talking sync protocol 1
-// to the real server from this process; only the supervisor's desk runs in the browser.
-import { randomUUID } from 'node:crypto';
-import type { BrowserContext } from 'playwright-core';
+// resolves the dispute on the Review desk; both tablets then pull the chosen value. Everything
+// runs in Debian's Chromium: the two tablets are enrolled browsers running the PWA, each with a
+// clinician signed in and an offline PIN, and the supervisor works on the Review desk in a third.
+// People and the site are made here in the empty migrated database (never the demo seed); the
+// patient, the visit and every value are entered through the tablets' screens.
+import type { BrowserContext, Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { baseUrl, launchTablet, screenshot } from './support/browser';
+import { type Role, newPerson, newSite, runTag, seedClinic } from './support/clinic-fixtures';
 import {
-  type Person,
-  type Role,
-  newPerson,
-  newSite,
-  runTag,
-  seedClinic,
-} from './support/clinic-fixtures';
-import { openAndSignIn } from './support/tablet-flows';
+  enrolClinicianTablet,
+  openAndSignIn,
+  serviceWorkerReady,
+  signInAdmin,
+} from './support/tablet-flows';
 
 const run = runTag();
 const site = newSite(`Harbour Street Clinic ${run}`);
-const siteId = site.id;
 const person = (name: string, role: Role) =>
   newPerson(name, role, {
     email: `${name.split(' ')[0]!.toLowerCase()}.${run}@harbour.test`,
@@ -29,171 +26,155 @@ const admin = person('Ines Marlowe', 'admin');
 const supervisor = person('Corin Hale', 'supervisor');
 const ada = person('Ada Quill', 'orthoptist');
 const bram = person('Bram Osei', 'orthoptist');
+const patient = { given: 'Mira', family: 'Tenby', dob: '2017-03-14', number: `HS-${run}` };
 
-async function api<T>(method: string, path: string, body?: unknown, token?: string): Promise<T> {
-  const res = await fetch(`${baseUrl()}${path}`, {
-    method,
-    headers: {
-      'content-type': 'application/json',
-      ...(token ? { authorization: `Bearer ${token}` } : {}),
-    },
-    ...(body === undefined ? {} : { body: JSON.stringify(body) }),
-  });
-  const text = await res.text();
-  if (!res.ok) throw new Error(`${method} ${path} answered ${res.status}: ${text}`);
-  return (text ? JSON.parse(text) : null) as T;
+/** Opens the Outbox tab and returns its sync indicator (the line and its "Sync now"). */
+async function syncIndicator(page: Page) {
+  await page.locator('ion-tab-button[tab="outbox"]').click();
+  const indicator = page.locator('section.fl-sync-indicator').first();
+  await indicator.waitFor();
+  return indicator;
 }
 
-/** An enrolled tablet with a clinician signed in on it, and its own hybrid logical clock. */
-class SyncedTablet {
-  private counter = 0;
-  constructor(
-    readonly deviceId: string,
-    readonly token: string,
-  ) {}
+/** On the Outbox, presses "Sync now" (once it can be pressed) and waits for an empty Outbox. */
+async function syncNow(page: Page) {
+  const indicator = await syncIndicator(page);
+  await indicator.getByRole('button', { name: 'Sync now' }).click({ timeout: 30_000 });
+  await indicator.getByRole('status').getByText('Outbox empty').waitFor({ timeout: 30_000 });
+  await indicator.getByRole('button', { name: 'Sync now' }).waitFor({ timeout: 30_000 });
+  expect(await indicator.getByRole('alert').count()).toBe(0);
+}
 
-  static async enrol(adminToken: string, label: string, clinician: Person): Promise<SyncedTablet> {
-    const ticket = await api<{ deviceId: string; enrolmentCode: string }>(
-      'POST',
-      '/api/admin/devices',
-      { label, siteIds: [siteId] },
-      adminToken,
-    );
-    const enrolled = await api<{ deviceId: string; deviceSecret: string }>(
-      'POST',
-      '/api/devices/enrol',
-      {
-        code: ticket.enrolmentCode,
-      },
-    );
-    const session = await api<{ accessToken: string }>('POST', '/api/auth/login', {
-      email: clinician.email,
-      password: clinician.password,
-      deviceSecret: enrolled.deviceSecret,
-    });
-    return new SyncedTablet(enrolled.deviceId, session.accessToken);
-  }
+/** Types an angle into the Visit's Amblyoscope panel and waits until it is saved here. */
+async function typeAngle(page: Page, label: string, text: string) {
+  const amblyoscope = page.locator('#section-amblyoscope');
+  const box = amblyoscope.getByRole('textbox', { name: `Type ${label}`, exact: true });
+  await box.fill(text);
+  await box.press('Enter');
+  await amblyoscope.getByText('Saved on this tablet').waitFor();
+}
 
-  stamp(): string {
-    this.counter += 1;
-    return `${String(Date.now()).padStart(15, '0')}-${String(this.counter).padStart(5, '0')}-${this.deviceId}`;
-  }
+/** The value the Visit's Amblyoscope summary shows for a recorded field. */
+const recorded = (page: Page, label: string) =>
+  page
+    .locator('#section-amblyoscope dl > div')
+    .filter({ has: page.locator('dt', { hasText: label }) })
+    .locator('dd');
 
-  /** Edits made while offline are queued here and pushed together when the network returns. */
-  readonly outbox: Record<string, unknown>[] = [];
-
-  edit(
-    collection: string,
-    recordId: string,
-    fields: Record<string, unknown>,
-    baseVersion: number,
-  ): void {
-    this.outbox.push({
-      changeId: randomUUID(),
-      collection,
-      recordId,
-      baseVersion,
-      hlc: this.stamp(),
-      fields,
-    });
-  }
-
-  async sync(): Promise<{ status: string; version?: number }[]> {
-    const changes = this.outbox.splice(0);
-    const answer = await api<{ results: { status: string; version?: number }[] }>(
-      'POST',
-      '/api/sync/push',
-      { protocol: 1, schemaVersion: 1, changes },
-      this.token,
-    );
-    return answer.results;
-  }
-
-  async pull(
-    recordId: string,
-  ): Promise<{ version: number; fields: Record<string, unknown>; conflicts: string[] }> {
-    let after = 0;
-    let found:
-      | { id: string; version: number; fields: Record<string, unknown>; conflicts: string[] }
-      | undefined;
-    for (;;) {
-      const page = await api<{
-        records: {
-          id: string;
-          version: number;
-          fields: Record<string, unknown>;
-          conflicts: string[];
-        }[];
-        cursor: number;
-        more: boolean;
-      }>('GET', `/api/sync/pull?after=${after}`, undefined, this.token);
-      found = page.records.find((r) => r.id === recordId) ?? found;
-      after = page.cursor;
-      if (!page.more) break;
+/**
+ * Opens the Visit on a tablet and waits until `shows` holds there, syncing and opening it again
+ * while the tablet has not pulled what it waits for (an offline tablet only opens it).
+ */
+async function openVisit(
+  page: Page,
+  visitId: string,
+  what = 'the visit',
+  shows: (amblyoscope: Locator) => Promise<boolean> = async () => true,
+) {
+  const deadline = Date.now() + 45_000;
+  for (;;) {
+    await page.goto(`${baseUrl()}/visit/${visitId}`);
+    const amblyoscope = page.locator('#section-amblyoscope');
+    const arrived = await amblyoscope
+      .getByText('Objective horizontal angle')
+      .first()
+      .waitFor({ timeout: 5_000 })
+      .then(() => true)
+      .catch(() => false);
+    if (arrived && (await shows(amblyoscope))) return;
+    if (Date.now() > deadline) {
+      await screenshot(page, 'review-tablet-waiting');
+      throw new Error(`Timed out waiting for ${what} on the tablet`);
     }
-    if (!found) throw new Error(`record ${recordId} did not reach tablet ${this.deviceId}`);
-    return found;
+    if (await page.evaluate(() => navigator.onLine)) await syncNow(page);
   }
 }
 
 describe('the Review desk resolves a dispute between two tablets', () => {
   let desk: BrowserContext;
-  let one: SyncedTablet;
-  let two: SyncedTablet;
-  const patientId = randomUUID();
-  const visitId = randomUUID();
-  const anglesId = randomUUID();
+  let reviewer: BrowserContext;
+  let tabletA: BrowserContext;
+  let tabletB: BrowserContext;
+  let one: Page;
+  let two: Page;
 
   beforeAll(async () => {
     await seedClinic(site, [admin, supervisor, ada, bram]);
-    const adminSession = await api<{ accessToken: string }>('POST', '/api/auth/login', {
-      email: admin.email,
-      password: admin.password,
-    });
-    one = await SyncedTablet.enrol(adminSession.accessToken, `Room 2 tablet ${run}`, ada);
-    two = await SyncedTablet.enrol(adminSession.accessToken, `Room 3 tablet ${run}`, bram);
     desk = await launchTablet();
-  });
+    reviewer = await launchTablet();
+    tabletA = await launchTablet();
+    tabletB = await launchTablet();
+    const adminPage = await desk.newPage();
+    await signInAdmin(adminPage, admin);
+    one = await enrolClinicianTablet(adminPage, tabletA, {
+      name: `Room 2 tablet ${run}`,
+      site,
+      clinician: ada,
+      pin: '482917',
+    });
+    two = await enrolClinicianTablet(adminPage, tabletB, {
+      name: `Room 3 tablet ${run}`,
+      site,
+      clinician: bram,
+      pin: '639205',
+    });
+    // The shell must be precached before a tablet goes offline.
+    await serviceWorkerReady(one);
+    await serviceWorkerReady(two);
+  }, 180_000);
   afterAll(async () => {
     await desk?.close();
+    await reviewer?.close();
+    await tabletA?.close();
+    await tabletB?.close();
   });
 
   it('two tablets disagree offline, sync, the supervisor chooses on the desk and both converge', async () => {
-    one.edit(
-      'patient',
-      patientId,
-      {
-        siteId,
-        givenName: 'Mira',
-        familyName: 'Tenby',
-        dateOfBirth: '2017-03-14',
-        clinicNumber: `HS-${run}`,
-        sex: 'female',
-      },
-      0,
-    );
-    one.edit(
-      'visit',
-      visitId,
-      { siteId, patientId, date: '2026-12-01', clinicianId: ada.id, status: 'draft' },
-      0,
-    );
-    one.edit(
-      'amblyoscopeAngles',
-      anglesId,
-      { siteId, visitId, patientId, objectiveHorizontalDeg: 12, subjectiveHorizontalDeg: 4 },
-      0,
-    );
-    expect((await one.sync()).map((r) => r.status)).toEqual(['applied', 'applied', 'applied']);
-    const base = (await two.pull(anglesId)).version;
+    // Tablet A registers the patient, starts the visit, records both angles and syncs.
+    await one.getByRole('button', { name: 'New patient' }).click();
+    await one.getByLabel('Given name', { exact: true }).fill(patient.given);
+    await one.getByLabel('Family name', { exact: true }).fill(patient.family);
+    await one.getByLabel('Date of birth', { exact: true }).fill(patient.dob);
+    await one.getByLabel('Clinic number', { exact: true }).fill(patient.number);
+    await one.getByRole('button', { name: 'Save patient' }).click();
+    await one.waitForURL(/\/chart\//);
+    await one.getByRole('button', { name: 'Start visit' }).click();
+    await one.waitForURL(/\/visit\/[0-9a-f-]{36}/);
+    const visitId = /\/visit\/([0-9a-f-]{36})/.exec(one.url())![1]!;
+    await typeAngle(one, 'Objective horizontal angle', 'eso 12');
+    await typeAngle(one, 'Subjective horizontal angle', 'eso 4');
+    await syncNow(one);
+
+    // Tablet B syncs and opens the same visit, with A's angle on it.
+    await openVisit(two, visitId);
+    expect(await recorded(two, 'Objective horizontal angle').textContent()).toBe('+12 °');
 
     // Both offline: each re-measures the objective angle from the same version.
-    one.edit('amblyoscopeAngles', anglesId, { objectiveHorizontalDeg: 14 }, base);
-    two.edit('amblyoscopeAngles', anglesId, { objectiveHorizontalDeg: -8 }, base);
-    expect((await one.sync()).map((r) => r.status)).toEqual(['applied']);
-    expect((await two.sync()).map((r) => r.status)).toEqual(['conflict']);
+    await tabletA.setOffline(true);
+    await tabletB.setOffline(true);
+    for (const page of [one, two])
+      await (await syncIndicator(page)).getByRole('status').getByText('Offline').waitFor();
+    await openVisit(one, visitId);
+    await typeAngle(one, 'Objective horizontal angle', 'eso 14');
+    await openVisit(two, visitId);
+    await typeAngle(two, 'Objective horizontal angle', 'exo 8');
+    for (const page of [one, two])
+      await (await syncIndicator(page)).getByRole('status').getByText('1 waiting').waitFor();
 
-    const page = await desk.newPage();
+    // Online again, A first: A's value is applied, B's arrives second and is disputed.
+    await tabletA.setOffline(false);
+    await syncNow(one);
+    await tabletB.setOffline(false);
+    await syncNow(two);
+    await openVisit(
+      two,
+      visitId,
+      'the dispute mark',
+      async (amblyoscope) =>
+        (await amblyoscope.locator('.flc-dispute', { hasText: 'Disputed' }).count()) > 0,
+    );
+
+    const page = await reviewer.newPage();
     await openAndSignIn(page, supervisor);
     await page.locator('ion-tab-button[tab="review"]').click();
     await page.getByRole('button', { name: 'Disputes (1)' }).waitFor({ timeout: 15_000 });
@@ -223,12 +204,22 @@ describe('the Review desk resolves a dispute between two tablets', () => {
     await page.getByText('No open disputes in your sites. Every tablet’s edits agree.').waitFor();
     await screenshot(page, 'review-desk-resolved');
 
+    // Both tablets sync and show the chosen value with no dispute mark.
     for (const tablet of [one, two]) {
-      const record = await tablet.pull(anglesId);
-      expect(record.fields.objectiveHorizontalDeg).toBe(14);
-      expect(record.conflicts).toEqual([]);
+      await syncNow(tablet);
+      await openVisit(
+        tablet,
+        visitId,
+        'the chosen value without a dispute mark',
+        async (amblyoscope) =>
+          (await amblyoscope.locator('.flc-dispute').count()) === 0 &&
+          (await recorded(tablet, 'Objective horizontal angle').textContent()) === '+14 °',
+      );
+      const amblyoscope = tablet.locator('#section-amblyoscope');
+      expect(await recorded(tablet, 'Objective horizontal angle').textContent()).toBe('+14 °');
+      expect(await amblyoscope.getByText('eso 14.0°', { exact: true }).count()).toBe(1);
+      expect(await amblyoscope.locator('.flc-dispute').count()).toBe(0);
+      expect(await tablet.getByText('Disputed').count()).toBe(0);
     }
-    const [a, b] = await Promise.all([one.pull(anglesId), two.pull(anglesId)]);
-    expect(a).toEqual(b);
-  });
+  }, 240_000);
 });
