@@ -25,3 +25,4 @@ export * from './addendum.schema';
 export * from './registry';
 export * from './sync-wire.schema';
 export * from './identity.schema';
+export * from './review-views';

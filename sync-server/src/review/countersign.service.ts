@@ -27,7 +27,7 @@ import {
   sitesByIds,
   visitsAwaitingCountersign,
 } from './review-store';
-import type { CountersignItemView, VisitReviewResult } from './review.views';
+import type { CountersignItemView, VisitReviewResult } from '@fuselight/shared';
 import { applyServerChange } from './server-change';
 
 const str = (value: JsonValue | undefined): string | null =>

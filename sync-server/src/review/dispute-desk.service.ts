@@ -29,7 +29,7 @@ import {
   type ConflictRow,
 } from './review-store';
 import type { DisputeQuery } from './review.schemas';
-import type { DisputeDetailView, DisputePageView, DisputeRowView } from './review.views';
+import type { DisputeDetailView, DisputePageView, DisputeRowView } from '@fuselight/shared';
 
 const SIGNED_STATUSES: ReadonlySet<string> = new Set(['signed', 'countersigned']);
 const str = (value: JsonValue | undefined): string | null =>

@@ -17,7 +17,7 @@ import {
   sitesByIds,
   type AddendumRow,
 } from './review-store';
-import type { HistoryEntryView, RecordHistoryView } from './review.views';
+import type { HistoryEntryView, RecordHistoryView } from '@fuselight/shared';
 
 @Injectable()
 export class RecordHistoryService {

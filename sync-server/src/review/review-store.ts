@@ -10,7 +10,7 @@ import {
   type StoredRecord,
   type StoredRecordRow,
 } from '../records/stored-record';
-import type { DeviceRef, PersonRef } from './review.views';
+import type { DeviceRef, PersonRef } from '@fuselight/shared';
 
 const RECORD_COLUMNS = `"id", "collection", "site_id", "version"::text as "version", "deleted", "fields", "stamps", "created_at"`;
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;

@@ -34,7 +34,7 @@ import type {
   DisputePageView,
   RecordHistoryView,
   VisitReviewResult,
-} from './review.views';
+} from '@fuselight/shared';
 
 class ReturnVisitBody extends zodDto(returnVisitSchema) {}
 class CountersignBody extends zodDto(countersignVisitSchema) {}

@@ -19,7 +19,7 @@ function textDispute(id: string, values: [string, string]): DisputeRow {
     collection: 'amblyoscopeSetup',
     field: 'extraLensesRight',
     provisional: values[1],
-    candidates: base.candidates.map((c, i) => ({ ...c, value: values[i] })),
+    candidates: base.candidates.map((c, i) => ({ ...c, value: values[i] ?? null })),
   };
 }
 

@@ -1,63 +1,39 @@
 // The Review desk's calls to the clinic server: the disputes list and resolve route of the
 // conflicts module, and the review module's countersign, return and record history routes.
 // The fetch and the access token are injected so component tests can stand in for the network.
-import type { CollectionName, ResolveConflictRequest } from '@fuselight/shared';
+import type { ResolveConflictRequest } from '@fuselight/shared';
+
+// The desk's answers are declared once, in @fuselight/shared (schemas/review-views.ts).
+import type {
+  PersonRef,
+  DeviceRef,
+  DisputeCandidateView as DisputeCandidate,
+  DisputeRowView as DisputeRow,
+  DisputePageView as DisputePage,
+  ContextRecordView as ContextRecord,
+  DisputeDetailView as DisputeDetail,
+  ReviewSummary,
+  CountersignItemView as CountersignItem,
+  HistoryKind,
+  HistoryEntryView as HistoryEntry,
+  RecordHistoryView as RecordHistory,
+} from '@fuselight/shared';
+export type {
+  PersonRef,
+  DeviceRef,
+  DisputeCandidate,
+  DisputeRow,
+  DisputePage,
+  ContextRecord,
+  DisputeDetail,
+  ReviewSummary,
+  CountersignItem,
+  HistoryKind,
+  HistoryEntry,
+  RecordHistory,
+};
 
 export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
-
-export interface PersonRef {
-  id: string;
-  name: string;
-}
-
-/** A tablet, or `server` for a change made at a desk. */
-export interface DeviceRef {
-  id: string;
-  label: string;
-}
-
-export interface DisputeCandidate {
-  value: unknown;
-  hlc: string;
-  version: number;
-  by: PersonRef;
-  device: DeviceRef;
-  /** The HLC's wall time as ISO 8601 (UTC); screens show it in the site's time zone. */
-  enteredAt: string | null;
-  /** True for the value the field holds until the dispute is resolved. */
-  provisional: boolean;
-}
-
-export interface DisputeRow {
-  id: string;
-  collection: CollectionName;
-  recordId: string;
-  field: string;
-  status: 'open' | 'resolved';
-  openedAt: string;
-  provisional: unknown;
-  candidates: DisputeCandidate[];
-  siteId: string | null;
-  siteName: string | null;
-  timeZone: string;
-  patientId: string | null;
-  patientName: string | null;
-  visitId: string | null;
-  visitDate: string | null;
-  /** The record belongs to a signed or countersigned visit: a resolution becomes an Addendum. */
-  signedVisit: boolean;
-}
-
-export interface DisputePage {
-  items: DisputeRow[];
-  total: number;
-  page: number;
-  pageSize: number;
-  /** Open disputes in the supervisor's sites, whatever the filter (for the tab's count). */
-  openTotal: number;
-  /** Values to offer in the filters. */
-  facets: { sites: { id: string; name: string }[]; sections: string[] };
-}
 
 export type DisputeSort = 'age' | 'patient' | 'section' | 'site';
 
@@ -71,74 +47,6 @@ export interface DisputeQuery {
   direction?: 'asc' | 'desc';
   page?: number;
   pageSize?: number;
-}
-
-export interface ContextRecord {
-  collection: CollectionName;
-  id: string;
-  version: number;
-  fields: Record<string, unknown>;
-}
-
-export interface DisputeDetail extends DisputeRow {
-  /** The disputed record as the server holds it now. */
-  record: ContextRecord;
-  /** Other records of the same visit and section (e.g. the rest of the visit's angles). */
-  related: ContextRecord[];
-}
-
-export interface ReviewSummary {
-  openDisputes: number;
-  awaitingCountersign: number;
-}
-
-export interface CountersignItem {
-  visitId: string;
-  version: number;
-  siteId: string;
-  siteName: string | null;
-  timeZone: string;
-  date: string;
-  reason: string | null;
-  patient: { id: string; name: string | null; dateOfBirth: string | null };
-  clinician: PersonRef;
-  signedBy: PersonRef | null;
-  signedAt: string | null;
-  returnedComment: string | null;
-  openDisputes: number;
-  sections: ContextRecord[];
-}
-
-export type HistoryKind =
-  | 'value'
-  | 'dispute-opened'
-  | 'dispute-resolved'
-  | 'addendum'
-  | 'signed'
-  | 'countersigned'
-  | 'returned';
-
-export interface HistoryEntry {
-  kind: HistoryKind;
-  at: string;
-  field: string | null;
-  value?: unknown;
-  previousValue?: unknown;
-  by: PersonRef | null;
-  device: DeviceRef | null;
-  hlc: string | null;
-  version: number | null;
-  note: string | null;
-  conflictId: string | null;
-}
-
-export interface RecordHistory {
-  collection: CollectionName;
-  recordId: string;
-  siteId: string | null;
-  timeZone: string;
-  current: ContextRecord & { deleted: boolean };
-  entries: HistoryEntry[];
 }
 
 export class ReviewApiError extends Error {

@@ -1,6 +1,7 @@
-// What the Review desk routes answer. The PWA's pwa/src/screens/review/review-api.ts mirrors
-// these shapes; they are not in @fuselight/shared because only the desk reads them.
-import type { CollectionName, JsonValue } from '@fuselight/shared';
+// What the Review desk routes answer (sync-server/src/review), read by the PWA's Review desk
+// (pwa/src/screens/review/review-api.ts). One declaration for both ends.
+import type { JsonValue } from '../sync/merge';
+import type { CollectionName } from './collection-names.schema';
 
 export interface PersonRef {
   id: string;
@@ -118,4 +119,9 @@ export interface VisitReviewResult {
   version: number;
   status: 'countersigned' | 'draft';
   fields: Record<string, JsonValue>;
+}
+
+export interface ReviewSummary {
+  openDisputes: number;
+  awaitingCountersign: number;
 }
