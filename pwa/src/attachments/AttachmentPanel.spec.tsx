@@ -6,10 +6,10 @@ import { SessionProvider } from '../auth/SessionProvider';
 import { SessionContext } from '../auth/session-context';
 import { SessionStore } from '../auth/session-store';
 import {
+  createPatientVisit,
   ORTHOPTIST,
   TEST_DEVICE_ID,
   TEST_SITE_ID,
-  editContext,
   freshRepositories,
   renderScreen,
 } from '../components/charting/test-support';
@@ -55,28 +55,7 @@ function png(size: number): Uint8Array<ArrayBuffer> {
 async function aVisit() {
   const repos = freshRepositories();
   opened.push(repos);
-  const patientId = await repos.records.create(
-    'patient',
-    {
-      siteId: TEST_SITE_ID,
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    },
-    editContext(),
-  );
-  const visitId = await repos.records.create(
-    'visit',
-    {
-      siteId: TEST_SITE_ID,
-      patientId,
-      date: '2026-11-30',
-      clinicianId: ORTHOPTIST.id,
-      status: 'draft',
-    },
-    editContext(),
-  );
+  const { patientId, visitId } = await createPatientVisit(repos);
   return { repos, patientId, visitId };
 }
 

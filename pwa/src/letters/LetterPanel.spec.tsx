@@ -3,6 +3,7 @@ import userEvent from '@testing-library/user-event';
 import { CLINICAL_CAUTION } from '@fuselight/shared';
 import { afterEach, describe, expect, it } from 'vitest';
 import {
+  createPatientVisit,
   ORTHOPTIST,
   TEST_SITE_ID,
   editContext,
@@ -26,29 +27,10 @@ const CLINIC = { name: 'Brackenfold Orthoptic Clinic', address: '4 Tern Row\nBra
 async function aVisit() {
   const repos = freshRepositories();
   opened.push(repos);
-  const patientId = await repos.records.create(
-    'patient',
-    {
-      siteId: TEST_SITE_ID,
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-      referrer: { name: 'Dr Imogen Fairweather', email: 'fairweather@gp.example.test' },
-    },
-    editContext(),
-  );
-  const visitId = await repos.records.create(
-    'visit',
-    {
-      siteId: TEST_SITE_ID,
-      patientId,
-      date: '2026-11-30',
-      clinicianId: ORTHOPTIST.id,
-      status: 'signed',
-    },
-    editContext(),
-  );
+  const { patientId, visitId } = await createPatientVisit(repos, {
+    patient: { referrer: { name: 'Dr Imogen Fairweather', email: 'fairweather@gp.example.test' } },
+    visit: { status: 'signed' },
+  });
   return { repos, patientId, visitId };
 }
 

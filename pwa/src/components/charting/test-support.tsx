@@ -39,6 +39,38 @@ export function editContext(user: SessionUser = ORTHOPTIST, nowMs = Date.now()) 
   return { authorId: user.id, deviceId: TEST_DEVICE_ID, nowMs };
 }
 
+/** An invented patient with a visit at the test site, written through the real repository. */
+export async function createPatientVisit(
+  repositories: ReturnType<typeof freshRepositories>,
+  overrides: { patient?: Record<string, unknown>; visit?: Record<string, unknown> } = {},
+) {
+  const patientId = await repositories.records.create(
+    'patient',
+    {
+      siteId: TEST_SITE_ID,
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+      ...overrides.patient,
+    },
+    editContext(),
+  );
+  const visitId = await repositories.records.create(
+    'visit',
+    {
+      siteId: TEST_SITE_ID,
+      patientId,
+      date: '2026-11-30',
+      clinicianId: ORTHOPTIST.id,
+      status: 'draft',
+      ...overrides.visit,
+    },
+    editContext(),
+  );
+  return { patientId, visitId };
+}
+
 function WhereAmI() {
   const location = useLocation();
   return <output data-testid="location">{location.pathname}</output>;

@@ -8,6 +8,7 @@ import { SessionContext } from '../../auth/session-context';
 import { SessionStore } from '../../auth/session-store';
 import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
 import {
+  createPatientVisit,
   ORTHOPTIST,
   SUPERVISOR,
   TEST_DEVICE_ID,
@@ -44,29 +45,7 @@ async function authDbWith(sites: readonly Omit<KnownSite, 'fetchedAt'>[] = []): 
 async function setupVisit(overrides: Record<string, unknown> = {}) {
   const repos = freshRepositories();
   opened.push(repos);
-  const patientId = await repos.records.create(
-    'patient',
-    {
-      siteId: TEST_SITE_ID,
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    },
-    editContext(),
-  );
-  const visitId = await repos.records.create(
-    'visit',
-    {
-      siteId: TEST_SITE_ID,
-      patientId,
-      date: '2026-11-30',
-      clinicianId: ORTHOPTIST.id,
-      status: 'draft',
-      ...overrides,
-    },
-    editContext(),
-  );
+  const { patientId, visitId } = await createPatientVisit(repos, { visit: overrides });
   return { repos, patientId, visitId, charting: new ChartingRepository(repos.records) };
 }
 
