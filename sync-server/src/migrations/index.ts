@@ -8,6 +8,7 @@ import { Migration20261201040000ReviewDesk } from './Migration20261201040000Revi
 import { Migration20261201050000LettersMail } from './Migration20261201050000LettersMail';
 import { Migration20261201050100FinalLetterGuard } from './Migration20261201050100FinalLetterGuard';
 import { Migration20261201060000AddendumRecords } from './Migration20261201060000AddendumRecords';
+import { Migration20261202000000SupersededHistory } from './Migration20261202000000SupersededHistory';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -20,4 +21,8 @@ export const migrationsList: MigrationObject[] = [
     class: Migration20261201050100FinalLetterGuard,
   },
   { name: 'Migration20261201060000AddendumRecords', class: Migration20261201060000AddendumRecords },
+  {
+    name: 'Migration20261202000000SupersededHistory',
+    class: Migration20261202000000SupersededHistory,
+  },
 ];
