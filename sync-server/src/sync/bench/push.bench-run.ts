@@ -1,6 +1,6 @@
 // Push throughput (field changes per second) for batches of 500 changes, one and four tablets,
-// beside a plain batched INSERT … ON CONFLICT of the same rows into a bare table, and where the
-// push time goes. Figures are printed, not asserted.
+// beside a plain batched INSERT … ON CONFLICT of the same rows (the records as the push stored
+// them, fields and stamps) into a bare table, and where the push time goes. Figures are printed, not asserted.
 import pg from 'pg';
 import { afterAll, beforeAll, it } from 'vitest';
 import type { TestApp } from '../../testing/test-app';
@@ -50,31 +50,45 @@ async function pushRun(tablets: Tablet[]): Promise<number> {
   return (tablets.length * BATCHES_PER_TABLET * BATCH * FIELDS_PER_CHANGE) / seconds;
 }
 
+/**
+ * The raw limit: the same rows the push stored (each record's fields and per-field stamps, read
+ * back from sync_record, under fresh ids) upserted in batches of the same size into a bare table
+ * with only a primary key, by `clients` connections at once.
+ */
 async function rawRun(clients: number): Promise<number> {
   const pool = new pg.Pool({ connectionString: t.db.url, max: clients });
   await pool.query(
-    `create table if not exists "bench_raw" ("id" uuid primary key, "site_id" uuid, "version" bigint, "fields" jsonb, "stamps" jsonb)`,
+    `create table if not exists "bench_raw" ("id" uuid primary key, "collection" text, "site_id" uuid, "version" bigint, "deleted" boolean, "fields" jsonb, "stamps" jsonb)`,
   );
-  const batches = Array.from({ length: clients }, () =>
-    Array.from({ length: BATCHES_PER_TABLET }, () =>
-      JSON.stringify(
-        Array.from({ length: BATCH }, (_, i) => ({
-          id: newId(),
-          site_id: SITE_A,
-          version: i,
-          fields: patientFields(SITE_A, { clinicNumber: `B-${i}` }),
-          stamps: {},
-        })),
-      ),
-    ),
+  const stored = await pool.query<{
+    collection: string;
+    site_id: string;
+    version: string;
+    deleted: boolean;
+    fields: unknown;
+    stamps: unknown;
+  }>(
+    `select "collection", "site_id", "version", "deleted", "fields", "stamps" from "sync_record"
+      where "collection" = 'patient' order by "version" desc limit $1`,
+    [clients * BATCHES_PER_TABLET * BATCH],
+  );
+  if (stored.rows.length < clients * BATCHES_PER_TABLET * BATCH)
+    throw new Error('not enough pushed rows to replay');
+  const batches = Array.from({ length: clients }, (_, c) =>
+    Array.from({ length: BATCHES_PER_TABLET }, (_, b) => {
+      const from = (c * BATCHES_PER_TABLET + b) * BATCH;
+      return JSON.stringify(
+        stored.rows.slice(from, from + BATCH).map((row) => ({ ...row, id: newId() })),
+      );
+    }),
   );
   const started = performance.now();
   await Promise.all(
     batches.map(async (mine) => {
       for (const rows of mine) {
         await pool.query(
-          `insert into "bench_raw" select * from jsonb_to_recordset($1::jsonb) as x("id" uuid, "site_id" uuid, "version" bigint, "fields" jsonb, "stamps" jsonb)
-           on conflict ("id") do update set "fields" = excluded."fields", "version" = excluded."version"`,
+          `insert into "bench_raw" select * from jsonb_to_recordset($1::jsonb) as x("id" uuid, "collection" text, "site_id" uuid, "version" bigint, "deleted" boolean, "fields" jsonb, "stamps" jsonb)
+           on conflict ("id") do update set "fields" = excluded."fields", "stamps" = excluded."stamps", "version" = excluded."version"`,
           [rows],
         );
       }
