@@ -113,11 +113,20 @@ export const fieldMeta = Object.fromEntries(
   COLLECTIONS.map((collection) => [collection, buildFieldMeta(collection)]),
 ) as { readonly [C in CollectionName]: Readonly<Record<FieldName<C>, FieldMeta>> };
 
-/** Field names a full record of the collection must carry. */
+const requiredByCollection = new Map<CollectionName, readonly string[]>(
+  COLLECTIONS.map((collection) => [
+    collection,
+    Object.freeze(
+      Object.entries(fieldMeta[collection] as Record<string, FieldMeta>)
+        .filter(([, meta]) => meta.required)
+        .map(([field]) => field),
+    ),
+  ]),
+);
+
+/** Field names a full record of the collection must carry (worked out once per collection). */
 export function requiredFields(collection: CollectionName): readonly string[] {
-  return Object.entries(fieldMeta[collection] as Record<string, FieldMeta>)
-    .filter(([, meta]) => meta.required)
-    .map(([field]) => field);
+  return requiredByCollection.get(collection) ?? [];
 }
 
 export type SectionDefaults<C extends SectionCollectionName> = Omit<

@@ -29,17 +29,34 @@ export function scopeOfKind(kind: string): AuditScope {
   return ACCOUNT_KIND_PREFIXES.some((prefix) => kind.startsWith(prefix)) ? 'account' : 'clinical';
 }
 
-/** Drops any key that looks like it could carry a credential, at any depth. */
-export function withoutSecrets(value: unknown): unknown {
-  if (Array.isArray(value)) return value.map(withoutSecrets);
+function hasSecretKey(value: unknown): boolean {
+  if (Array.isArray(value)) return value.some(hasSecretKey);
+  if (value && typeof value === 'object' && !(value instanceof Date)) {
+    for (const [key, inner] of Object.entries(value)) {
+      if (SECRET_KEY.test(key) || hasSecretKey(inner)) return true;
+    }
+  }
+  return false;
+}
+
+function stripSecrets(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(stripSecrets);
   if (value && typeof value === 'object' && !(value instanceof Date)) {
     return Object.fromEntries(
       Object.entries(value)
         .filter(([key]) => !SECRET_KEY.test(key))
-        .map(([key, inner]) => [key, withoutSecrets(inner)]),
+        .map(([key, inner]) => [key, stripSecrets(inner)]),
     );
   }
   return value;
+}
+
+/**
+ * Drops any key that looks like it could carry a credential, at any depth. A detail without one
+ * (every sync change's) is returned as it is: copying it cost a push more than inserting it.
+ */
+export function withoutSecrets(value: unknown): unknown {
+  return hasSecretKey(value) ? stripSecrets(value) : value;
 }
 
 @Injectable()
