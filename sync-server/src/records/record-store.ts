@@ -61,7 +61,11 @@ export interface RecordWrite {
   stamps: Record<string, StoredStamp>;
 }
 
-/** Inserts or replaces the records' rows (their final state after the batch). */
+/**
+ * Inserts or replaces the records' rows (their final state after the batch) in one statement, in
+ * id order: two pushes creating the same new records (a
+ * resent request) then wait on each other's first row instead of deadlocking.
+ */
 export async function upsertRecords(
   em: EntityManager,
   records: readonly RecordWrite[],
@@ -73,6 +77,7 @@ export async function upsertRecords(
     `insert into "sync_record" ("id", "collection", "site_id", "version", "deleted", "fields", "stamps", "created_at", "updated_at")
      select x."id", x."collection", x."site_id", x."version", x."deleted", x."fields", x."stamps", ?::timestamptz, ?::timestamptz
        from jsonb_to_recordset(?::jsonb) as x("id" uuid, "collection" text, "site_id" uuid, "version" bigint, "deleted" boolean, "fields" jsonb, "stamps" jsonb)
+      order by x."id"
      on conflict ("id") do update set
        "site_id" = excluded."site_id", "version" = excluded."version", "deleted" = excluded."deleted",
        "fields" = excluded."fields", "stamps" = excluded."stamps", "updated_at" = excluded."updated_at"`,

@@ -1,29 +1,13 @@
 // The idempotency log: every change id the server has answered, with its first result.
-// A change id is claimed (inserted) before its change is planned; a second request carrying the
-// same id waits on that row until the first commits and then answers with the stored result.
+// A push first reads the results already committed for its change ids (those changes are
+// replays), plans and writes the rest, and then logs their results in one insert that skips ids
+// already present. An id it could not log was answered by a concurrent push that committed (or
+// is committing) meanwhile: the insert waits on that push's row and then skips it, and the
+// caller rolls its writes back and starts again, finding that answer among the committed ones.
+// So a change is applied and answered once, however often and concurrently it is sent.
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { PushResult } from '@fuselight/shared';
 import { jsonParam, sqlRows } from '../records/sql';
-
-/** Claims the change ids (sorted, so two requests never wait on each other). Returns the new ones. */
-export async function claimChangeIds(
-  em: EntityManager,
-  changeIds: readonly string[],
-  claimant: { userId: string; deviceId: string | null },
-  at: Date,
-): Promise<Set<string>> {
-  if (changeIds.length === 0) return new Set();
-  const rows = await sqlRows<{ change_id: string }>(
-    em,
-    `insert into "sync_change" ("change_id", "user_id", "device_id", "status", "result", "received_at")
-     select x.id, ?::uuid, ?, 'pending', '{}'::jsonb, ?::timestamptz
-       from (select jsonb_array_elements_text(?::jsonb)::uuid as id) x order by x.id
-     on conflict ("change_id") do nothing
-     returning "change_id"`,
-    [claimant.userId, claimant.deviceId, at.toISOString(), jsonParam([...changeIds].sort())],
-  );
-  return new Set(rows.map((row) => row.change_id));
-}
 
 export async function firstResults(
   em: EntityManager,
@@ -46,17 +30,29 @@ export interface ChangeLogEntry {
   recordId: string | null;
 }
 
+/**
+ * Logs first results (ids sorted, so two pushes never wait on each other in opposite orders).
+ * Returns the ids it logged; an id missing from the answer was already logged by another push.
+ */
 export async function storeResults(
   em: EntityManager,
   entries: readonly ChangeLogEntry[],
-): Promise<void> {
-  if (entries.length === 0) return;
-  await sqlRows(
+  claimant: { userId: string; deviceId: string | null },
+  at: Date,
+): Promise<Set<string>> {
+  if (entries.length === 0) return new Set();
+  const rows = await sqlRows<{ change_id: string }>(
     em,
-    `update "sync_change" c set "status" = x."status", "version" = x."version", "record_id" = x."record_id", "result" = x."result"
+    `insert into "sync_change" ("change_id", "user_id", "device_id", "status", "version", "record_id", "result", "received_at")
+     select x."change_id", ?::uuid, ?, x."status", x."version", x."record_id", x."result", ?::timestamptz
        from jsonb_to_recordset(?::jsonb) as x("change_id" uuid, "status" text, "version" bigint, "record_id" uuid, "result" jsonb)
-      where c."change_id" = x."change_id"`,
+      order by x."change_id"
+     on conflict ("change_id") do nothing
+     returning "change_id"`,
     [
+      claimant.userId,
+      claimant.deviceId,
+      at.toISOString(),
       jsonParam(
         entries.map(({ result, recordId }) => ({
           change_id: result.changeId,
@@ -68,4 +64,5 @@ export async function storeResults(
       ),
     ],
   );
+  return new Set(rows.map((row) => row.change_id));
 }

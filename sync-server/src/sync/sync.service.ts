@@ -1,8 +1,9 @@
 // Push and pull of sync protocol 1 (sync-protocol.md).
 //
-// Push: one transaction per request. Change ids are claimed first (idempotency), the records are
-// locked with SELECT … FOR UPDATE, every change is planned in request order by the shared merge
-// rule, and the plans are written in a few batched statements inside a savepoint. If PostgreSQL
+// Push: one transaction per request. Changes already answered are replays (idempotency, see
+// change-log.ts), the records are locked with SELECT … FOR UPDATE, every other change is planned
+// in request order by the shared merge rule, and the plans are written in a few batched
+// statements inside a savepoint, then their results logged. If PostgreSQL
 // refuses a value (a data error), the batch is rolled back to that savepoint and the changes are
 // written again one by one, each in its own savepoint, so only the offending change is rejected.
 // Pull: one REPEATABLE READ read-only snapshot, bounded by the transaction-id watermark
@@ -47,7 +48,7 @@ import {
 } from '../records/record-version';
 import { jsonParam, sqlRows } from '../records/sql';
 import { recordFromRow, wireStamps, type StoredRecordRow } from '../records/stored-record';
-import { claimChangeIds, firstResults, storeResults, type ChangeLogEntry } from './change-log';
+import { firstResults, storeResults, type ChangeLogEntry } from './change-log';
 import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
 
 /** Time spent in each step of the last push, for the benchmark's breakdown. */
@@ -112,71 +113,68 @@ export class SyncService {
     const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
     const baseVersion = VersionAllocator.fromRow(begin).base;
     const changeIds = [...new Set(changes.map((c) => c.changeId as string))];
-    const claimed = await claimChangeIds(
-      em,
-      changeIds,
-      { userId: user.userId, deviceId: user.deviceId },
-      now,
-    );
-    const earlier = await firstResults(
-      em,
-      changeIds.filter((id) => !claimed.has(id)),
-    );
-    lap('claimMs');
+    const claimant = { userId: user.userId, deviceId: user.deviceId };
 
-    // The first occurrence of each newly claimed id is planned; everything else is a replay.
-    const toPlan: { index: number; raw: Record<string, unknown> }[] = [];
-    const planned = new Set<string>();
-    changes.forEach((raw, index) => {
-      const id = raw.changeId as string;
-      if (claimed.has(id) && !planned.has(id)) {
-        planned.add(id);
-        toPlan.push({ index, raw });
+    // Each attempt plans against what is committed now; an attempt whose results cannot all be
+    // logged (a concurrent push answered one of its changes meanwhile) is undone and run again,
+    // and then finds that answer among the earlier ones (change-log.ts).
+    for (let attempt = 1; ; attempt += 1) {
+      const earlier = await firstResults(em, changeIds);
+      lap('claimMs');
+
+      // The first occurrence of each id not answered before is planned; the rest are replays.
+      const toPlan: { index: number; raw: Record<string, unknown> }[] = [];
+      const planned = new Set<string>();
+      changes.forEach((raw, index) => {
+        const id = raw.changeId as string;
+        if (!earlier.has(id) && !planned.has(id)) {
+          planned.add(id);
+          toPlan.push({ index, raw });
+        }
+      });
+      const recordIds = PushPlanner.recordIdsOf(toPlan.map((c) => c.raw));
+      const records = await lockRecords(em, recordIds);
+      const open = await openConflictsOf(em, [...records.keys()]);
+      lap('lockMs');
+
+      const makePlanner = () =>
+        new PushPlanner(user, now, new VersionAllocator(baseVersion), this.ids, records, open);
+      const answered = new Map<string, ChangeLogEntry>();
+      const plans = planAll(makePlanner(), toPlan, answered);
+      lap('planMs');
+
+      await sqlRows(em, 'savepoint "push_attempt"');
+      await sqlRows(em, 'savepoint "push_batch"');
+      try {
+        await this.writePlans(em, plans, now, user);
+        await sqlRows(em, 'release savepoint "push_batch"');
+      } catch (error) {
+        if (!isDataError(error)) throw error;
+        this.logger.warn(
+          `push batch refused by the database (${describeDataError(error)}); writing change by change`,
+        );
+        await sqlRows(em, 'rollback to savepoint "push_batch"');
+        answered.clear();
+        await this.writeOneByOne(em, makePlanner(), toPlan, answered, now, user);
       }
-    });
-    const recordIds = PushPlanner.recordIdsOf(toPlan.map((c) => c.raw));
-    const records = await lockRecords(em, recordIds);
-    const open = await openConflictsOf(em, [...records.keys()]);
-    lap('lockMs');
+      lap('writeMs');
 
-    const makePlanner = () =>
-      new PushPlanner(user, now, new VersionAllocator(baseVersion), this.ids, records, open);
-    const answered = new Map<string, ChangeLogEntry>();
-    const plans = planAll(makePlanner(), toPlan, answered);
-    lap('planMs');
-
-    await sqlRows(em, 'savepoint "push_batch"');
-    try {
-      await this.writePlans(em, plans, now, user);
-      await sqlRows(em, 'release savepoint "push_batch"');
-    } catch (error) {
-      if (!isDataError(error)) throw error;
-      this.logger.warn(
-        `push batch refused by the database (${describeDataError(error)}); writing change by change`,
-      );
-      await sqlRows(em, 'rollback to savepoint "push_batch"');
-      answered.clear();
-      await this.writeOneByOne(em, makePlanner(), toPlan, answered, now, user);
+      const logged = await storeResults(em, [...answered.values()], claimant, now);
+      lap('logMs');
+      if (logged.size === answered.size) {
+        await sqlRows(em, 'release savepoint "push_attempt"');
+        return resultsInRequestOrder(changes, earlier, answered);
+      }
+      await sqlRows(em, 'rollback to savepoint "push_attempt"');
+      if (attempt >= 3) {
+        // A transient clash: a 5xx, which the tablet retries later with its Outbox intact.
+        throw new HttpException(
+          'These changes are being answered by another push at the same moment; try again shortly.',
+          HttpStatus.SERVICE_UNAVAILABLE,
+        );
+      }
     }
-    lap('writeMs');
-
-    await storeResults(em, [...answered.values()]);
-    lap('logMs');
-
-    const seen = new Set<string>();
-    return changes.map((raw): PushResult => {
-      const id = raw.changeId as string;
-      const first = earlier.get(id);
-      if (first) return { ...first, replayed: true };
-      const fresh = answered.get(id);
-      if (!fresh) throw new Error(`change ${id} has no result`);
-      // A later duplicate in the same request is a replay of the first occurrence.
-      if (seen.has(id)) return { ...fresh.result, replayed: true };
-      seen.add(id);
-      return fresh.result;
-    });
   }
-
   private async writePlans(
     em: EntityManager,
     plans: readonly ChangePlan[],
@@ -304,6 +302,26 @@ export class SyncService {
       { isolationLevel: IsolationLevel.REPEATABLE_READ, readOnly: true },
     );
   }
+}
+
+/** One result per change of the request, in its order; a repeated id is a replay of its first. */
+function resultsInRequestOrder(
+  changes: readonly Record<string, unknown>[],
+  earlier: ReadonlyMap<string, PushResult>,
+  answered: ReadonlyMap<string, ChangeLogEntry>,
+): PushResult[] {
+  const seen = new Set<string>();
+  return changes.map((raw): PushResult => {
+    const id = raw.changeId as string;
+    const first = earlier.get(id);
+    if (first) return { ...first, replayed: true };
+    const fresh = answered.get(id);
+    if (!fresh) throw new Error(`change ${id} has no result`);
+    // A later duplicate in the same request is a replay of the first occurrence.
+    if (seen.has(id)) return { ...fresh.result, replayed: true };
+    seen.add(id);
+    return fresh.result;
+  });
 }
 
 function planAll(

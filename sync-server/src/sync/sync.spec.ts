@@ -366,6 +366,34 @@ describe('POST /api/sync/push: replays', () => {
     expect(results.filter((r) => r?.replayed === true)).toHaveLength(1);
     expect(results.map((r) => r?.status)).toEqual(['applied', 'applied']);
   });
+  it('applies new records sent by three requests at once, in different orders, exactly once', async () => {
+    const creates = Array.from({ length: 40 }, (_, i) =>
+      tabA.change({ recordId: newId(), fields: patientFields(SITE_A, { clinicNumber: `R-${i}` }) }),
+    );
+    const orders = [
+      creates,
+      [...creates].reverse(),
+      [...creates.slice(20), ...creates.slice(0, 20)],
+    ];
+    const answers = await Promise.all(orders.map((body) => tabA.pushOk(body)));
+    for (const change of creates) {
+      const results = answers.map((a) => a.results.find((r) => r.changeId === change.changeId));
+      expect(results.filter((r) => r?.replayed !== true)).toHaveLength(1);
+      const first = results.find((r) => r?.replayed !== true);
+      if (first?.status !== 'applied') throw new Error(`${change.changeId} was not applied`);
+      for (const r of results)
+        expect(r).toMatchObject({ status: 'applied', version: first.version });
+      expect((await recordRow(change.recordId as string))?.version).toBe(String(first.version));
+    }
+    const [{ audited }] = (await t
+      .em()
+      .getConnection()
+      .execute(
+        `select count(*)::int as audited from "audit_event" where "subject_id" in (select jsonb_array_elements_text(?::jsonb))`,
+        [JSON.stringify(creates.map((c) => c.recordId))],
+      )) as [{ audited: number }];
+    expect(audited).toBe(creates.length);
+  });
 });
 
 describe('POST /api/sync/push: refused requests', () => {
