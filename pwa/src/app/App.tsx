@@ -10,7 +10,7 @@ import {
   IonTabs,
 } from '@ionic/react';
 import { IonReactRouter } from '@ionic/react-router';
-import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
+import { QueryClient, QueryClientProvider, notifyManager } from '@tanstack/react-query';
 import {
   businessOutline,
   calendarOutline,
@@ -49,6 +49,12 @@ import {
   UnlockScreen,
   VisitScreen,
 } from './routes';
+
+// Query results reach React in the same task as the IndexedDB reply that produced them. The
+// default, a zero timeout, queues them behind whatever the browser has due, which can put a
+// frame's style, layout and paint between a search's read and its rows. React still batches
+// the updates of one task into one render.
+notifyManager.setScheduler(queueMicrotask);
 
 const queryClient = new QueryClient({
   defaultOptions: { queries: { networkMode: 'always', staleTime: 5_000, retry: 1 } },

@@ -264,16 +264,18 @@ export class RecordsRepository {
 
   /**
    * Ids of patients with a term starting with `prefix`, each once, in index order; `wanted`
-   * (when given) bounds the read: a patient has only a few terms, so four times as many index
-   * entries almost always hold that many patients, and the whole range is read when not.
+   * (when given) bounds the read: first exactly that many index entries, which are that many
+   * patients unless one has two matching terms ("ada adair"); then four times as many, since a
+   * patient has only a few terms; and the whole range only when even that was short.
    */
   private async patientIdsByTermPrefix(prefix: string, wanted: number | null): Promise<string[]> {
     const range = () => this.db.patientSearch.where('terms').startsWith(prefix);
     if (wanted !== null) {
-      const bound = wanted * 4;
-      const keys = await range().limit(bound).primaryKeys();
-      const ids = [...new Set(keys)];
-      if (ids.length >= wanted || keys.length < bound) return ids;
+      for (const bound of [wanted, wanted * 4]) {
+        const keys = await range().limit(bound).primaryKeys();
+        const ids = [...new Set(keys)];
+        if (ids.length >= wanted || keys.length < bound) return ids;
+      }
     }
     return [...new Set(await range().primaryKeys())];
   }

@@ -2,12 +2,12 @@
 // data layer's queryKeys root); any committed write to a collection the charting queries read
 // refreshes them, because a visit's bundle spans many collections.
 import type { SectionCollectionName } from '@fuselight/shared';
-import { keepPreviousData, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useEffect, useMemo } from 'react';
+import { keepPreviousData, queryOptions, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useCallback, useEffect, useMemo } from 'react';
 import { useRepositories } from '../data-context';
 import { subscribeDataChanges } from '../data-events';
 import { queryKeys } from '../query-keys';
-import type { RecordsRepository } from '../records-repository';
+import type { LocalRecord, RecordsRepository } from '../records-repository';
 import { ChartingRepository } from './charting-repository';
 
 export const chartingKeys = {
@@ -60,17 +60,47 @@ export function useTodaysVisits(siteId: string | null, date: string) {
   });
 }
 
+/** The Today search's query, shared by the hook and by the keystroke that starts it early. */
+function patientLookupOptions(charting: ChartingRepository, trimmed: string) {
+  return queryOptions({
+    queryKey: chartingKeys.search(trimmed),
+    queryFn: () => charting.searchPatients(trimmed),
+    networkMode: 'always',
+  });
+}
+
+const NO_PATIENTS: LocalRecord<'patient'>[] = [];
+
 export function usePatientLookup(query: string) {
   const charting = useCharting();
   useChartingInvalidation();
   const trimmed = query.trim();
   return useQuery({
-    queryKey: chartingKeys.search(trimmed),
-    queryFn: () => charting.searchPatients(trimmed),
+    ...patientLookupOptions(charting, trimmed),
     enabled: trimmed.length > 0,
+    // An emptied box is a search with no results, known at once. While the next query runs,
+    // the rows kept on screen are then the previous query's only while it is being typed or
+    // corrected, never those of a query the person cleared away.
+    initialData: trimmed === '' ? NO_PATIENTS : undefined,
     placeholderData: keepPreviousData,
-    networkMode: 'always',
   });
+}
+
+/**
+ * Starts a typed query's IndexedDB read from the keystroke itself, before React renders it, so
+ * the read runs while the box re-renders instead of after (the query hook then finds it in
+ * flight and waits for it rather than reading again).
+ */
+export function usePatientLookupPrefetch(): (query: string) => void {
+  const charting = useCharting();
+  const queryClient = useQueryClient();
+  return useCallback(
+    (query: string) => {
+      const trimmed = query.trim();
+      if (trimmed !== '') void queryClient.prefetchQuery(patientLookupOptions(charting, trimmed));
+    },
+    [charting, queryClient],
+  );
 }
 
 export function usePatient(patientId: string | undefined) {

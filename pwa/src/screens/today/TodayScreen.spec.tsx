@@ -114,6 +114,78 @@ describe('the Today screen', () => {
     );
   });
 
+  it('never brings back the rows of a query the person cleared while the next one runs', async () => {
+    const repos = setup();
+    await addPatient(repos, {
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+    });
+    await addPatient(repos, {
+      givenName: 'Oswin',
+      familyName: 'Belgrave',
+      dateOfBirth: '1979-11-30',
+      clinicNumber: 'QX-9921',
+    });
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    const box = screen.getByLabelText('Name, clinic number or date of birth');
+    await user.type(box, 'wren');
+    await screen.findByText('Wren Altamira');
+    await user.clear(box);
+    expect(screen.queryByRole('list', { name: 'Search results' })).toBeNull();
+
+    // Every DOM change from here on is checked for the cleared query's row.
+    let staleRowShown = false;
+    const observer = new MutationObserver(() => {
+      if (document.body.textContent?.includes('Wren Altamira')) staleRowShown = true;
+    });
+    observer.observe(document.body, { childList: true, subtree: true, characterData: true });
+    await user.type(box, 'oswin');
+    await screen.findByText('Oswin Belgrave');
+    observer.disconnect();
+    expect(staleRowShown).toBe(false);
+    expect(
+      within(screen.getByRole('region', { name: 'Find a patient' })).getByRole('status')
+        .textContent,
+    ).toBe('1 patient found');
+  });
+
+  it('opens the Chart from a result inside the app, and leaves a modified click to the browser', async () => {
+    const repos = setup();
+    const patientId = await addPatient(repos, {
+      givenName: 'Wren',
+      familyName: 'Altamira',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'QX-4410',
+    });
+    const user = userEvent.setup();
+    renderScreen(<TodayScreen />, { repositories: repos });
+    await user.type(screen.getByLabelText('Name, clinic number or date of birth'), 'wren');
+    const chart = await screen.findByRole('link', { name: 'Chart: Wren Altamira' });
+    expect(chart.getAttribute('href')).toBe(`/chart/${patientId}`);
+
+    // A click with Ctrl held is the browser's (a new tab): the app does not navigate.
+    let browserDefault = true;
+    const keepDefault = (event: Event) => {
+      browserDefault = !event.defaultPrevented;
+      event.preventDefault();
+    };
+    document.addEventListener('click', keepDefault);
+    await user.keyboard('{Control>}');
+    await user.click(chart);
+    await user.keyboard('{/Control}');
+    document.removeEventListener('click', keepDefault);
+    expect(browserDefault).toBe(true);
+    expect(screen.getByTestId('location').textContent).toBe('/');
+
+    await user.click(chart);
+    await waitFor(() =>
+      expect(screen.getByTestId('location').textContent).toBe(`/chart/${patientId}`),
+    );
+  });
+
   it('starts a draft visit for a found patient and lists it as today’s, ready to resume', async () => {
     const repos = setup();
     const patientId = await addPatient(repos, {
