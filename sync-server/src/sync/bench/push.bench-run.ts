@@ -127,6 +127,8 @@ async function rawRun(clients: number): Promise<number> {
 }
 
 const STEPS: Record<keyof SyncService['timings'], string> = {
+  envelopeMs: 'check the envelope (zod shape)',
+  beginMs: 'open the transaction',
   claimMs: 'read earlier answers (replays)',
   lockMs: 'lock records, read open disputes',
   planMs: 'validate and merge (JS)',
