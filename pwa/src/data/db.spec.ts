@@ -97,7 +97,7 @@ describe('the tablet database', () => {
     const db = new FuselightDb(name);
     opened.push(db);
     await db.open();
-    expect(db.verno).toBe(2);
+    expect(db.verno).toBe(DEXIE_SCHEMA_VERSION);
     const migrated = await db.outbox.orderBy('seq').toArray();
     expect(migrated.map((entry) => entry.changeId)).toEqual([
       entries[1]!.changeId,
@@ -113,6 +113,116 @@ describe('the tablet database', () => {
     expect(record?.serverFields).toEqual({});
     expect((await db.patientSearch.get(patientId))?.terms).toEqual(
       expect.arrayContaining(['amara', 'okafor', 'fl-1', '2016-04-09']),
+    );
+  });
+
+  it('upgrades a version 2 database to slimmer indexes and keeps every record, Outbox entry and search row', async () => {
+    const name = `test-v2-${crypto.randomUUID()}`;
+    // The schema exactly as version 2 shipped it.
+    const v2 = new Dexie(name);
+    v2.version(2).stores({
+      records:
+        '[collection+id], collection, id, version, updatedAt, [collection+fields.visitId], [collection+fields.patientId]',
+      outbox: 'changeId, &seq, [collection+recordId], state, authorId, createdAt',
+      meta: 'key',
+      patientSearch: 'id, *terms, siteId',
+    });
+    const site = '0190c6a0-0000-7000-8000-00000000a001';
+    const patientId = '0190c6a0-0000-7000-8000-00000000b001';
+    const visitId = '0190c6a0-0000-7000-8000-00000000c001';
+    const record = (collection: string, id: string, fields: Record<string, unknown>) => ({
+      collection,
+      id,
+      version: 4,
+      deleted: false,
+      fields,
+      conflicts: [],
+      pendingFields: collection === 'visit' ? ['reason'] : [],
+      serverFields: collection === 'visit' ? { reason: 'Review' } : {},
+      updatedAt: 5,
+    });
+    const rows = [
+      record('patient', patientId, {
+        siteId: site,
+        givenName: 'Amara',
+        familyName: 'Okafor',
+        clinicNumber: 'FL-1',
+        dateOfBirth: '2016-04-09',
+      }),
+      record('visit', visitId, { siteId: site, patientId, date: '2026-11-30', reason: 'Squint' }),
+      record('plan', '0190c6a0-0000-7000-8000-00000000d001', { siteId: site, patientId, visitId }),
+    ];
+    await v2.table('records').bulkPut(rows);
+    const entries = [1, 2].map((n) => ({
+      changeId: `0190c6a0-0000-7000-8000-0000000e000${n}`,
+      seq: n,
+      collection: 'visit',
+      recordId: visitId,
+      baseVersion: 4,
+      hlc: `000000000000${n}00-00000-device-one`,
+      fields: { reason: `Squint ${n}` },
+      authorId: 'author',
+      deviceId: 'device-one',
+      createdAt: n * 100,
+      updatedAt: n * 100,
+      state: n === 2 ? 'rejected' : 'pending',
+      error: n === 2 ? 'Reason is too long' : null,
+      attempts: n,
+    }));
+    await v2.table('outbox').bulkPut(entries);
+    await v2.table('meta').bulkPut([
+      { key: 'outboxSeq', value: 2 },
+      { key: 'pullCursor', value: 4 },
+    ]);
+    const searchRow = { id: patientId, siteId: site, terms: ['amara', 'okafor', 'fl-1'] };
+    await v2.table('patientSearch').put(searchRow);
+    v2.close();
+
+    const db = new FuselightDb(name);
+    opened.push(db);
+    await db.open();
+    expect(db.verno).toBe(3);
+    // Nothing is rewritten: every row reads back exactly as version 2 held it.
+    expect(await db.records.toArray()).toEqual(
+      [...rows].sort((a, b) => (a.collection < b.collection ? -1 : 1)),
+    );
+    expect(await db.outbox.orderBy('seq').toArray()).toEqual(entries);
+    expect(await db.meta.toArray()).toEqual([
+      { key: 'outboxSeq', value: 2 },
+      { key: 'pullCursor', value: 4 },
+    ]);
+    expect(await db.patientSearch.toArray()).toEqual([searchRow]);
+    // Only the indexes something reads are left, and those still answer.
+    const indexes = (table: string) =>
+      db
+        .table(table)
+        .schema.indexes.map((index) => index.name)
+        .sort();
+    expect(indexes('records')).toEqual([
+      '[collection+fields.patientId]',
+      '[collection+fields.visitId]',
+    ]);
+    expect(indexes('patientSearch')).toEqual(['terms']);
+    expect(indexes('outbox')).toEqual([
+      '[collection+recordId]',
+      'authorId',
+      'createdAt',
+      'seq',
+      'state',
+    ]);
+    expect(
+      (
+        await db.records
+          .where('[collection+fields.visitId]')
+          .equals(['plan', visitId])
+          .primaryKeys()
+      ).length,
+    ).toBe(1);
+    expect(await db.patientSearch.where('terms').startsWith('oka').primaryKeys()).toEqual([
+      patientId,
+    ]);
+    expect(await db.outbox.where('[collection+recordId]').equals(['visit', visitId]).count()).toBe(
+      2,
     );
   });
 });

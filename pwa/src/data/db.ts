@@ -94,7 +94,25 @@ export class FuselightDb extends Dexie {
         patientSearch: 'id, *terms, siteId',
       })
       .upgrade(upgradeToVersion2);
+    // Version 3 keeps only the indexes something reads: a first sync writes every record once
+    // per index, and `id`, `version`, `updatedAt` and the search rows' `siteId` were never
+    // queried, while `collection` is served by the primary key's own range. Dropping an index
+    // moves no data: every record, Outbox entry and search row stays as it is.
+    this.version(3).stores({
+      records: '[collection+id], [collection+fields.visitId], [collection+fields.patientId]',
+      outbox: 'changeId, &seq, [collection+recordId], state, authorId, createdAt',
+      meta: 'key',
+      patientSearch: 'id, *terms',
+    });
   }
+}
+
+/** The records of one collection, by the primary key's [collection+id] range (no index). */
+export function collectionRange(collection: string): [[string, string], [string, string]] {
+  return [
+    [collection, Dexie.minKey as unknown as string],
+    [collection, Dexie.maxKey as unknown as string],
+  ];
 }
 
 /**
@@ -139,8 +157,8 @@ async function upgradeToVersion2(tx: Transaction): Promise<void> {
     });
   const patients = (await tx
     .table('records')
-    .where('collection')
-    .equals('patient')
+    .where('[collection+id]')
+    .between(...collectionRange('patient'), true, true)
     .toArray()) as StoredRecord[];
   await tx.table('patientSearch').bulkPut(patients.map(patientSearchRow));
 }
@@ -214,7 +232,7 @@ export function patientSearchRow(record: StoredRecord): PatientSearchRow {
   };
 }
 
-export const DEXIE_SCHEMA_VERSION = 2;
+export const DEXIE_SCHEMA_VERSION = 3;
 
 let defaultDb: FuselightDb | null = null;
 

@@ -13,6 +13,7 @@ import {
 import { v7 as uuidv7 } from 'uuid';
 import {
   TOMBSTONE,
+  collectionRange,
   getDefaultDb,
   patientSearchRow,
   searchWords,
@@ -195,8 +196,8 @@ export class RecordsRepository {
     filter: ListFilter = {},
   ): Promise<LocalRecord<C>[]> {
     let query = this.db.records
-      .where('collection')
-      .equals(collection)
+      .where('[collection+id]')
+      .between(...collectionRange(collection), true, true)
       .filter(
         (record) =>
           (filter.includeDeleted === true || !record.deleted) &&
