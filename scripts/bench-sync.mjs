@@ -1,7 +1,7 @@
 #!/usr/bin/env node
-// npm run bench:sync — push throughput of the sync server against a throwaway PostgreSQL
-// cluster: batches of 500 changes from one and four tablets, beside a plain batched
-// INSERT … ON CONFLICT of the same rows, with a breakdown of where the push time goes.
+// npm run bench:sync — push throughput of the sync server (its production bundle) against a
+// throwaway PostgreSQL cluster: batches of 500 changes from one and four tablets, beside a plain
+// batched INSERT … ON CONFLICT of the same rows, with a breakdown of where the push time goes.
 // Then the tablet's first sync into Dexie. Figures are printed, not asserted. BENCH_BATCHES sets the batches per tablet (default 6).
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
@@ -12,6 +12,8 @@ const dir = join('/var/tmp', `fuselight-bench-sync-${process.pid}`);
 const url = startCluster({ dir, port: await freePort(), fast: false });
 let failed = false;
 try {
+  // The push throughput is measured against the production bundle, as `npm start` runs it.
+  await run('npm', ['run', 'build', '-w', 'sync-server', '--silent'], { cwd: repoRoot });
   await run('npx', ['vitest', 'run', '--config', 'src/sync/bench/vitest.bench.config.mts'], {
     cwd: join(repoRoot, 'sync-server'),
     env: { ...process.env, FUSELIGHT_TEST_PG_URL: url, NODE_ENV: 'test' },
