@@ -302,14 +302,29 @@ async function runSchedule(ops: Op[]): Promise<void> {
           (c) => c.field === field && c.candidates.some((cand) => jsonEqual(cand.value, value)),
         );
         if (candidate) continue;
+        // "Overwritten by a change whose baseVersion showed it had seen that value": the value,
+        // not necessarily x's write of it. A write equal to the value already held (merge rule
+        // 2) leaves the field's stamp with the write that set it first, so a later edit that saw
+        // that first write — or came from its device — replaces the value by rule 1.
+        const writesOfValue = accepted.filter(
+          (z) =>
+            z.result.status !== 'rejected' &&
+            z.entry.recordId === x.entry.recordId &&
+            z.result.version <= xVersion &&
+            valuesOf(z.entry).some(([f, v]) => f === field && jsonEqual(v, value)),
+        );
         const overwrittenBySomeoneWhoSawIt = accepted.some(
           (y) =>
             y.result.status !== 'rejected' &&
             y.entry.recordId === x.entry.recordId &&
             valuesOf(y.entry).some(([f]) => f === field) &&
             y.result.version > xVersion &&
-            (y.entry.baseVersion >= xVersion ||
-              (y.entry.deviceId === x.entry.deviceId && y.entry.hlc > x.entry.hlc)),
+            writesOfValue.some(
+              (z) =>
+                z.result.status !== 'rejected' &&
+                (y.entry.baseVersion >= z.result.version ||
+                  (y.entry.deviceId === z.entry.deviceId && y.entry.hlc > z.entry.hlc)),
+            ),
         );
         expect(
           overwrittenBySomeoneWhoSawIt,
