@@ -31,6 +31,24 @@ async function addPatient(
   return repos.records.create('patient', { siteId: TEST_SITE_ID, ...fields }, editContext());
 }
 
+// Two invented patients most of the search tests look for.
+const WREN = {
+  givenName: 'Wren',
+  familyName: 'Altamira',
+  dateOfBirth: '2016-04-09',
+  clinicNumber: 'QX-4410',
+};
+const OSWIN = {
+  givenName: 'Oswin',
+  familyName: 'Belgrave',
+  dateOfBirth: '1979-11-30',
+  clinicNumber: 'QX-9921',
+};
+
+/** The search panel's status line. */
+const status = () =>
+  within(screen.getByRole('region', { name: 'Find a patient' })).getByRole('status').textContent;
+
 describe('the Today screen', () => {
   it('says plainly when nothing is booked today', async () => {
     const repos = setup();
@@ -42,18 +60,8 @@ describe('the Today screen', () => {
 
   it('finds patients by the start of a name, a clinic number and a date of birth', async () => {
     const repos = setup();
-    await addPatient(repos, {
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    });
-    await addPatient(repos, {
-      givenName: 'Oswin',
-      familyName: 'Belgrave',
-      dateOfBirth: '1979-11-30',
-      clinicNumber: 'QX-9921',
-    });
+    await addPatient(repos, WREN);
+    await addPatient(repos, OSWIN);
     const user = userEvent.setup();
     renderScreen(<TodayScreen />, { repositories: repos });
     const box = screen.getByLabelText('Name, clinic number or date of birth');
@@ -80,12 +88,7 @@ describe('the Today screen', () => {
 
   it('finds a date of birth typed day first or unpadded, and counts only this query’s results', async () => {
     const repos = setup();
-    await addPatient(repos, {
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    });
+    await addPatient(repos, WREN);
     await addPatient(repos, {
       givenName: 'Oswin',
       familyName: 'Belgrave',
@@ -97,9 +100,6 @@ describe('the Today screen', () => {
     const box = screen.getByLabelText('Name, clinic number or date of birth');
 
     await user.type(box, '9/4/2016');
-    const status = () =>
-      within(screen.getByRole('region', { name: 'Find a patient' })).getByRole('status')
-        .textContent;
     await waitFor(() => expect(status()).toBe('1 patient found'));
     const results = screen.getByRole('list', { name: 'Search results' });
     expect(within(results).getAllByRole('listitem')).toHaveLength(1);
@@ -116,18 +116,8 @@ describe('the Today screen', () => {
 
   it('never brings back the rows of a query the person cleared while the next one runs', async () => {
     const repos = setup();
-    await addPatient(repos, {
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    });
-    await addPatient(repos, {
-      givenName: 'Oswin',
-      familyName: 'Belgrave',
-      dateOfBirth: '1979-11-30',
-      clinicNumber: 'QX-9921',
-    });
+    await addPatient(repos, WREN);
+    await addPatient(repos, OSWIN);
     const user = userEvent.setup();
     renderScreen(<TodayScreen />, { repositories: repos });
     const box = screen.getByLabelText('Name, clinic number or date of birth');
@@ -146,20 +136,12 @@ describe('the Today screen', () => {
     await screen.findByText('Oswin Belgrave');
     observer.disconnect();
     expect(staleRowShown).toBe(false);
-    expect(
-      within(screen.getByRole('region', { name: 'Find a patient' })).getByRole('status')
-        .textContent,
-    ).toBe('1 patient found');
+    expect(status()).toBe('1 patient found');
   });
 
   it('opens the Chart from a result inside the app, and leaves a modified click to the browser', async () => {
     const repos = setup();
-    const patientId = await addPatient(repos, {
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    });
+    const patientId = await addPatient(repos, WREN);
     const user = userEvent.setup();
     renderScreen(<TodayScreen />, { repositories: repos });
     await user.type(screen.getByLabelText('Name, clinic number or date of birth'), 'wren');
@@ -188,12 +170,7 @@ describe('the Today screen', () => {
 
   it('starts a draft visit for a found patient and lists it as today’s, ready to resume', async () => {
     const repos = setup();
-    const patientId = await addPatient(repos, {
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    });
+    const patientId = await addPatient(repos, WREN);
     const user = userEvent.setup();
     renderScreen(<TodayScreen />, { repositories: repos });
     await user.type(screen.getByLabelText('Name, clinic number or date of birth'), 'wren');
@@ -212,12 +189,7 @@ describe('the Today screen', () => {
 
   it('offers to resume an unfinished visit of today instead of starting a second', async () => {
     const repos = setup();
-    const patientId = await addPatient(repos, {
-      givenName: 'Wren',
-      familyName: 'Altamira',
-      dateOfBirth: '2016-04-09',
-      clinicNumber: 'QX-4410',
-    });
+    const patientId = await addPatient(repos, WREN);
     const visitId = await repos.records.create(
       'visit',
       {
