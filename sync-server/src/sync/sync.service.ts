@@ -55,7 +55,7 @@ import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
 export interface PushTimings {
   envelopeMs: number;
   beginMs: number;
-  claimMs: number;
+  earlierMs: number;
   lockMs: number;
   planMs: number;
   writeMs: number;
@@ -71,7 +71,7 @@ export class SyncService {
   readonly timings: PushTimings = {
     envelopeMs: 0,
     beginMs: 0,
-    claimMs: 0,
+    earlierMs: 0,
     lockMs: 0,
     planMs: 0,
     writeMs: 0,
@@ -128,7 +128,7 @@ export class SyncService {
     // and then finds that answer among the earlier ones (change-log.ts).
     for (let attempt = 1; ; attempt += 1) {
       const earlier = await firstResults(em, changeIds);
-      lap('claimMs');
+      lap('earlierMs');
 
       // The first occurrence of each id not answered before is planned; the rest are replays.
       const toPlan: { index: number; raw: Record<string, unknown> }[] = [];
@@ -151,17 +151,17 @@ export class SyncService {
       const plans = planAll(makePlanner(), toPlan, answered);
       lap('planMs');
 
+      // One savepoint per attempt: a batch the database refuses rolls back to it and is written
+      // change by change; an attempt that cannot log all its results rolls back to it too.
       await sqlRows(em, 'savepoint "push_attempt"');
-      await sqlRows(em, 'savepoint "push_batch"');
       try {
         await this.writePlans(em, plans, now, user);
-        await sqlRows(em, 'release savepoint "push_batch"');
       } catch (error) {
         if (!isDataError(error)) throw error;
         this.logger.warn(
           `push batch refused by the database (${describeDataError(error)}); writing change by change`,
         );
-        await sqlRows(em, 'rollback to savepoint "push_batch"');
+        await sqlRows(em, 'rollback to savepoint "push_attempt"');
         answered.clear();
         await this.writeOneByOne(em, makePlanner(), toPlan, answered, now, user);
       }

@@ -183,7 +183,7 @@ async function rawRun(clients: number): Promise<number> {
 const STEPS: Record<keyof SyncService['timings'], string> = {
   envelopeMs: 'check the envelope (zod shape)',
   beginMs: 'open the transaction',
-  claimMs: 'read earlier answers (replays)',
+  earlierMs: 'read earlier answers (replays)',
   lockMs: 'lock records, read open disputes',
   planMs: 'validate and merge (JS)',
   writeMs: 'write records and history',
