@@ -66,27 +66,25 @@ export class Migration20261202000000SupersededHistory extends Migration {
                         else s.value || jsonb_build_object('at', o."updated_at") end) as "stamps"
             from jsonb_each(o."stamps") s
            ${where}`;
-    this.addSql(`
-      create function "review_capture_superseded"() returns trigger language plpgsql as $$
+    // One row per record the statement replaced fields of (or purged): its superseded values.
+    const captureFunction = (name: string, rows: string, where: string) => `
+      create function "${name}"() returns trigger language plpgsql as $$
       begin
         insert into "review_superseded" ("record_id", "collection", "site_id", "values", "stamps")
         select o."id", o."collection", o."site_id", c."values", c."stamps"
-          from "old_rows" o
-          join "new_rows" n on n."id" = o."id"
-          cross join lateral (${superseded(`where (n."stamps" -> s.key) is distinct from s.value`)}) c
+          from ${rows}
+          cross join lateral (${superseded(where)}) c
          where c."values" is not null;
         return null;
-      end $$;`);
-    this.addSql(`
-      create function "review_capture_purged"() returns trigger language plpgsql as $$
-      begin
-        insert into "review_superseded" ("record_id", "collection", "site_id", "values", "stamps")
-        select o."id", o."collection", o."site_id", c."values", c."stamps"
-          from "old_rows" o
-          cross join lateral (${superseded('')}) c
-         where c."values" is not null;
-        return null;
-      end $$;`);
+      end $$;`;
+    this.addSql(
+      captureFunction(
+        'review_capture_superseded',
+        '"old_rows" o join "new_rows" n on n."id" = o."id"',
+        'where (n."stamps" -> s.key) is distinct from s.value',
+      ),
+    );
+    this.addSql(captureFunction('review_capture_purged', '"old_rows" o', ''));
     this.addSql(`
       create trigger "review_capture_superseded"
         after update on "sync_record" referencing old table as "old_rows" new table as "new_rows"
