@@ -29,11 +29,24 @@ export function scopeOfKind(kind: string): AuditScope {
   return ACCOUNT_KIND_PREFIXES.some((prefix) => kind.startsWith(prefix)) ? 'account' : 'clinical';
 }
 
+/** Keys already judged: a push's 500 details repeat the same handful of keys. */
+const judgedKeys = new Map<string, boolean>();
+
+function isSecretKey(key: string): boolean {
+  let secret = judgedKeys.get(key);
+  if (secret === undefined) {
+    secret = SECRET_KEY.test(key);
+    if (judgedKeys.size < 1000) judgedKeys.set(key, secret);
+  }
+  return secret;
+}
+
 function hasSecretKey(value: unknown): boolean {
   if (Array.isArray(value)) return value.some(hasSecretKey);
   if (value && typeof value === 'object' && !(value instanceof Date)) {
-    for (const [key, inner] of Object.entries(value)) {
-      if (SECRET_KEY.test(key) || hasSecretKey(inner)) return true;
+    for (const key in value) {
+      if (!Object.hasOwn(value, key)) continue;
+      if (isSecretKey(key) || hasSecretKey((value as Record<string, unknown>)[key])) return true;
     }
   }
   return false;
@@ -59,6 +72,22 @@ export function withoutSecrets(value: unknown): unknown {
   return hasSecretKey(value) ? stripSecrets(value) : value;
 }
 
+/**
+ * The columns of a batch insert: the table's column, the row's key, its SQL type, and whether a
+ * value every event of the batch shares may be bound once (ids and details are each event's own).
+ */
+const AUDIT_BATCH_COLUMNS = [
+  { column: 'id', key: 'id', type: 'uuid', sharable: false },
+  { column: 'scope', key: 'scope', type: 'text', sharable: true },
+  { column: 'kind', key: 'kind', type: 'text', sharable: true },
+  { column: 'actor_id', key: 'actorId', type: 'uuid', sharable: true },
+  { column: 'device_id', key: 'deviceId', type: 'uuid', sharable: true },
+  { column: 'site_id', key: 'siteId', type: 'uuid', sharable: true },
+  { column: 'subject_type', key: 'subjectType', type: 'text', sharable: true },
+  { column: 'subject_id', key: 'subjectId', type: 'text', sharable: true },
+  { column: 'detail', key: 'detail', type: 'jsonb', sharable: false },
+] as const;
+
 @Injectable()
 export class AuditService {
   constructor(
@@ -75,7 +104,9 @@ export class AuditService {
    * Appends several events in one statement (a sync push records one per change). Plain SQL over
    * a JSON array bound as one parameter: the ORM's per-entity conversion, and MikroORM's
    * `execute` (which inlines and escapes every parameter into the statement text), cost more
-   * than the rest of a push. The time is the same for the whole batch, so it travels once.
+   * than the rest of a push. The time travels once, and so does every column whose value all
+   * the events share (a push's actor, tablet, scope and usually site and kind): it is bound as
+   * one parameter instead of being repeated in each row of the array.
    */
   async recordMany(em: EntityManager, events: AuditInput[]): Promise<void> {
     if (events.length === 0) return;
@@ -91,16 +122,36 @@ export class AuditService {
       subjectId: event.subjectId ?? null,
       detail: withoutSecrets(event.detail ?? {}),
     }));
+    type Row = (typeof rows)[number];
+    const first = rows[0] as Row;
+    const shared = AUDIT_BATCH_COLUMNS.filter(
+      ({ key, sharable }) => sharable && rows.every((row) => row[key] === first[key]),
+    );
+    const params: (string | null)[] = [
+      occurredAt,
+      ...shared.map(({ key }) => first[key] as string | null),
+    ];
+    const perRow = AUDIT_BATCH_COLUMNS.filter((column) => !shared.includes(column));
+    const values = (column: (typeof AUDIT_BATCH_COLUMNS)[number]) =>
+      shared.includes(column) ? `?::${column.type}` : `r."${column.key}"`;
+    params.push(
+      JSON.stringify(
+        rows.map((row) => {
+          const own: Partial<Row> = {};
+          for (const { key } of perRow) (own as Record<string, unknown>)[key] = row[key];
+          return own;
+        }),
+      ),
+    );
+    // The select list takes the shared values first, as they are bound.
+    const ordered = [...shared, ...perRow].map(values);
+    const columns = [...shared, ...perRow].map(({ column }) => `"${column}"`);
     const knex = (em as unknown as SqlEntityManager).getKnex();
     const query = knex.raw(
-      `insert into "audit_event"
-         ("id", "occurred_at", "scope", "kind", "actor_id", "device_id", "site_id", "subject_type", "subject_id", "detail")
-       select r."id", ?::timestamptz, r."scope", r."kind", r."actorId", r."deviceId", r."siteId",
-              r."subjectType", r."subjectId", coalesce(r."detail", '{}'::jsonb)
-         from jsonb_to_recordset(?::jsonb) as r(
-           "id" uuid, "scope" text, "kind" text, "actorId" uuid,
-           "deviceId" uuid, "siteId" uuid, "subjectType" text, "subjectId" text, "detail" jsonb)`,
-      [occurredAt, JSON.stringify(rows)],
+      `insert into "audit_event" ("occurred_at", ${columns.join(', ')})
+       select ?::timestamptz, ${ordered.join(', ')}
+         from jsonb_to_recordset(?::jsonb) as r(${perRow.map(({ key, type }) => `"${key}" ${type}`).join(', ')})`,
+      params,
     );
     const trx = em.getTransactionContext<Parameters<typeof query.transacting>[0]>();
     if (trx) query.transacting(trx);

@@ -162,6 +162,74 @@ describe('the audit trail', () => {
     expect(rows[1]?.detail).toEqual({});
   });
 
+  it('stores every event’s own values in a batch, whether a column is shared by all events or differs', async () => {
+    const actor = '0190c6a0-0000-7000-8000-00000000aa01';
+    await t.em().transactional(async (em) => {
+      await audit().recordMany(em, [
+        {
+          kind: 'record.created',
+          actorId: actor,
+          siteId: siteB,
+          subjectType: 'visit',
+          subjectId: 'mix-1',
+        },
+        {
+          kind: 'record.changed',
+          actorId: actor,
+          siteId: null,
+          subjectType: 'visit',
+          subjectId: 'mix-2',
+        },
+        {
+          kind: 'record.changed',
+          actorId: actor,
+          subjectType: 'patient',
+          subjectId: 'mix-3',
+          detail: { n: 3 },
+        },
+      ]);
+    });
+    const rows = await t
+      .em()
+      .getConnection()
+      .execute<Record<string, unknown>[]>(
+        `select "kind", "scope", "actor_id", "device_id", "site_id", "subject_type", "subject_id", "detail"
+           from audit_event where subject_id like 'mix-%' order by seq`,
+      );
+    expect(rows).toEqual([
+      {
+        kind: 'record.created',
+        scope: 'clinical',
+        actor_id: actor,
+        device_id: null,
+        site_id: siteB,
+        subject_type: 'visit',
+        subject_id: 'mix-1',
+        detail: {},
+      },
+      {
+        kind: 'record.changed',
+        scope: 'clinical',
+        actor_id: actor,
+        device_id: null,
+        site_id: null,
+        subject_type: 'visit',
+        subject_id: 'mix-2',
+        detail: {},
+      },
+      {
+        kind: 'record.changed',
+        scope: 'clinical',
+        actor_id: actor,
+        device_id: null,
+        site_id: null,
+        subject_type: 'patient',
+        subject_id: 'mix-3',
+        detail: { n: 3 },
+      },
+    ]);
+  });
+
   it('keeps quotes, backslashes and question marks of a batch intact, and rolls the batch back with its transaction', async () => {
     const awkward = `O'Brien said "?" \\ then $1 ?? ok`;
     await t.em().transactional(async (em) => {

@@ -41,12 +41,20 @@ export async function storeResults(
   at: Date,
 ): Promise<Set<string>> {
   if (entries.length === 0) return new Set();
+  // The stored result is built from the row's own columns rather than sent a second time: an
+  // accepted change's conflicts (usually none) and a rejected change's error are all it adds.
+  // The change id goes in as sent (text), so a replay answers with the id exactly as it came.
   const rows = await sqlRows<{ change_id: string }>(
     em,
     `insert into "sync_change" ("change_id", "user_id", "device_id", "status", "version", "record_id", "result", "received_at")
-     select x."change_id", ?::uuid, ?, x."status", x."version", x."record_id", x."result", ?::timestamptz
-       from jsonb_to_recordset(?::jsonb) as x("change_id" uuid, "status" text, "version" bigint, "record_id" uuid, "result" jsonb)
-      order by x."change_id"
+     select x."c"::uuid, ?::uuid, ?, x."s", x."v", x."r",
+            case when x."s" = 'rejected'
+              then jsonb_build_object('changeId', x."c", 'status', x."s", 'error', x."e")
+              else jsonb_build_object('changeId', x."c", 'status', x."s", 'version', x."v", 'conflicts', coalesce(x."k", '[]'::jsonb))
+            end,
+            ?::timestamptz
+       from jsonb_to_recordset(?::jsonb) as x("c" text, "s" text, "v" bigint, "r" uuid, "k" jsonb, "e" text)
+      order by x."c"::uuid
      on conflict ("change_id") do nothing
      returning "change_id"`,
     [
@@ -54,13 +62,17 @@ export async function storeResults(
       claimant.deviceId,
       at.toISOString(),
       jsonParam(
-        entries.map(({ result, recordId }) => ({
-          change_id: result.changeId,
-          status: result.status,
-          version: result.status === 'rejected' ? null : result.version,
-          record_id: recordId,
-          result,
-        })),
+        entries.map(({ result, recordId }) =>
+          result.status === 'rejected'
+            ? { c: result.changeId, s: result.status, r: recordId, e: result.error }
+            : {
+                c: result.changeId,
+                s: result.status,
+                v: result.version,
+                r: recordId,
+                ...(result.conflicts.length > 0 ? { k: result.conflicts } : {}),
+              },
+        ),
       ),
     ],
   );
