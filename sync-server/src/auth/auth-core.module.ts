@@ -1,3 +1,4 @@
+import { createSecretKey } from 'node:crypto';
 import { Global, Module, type DynamicModule } from '@nestjs/common';
 import { JwtModule } from '@nestjs/jwt';
 import type { AppConfig } from '../config/app-config';
@@ -12,7 +13,10 @@ export class AuthCoreModule {
       imports: [
         JwtModule.register({
           global: true,
-          secret: config.jwtSecret,
+          // A key object rather than the string: given a string, the token library first tries
+          // to read it as a public key and throws, on every request, before it treats it as a
+          // secret (about 0.7 ms a request, measured with the push benchmark's CPU profile).
+          secret: createSecretKey(Buffer.from(config.jwtSecret, 'utf8')),
           signOptions: { expiresIn: config.accessTokenTtlSeconds, algorithm: 'HS256' },
           verifyOptions: { algorithms: ['HS256'] },
         }),
