@@ -2,10 +2,15 @@
 // schema first (a refused value stays on screen with its message and is not written), valid
 // values are written after a short pause or at once when the field is left, and "Saved" shows
 // only after the write resolved. Pending writes are flushed when the form goes away.
+// What was entered here is shown over the stored value only while it is needed: once the person
+// has left the field and its write is in IndexedDB (and the visit re-read), the field shows the
+// stored value again, so a value a sync brings later (a resolved dispute, another tablet's edit)
+// appears on screen instead of being hidden behind what was typed earlier.
 import { validateFields, type SectionCollectionName } from '@fuselight/shared';
+import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { useEditContext } from '../../data';
-import { useCharting } from '../../data/charting';
+import { chartingKeys, useCharting } from '../../data/charting';
 
 export type SaveStatus = 'idle' | 'waiting' | 'saving' | 'saved' | 'invalid' | 'error';
 
@@ -21,7 +26,7 @@ export interface SectionAutosave {
     value: unknown,
     options?: { raw?: string; parseError?: string },
   ) => void;
-  /** Writes what is waiting now (on leaving a field). */
+  /** Writes what is waiting now (on leaving a field); left fields then show the stored value. */
   flush: () => void;
   status: SaveStatus;
   saveError: string | null;
@@ -37,7 +42,13 @@ export function useSectionAutosave(
 ): SectionAutosave {
   const charting = useCharting();
   const editContext = useEditContext();
+  const queryClient = useQueryClient();
   const [local, setLocal] = useState<Record<string, unknown>>({});
+  const localRef = useRef<Record<string, unknown>>({});
+  /** Fields the person has left since last editing them. */
+  const left = useRef(new Set<string>());
+  /** Writes on their way to IndexedDB, by field. */
+  const flight = useRef(new Map<string, number>());
   const [raw, setRaw] = useState<Record<string, string>>({});
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [status, setStatus] = useState<SaveStatus>('idle');
@@ -54,6 +65,27 @@ export function useSectionAutosave(
     },
     [onStatus],
   );
+
+  /** Stops laying over the stored value the fields that were left and whose writes are done. */
+  const release = useCallback(() => {
+    const done = Object.keys(localRef.current).filter(
+      (field) =>
+        left.current.has(field) &&
+        !(field in waiting.current) &&
+        !flight.current.has(field) &&
+        !invalid.current.has(field),
+    );
+    if (done.length === 0) return;
+    const without = <T>(current: Record<string, T>) => {
+      const next = { ...current };
+      for (const field of done) delete next[field];
+      return next;
+    };
+    for (const field of done) left.current.delete(field);
+    localRef.current = without(localRef.current);
+    setLocal(localRef.current);
+    setRaw(without);
+  }, []);
 
   const write = useCallback(() => {
     if (timer.current) {
@@ -75,27 +107,45 @@ export function useSectionAutosave(
       report('error');
       return;
     }
+    const names = Object.keys(fields);
+    for (const name of names) flight.current.set(name, (flight.current.get(name) ?? 0) + 1);
+    const landed = () => {
+      for (const name of names) {
+        const remaining = (flight.current.get(name) ?? 1) - 1;
+        if (remaining > 0) flight.current.set(name, remaining);
+        else flight.current.delete(name);
+      }
+    };
     charting
       .saveSection(visitId, collection, fields, ctx)
-      .then(() => {
+      .then(async () => {
+        // Re-read the visit before showing its stored values in place of what was typed.
+        await queryClient
+          .invalidateQueries({ queryKey: chartingKeys.visit(visitId) })
+          .catch(() => undefined);
+        landed();
         inFlight.current -= 1;
         setSaveError(null);
         if (inFlight.current === 0 && Object.keys(waiting.current).length === 0) {
           report(invalid.current.size > 0 ? 'invalid' : 'saved');
         }
+        release();
       })
       .catch((error: unknown) => {
+        landed();
         inFlight.current -= 1;
         // Keep the values waiting so the next change or leaving the field tries again.
         waiting.current = { ...fields, ...waiting.current };
         setSaveError(error instanceof Error ? error.message : String(error));
         report('error');
       });
-  }, [charting, collection, editContext, report, visitId]);
+  }, [charting, collection, editContext, queryClient, release, report, visitId]);
 
   const setField = useCallback<SectionAutosave['setField']>(
     (field, value, options = {}) => {
-      setLocal((current) => ({ ...current, [field]: value }));
+      left.current.delete(field);
+      localRef.current = { ...localRef.current, [field]: value };
+      setLocal(localRef.current);
       setRaw((current) => {
         const next = { ...current };
         if (options.raw === undefined) delete next[field];
@@ -128,6 +178,12 @@ export function useSectionAutosave(
     [collection, report, write],
   );
 
+  const flush = useCallback(() => {
+    for (const field of Object.keys(localRef.current)) left.current.add(field);
+    write();
+    release();
+  }, [release, write]);
+
   // Leaving the screen must not drop a value typed in the last pause.
   const writeRef = useRef(write);
   useEffect(() => {
@@ -140,7 +196,7 @@ export function useSectionAutosave(
     rawOf: (field) => raw[field],
     errorOf: (field) => errors[field],
     setField,
-    flush: write,
+    flush,
     status,
     saveError,
   };

@@ -18,6 +18,7 @@ import {
   renderScreen,
 } from '../../components/charting/test-support';
 import { ChartingRepository, VisitLockedError, VisitRuleError } from '../../data/charting';
+import { notifyDataChange } from '../../data/data-events';
 import VisitScreen from './VisitScreen';
 
 type Repos = ReturnType<typeof freshRepositories>;
@@ -139,6 +140,32 @@ describe('a Visit Section form', () => {
     const [record] = await repos.records.listByField('visualAcuity', 'visitId', visitId);
     expect(record!.fields.rightDistanceCorrectedNotation).toBe('6/12');
     expect(record!.fields.rightDistanceCorrectedLogMar).toBeCloseTo(0.30103, 4);
+  });
+
+  it('shows a value a sync brings after a field was saved here and left', async () => {
+    const { repos, visitId } = await setupVisit();
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    const npc = await screen.findByRole('region', { name: 'Near point of convergence' });
+    const input = within(npc).getByLabelText<HTMLInputElement>('Near point of convergence, break');
+    await user.type(input, '8');
+    await user.tab();
+    await waitFor(() => expect(within(npc).getByText('Saved on this tablet')).toBeTruthy());
+    const [saved] = await repos.records.listByField('nearPointConvergence', 'visitId', visitId);
+
+    // What a pull stores once the server has settled the field (say, a supervisor resolved a
+    // dispute to 12 cm): the record's value, nothing pending; then the engine's change notice.
+    await repos.db.records.update(['nearPointConvergence', saved!.id] as unknown as string, {
+      'fields.breakCm': 12,
+      pendingFields: [],
+      serverFields: {},
+    });
+    notifyDataChange({
+      collections: ['nearPointConvergence'],
+      recordIds: [saved!.id],
+      outbox: false,
+    });
+    await waitFor(() => expect(input.value).toBe('12'));
   });
 
   it('marks a disputed field beside it', async () => {
