@@ -124,7 +124,10 @@ describe('the Bench on an enrolled tablet', () => {
     await page.goto(`${baseUrl()}/bench/${visitId}`);
     await page.getByRole('heading', { name: 'Setup', level: 2 }).waitFor();
     expect(await page.locator('ion-tab-bar').isVisible()).toBe(false);
-    await page.getByTestId('bench-sync').getByText('Offline').waitFor();
+    await page
+      .getByRole('region', { name: /^Sync status/ })
+      .getByText('Offline')
+      .waitFor();
 
     // Setup.
     await page.getByLabel('Interpupillary distance (mm)').fill('58');
@@ -266,8 +269,8 @@ describe('the Bench on an enrolled tablet', () => {
     });
     expect(stereo.trials).toHaveLength(5);
     await page
-      .getByTestId('bench-sync')
-      .getByText('Everything is sent')
+      .getByRole('region', { name: /^Sync status/ })
+      .getByText('Outbox empty')
       .waitFor({ timeout: 45_000 });
   });
 

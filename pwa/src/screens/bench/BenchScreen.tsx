@@ -13,7 +13,6 @@ import {
   writeConversionPreference,
 } from '../../data/bench';
 import { useVisitBundle } from '../../data/charting';
-import { BenchOutboxBadge } from './BenchOutboxBadge';
 import { BENCH_STEPS, type BenchStepId, stepById } from './bench-steps';
 import { ObjectiveAngleStep, SubjectiveAngleStep } from './steps/AngleSteps';
 import { FusionStep } from './steps/FusionStep';
@@ -124,8 +123,8 @@ export function Bench({ visitId, random }: { visitId: string; random?: () => num
                 </button>
               ))}
             </div>
+            {/* The one sync indicator on the Bench: the shell's dock is hidden here. */}
             <SyncIndicator compact />
-            <BenchOutboxBadge />
             <Link className="fl-touch fl-button fl-bench__leave" to={`/visit/${visitId}`}>
               Leave the Bench
             </Link>
