@@ -118,6 +118,12 @@ describe('permission matrix of the identity routes', () => {
     { method: 'get', route: '/api/me', path: () => '/api/me', expect: everyone(200) },
     { method: 'get', route: '/api/me/sites', path: () => '/api/me/sites', expect: everyone(200) },
     {
+      method: 'get',
+      route: '/api/me/colleagues',
+      path: () => '/api/me/colleagues',
+      expect: everyone(200),
+    },
+    {
       method: 'post',
       route: '/api/me/password',
       path: () => '/api/me/password',

@@ -5,7 +5,7 @@ import { CurrentUser } from '../auth/auth.decorators';
 import type { AuthUser } from '../auth/auth-user';
 import { zodDto } from '../common/zod-validation.pipe';
 import { changePasswordSchema } from './users.schemas';
-import { UsersService, type MeView, type MySiteView } from './users.service';
+import { UsersService, type ColleagueView, type MeView, type MySiteView } from './users.service';
 
 class ChangePasswordBody extends zodDto(changePasswordSchema) {}
 
@@ -29,10 +29,21 @@ export class MeController {
   })
   @ApiResponse({
     status: 200,
-    description: 'MySiteView[]: { id, name, kind (clinic | outreach), timeZone }, by name',
+    description:
+      'MySiteView[]: { id, name, kind (clinic | outreach), timeZone, address (string or null) }, by name',
   })
   sites(@CurrentUser() user: AuthUser): Promise<MySiteView[]> {
     return this.users.mySites(user);
+  }
+
+  @Get('colleagues')
+  @ApiOperation({
+    summary:
+      'The people who share a site with you (you included), so a tablet can name who signed, countersigned or wrote an addendum',
+  })
+  @ApiResponse({ status: 200, description: 'ColleagueView[]: { id, name, role }, by name' })
+  colleagues(@CurrentUser() user: AuthUser): Promise<ColleagueView[]> {
+    return this.users.colleagues(user);
   }
 
   @Post('password')

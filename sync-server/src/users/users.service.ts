@@ -53,6 +53,15 @@ export interface MySiteView {
   name: string;
   kind: SiteKind;
   timeZone: string;
+  /** As the admin entered it (lines split at commas or newlines); null when none is set. */
+  address: string | null;
+}
+
+/** Someone who shares a site with the caller: what a tablet needs to name who signed what. */
+export interface ColleagueView {
+  id: string;
+  name: string;
+  role: Role;
 }
 
 export interface NewPersonInput {
@@ -248,7 +257,26 @@ export class UsersService {
       name: site.name,
       kind: site.kind,
       timeZone: site.timeZone,
+      address: site.address,
     }));
+  }
+
+  /**
+   * Everyone who belongs to one of the caller's sites (the caller included, former staff too:
+   * a signature stays theirs), by name. Names and roles only: no e-mail address, no activity.
+   */
+  async colleagues(caller: AuthUser): Promise<ColleagueView[]> {
+    const em = this.em.fork();
+    const siteIds = await siteIdsOfUser(em, caller.userId);
+    if (siteIds.length === 0) return [];
+    const rows = await em.getConnection().execute<{ id: string; name: string; role: Role }[]>(
+      `select distinct u."id", u."name", u."role"
+         from "app_user" u join "user_site" s on s."user_id" = u."id"
+        where s."site_id" in (${siteIds.map(() => '?').join(', ')})
+        order by u."name", u."id"`,
+      siteIds,
+    );
+    return rows.map((row) => ({ id: row.id, name: row.name, role: row.role }));
   }
 
   async changePassword(

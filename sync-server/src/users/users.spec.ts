@@ -235,7 +235,11 @@ describe('GET /api/me/sites', () => {
   });
 
   it('names every site the person belongs to, by name, and none of anyone else’s', async () => {
-    const north = await createSite(t, { name: 'Northgate Eye Clinic', timeZone: 'Europe/Dublin' });
+    const north = await createSite(t, {
+      name: 'Northgate Eye Clinic',
+      timeZone: 'Europe/Dublin',
+      address: '4 Quarry Lane, Northgate, NG1 7TQ',
+    });
     const school = await createSite(t, { name: 'Ashby Primary (outreach)', kind: 'outreach' });
     const elsewhere = await createSite(t, { name: 'Someone else’s clinic' });
     const person = await createUser(t, { role: 'orthoptist', siteIds: [north.id, school.id] });
@@ -253,8 +257,15 @@ describe('GET /api/me/sites', () => {
         name: 'Ashby Primary (outreach)',
         kind: 'outreach',
         timeZone: 'Europe/London',
+        address: null,
       },
-      { id: north.id, name: 'Northgate Eye Clinic', kind: 'clinic', timeZone: 'Europe/Dublin' },
+      {
+        id: north.id,
+        name: 'Northgate Eye Clinic',
+        kind: 'clinic',
+        timeZone: 'Europe/Dublin',
+        address: '4 Quarry Lane, Northgate, NG1 7TQ',
+      },
     ]);
   });
 
@@ -265,11 +276,69 @@ describe('GET /api/me/sites', () => {
     const a = await signIn(t, { user: withSite });
     const b = await signIn(t, { user: withNone });
     expect((await request(server()).get('/api/me/sites').set(bearer(a.accessToken))).body).toEqual([
-      { id: site.id, name: 'Admin’s clinic', kind: 'clinic', timeZone: 'Europe/London' },
+      {
+        id: site.id,
+        name: 'Admin’s clinic',
+        kind: 'clinic',
+        timeZone: 'Europe/London',
+        address: null,
+      },
     ]);
     expect((await request(server()).get('/api/me/sites').set(bearer(b.accessToken))).body).toEqual(
       [],
     );
     expect((await request(server()).get('/api/me/sites')).status).toBe(401);
+  });
+});
+
+describe('GET /api/me/colleagues', () => {
+  let t: TestApp;
+  const server = () => t.app.getHttpServer();
+
+  beforeAll(async () => {
+    t = await createTestApp();
+  });
+  afterAll(async () => {
+    await t.close();
+  });
+
+  it('names everyone who shares one of the person’s sites, once, by name, and no one else', async () => {
+    const north = await createSite(t, { name: 'Calder Vale clinic' });
+    const school = await createSite(t, { name: 'Rook Hill school (outreach)', kind: 'outreach' });
+    const elsewhere = await createSite(t, { name: 'Far clinic' });
+    const me = await createUser(t, {
+      role: 'orthoptist',
+      name: 'Tamsin Breck',
+      siteIds: [north.id, school.id],
+    });
+    const both = await createUser(t, {
+      role: 'supervisor',
+      name: 'Ansel Moray',
+      siteIds: [north.id, school.id],
+    });
+    const outreachOnly = await createUser(t, {
+      role: 'orthoptist',
+      name: 'Briony Vale',
+      siteIds: [school.id],
+    });
+    await createUser(t, { role: 'orthoptist', name: 'Corin Stray', siteIds: [elsewhere.id] });
+    const session = await signIn(t, { user: me });
+
+    const res = await request(server()).get('/api/me/colleagues').set(bearer(session.accessToken));
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual([
+      { id: both.id, name: 'Ansel Moray', role: 'supervisor' },
+      { id: outreachOnly.id, name: 'Briony Vale', role: 'orthoptist' },
+      { id: me.id, name: 'Tamsin Breck', role: 'orthoptist' },
+    ]);
+    expect(JSON.stringify(res.body)).not.toContain('@');
+  });
+
+  it('gives a person with no site an empty list, and 401 without a token', async () => {
+    const alone = await createUser(t, { role: 'admin', siteIds: [] });
+    const session = await signIn(t, { user: alone });
+    const res = await request(server()).get('/api/me/colleagues').set(bearer(session.accessToken));
+    expect(res.body).toEqual([]);
+    expect((await request(server()).get('/api/me/colleagues')).status).toBe(401);
   });
 });
