@@ -3,6 +3,7 @@
 // with an upgrade that migrates what is there (never dropping the outbox).
 import Dexie, { type EntityTable, type Transaction } from 'dexie';
 import type { CollectionName } from '@fuselight/shared';
+import { PatientDirectory } from './patient-directory';
 
 /** Name of the tombstone pseudo-field in `pendingFields` and `serverFields`. */
 export const TOMBSTONE = 'deleted';
@@ -65,21 +66,18 @@ export interface MetaEntry {
   value: unknown;
 }
 
-/** A patient's search terms (name words, clinic number, date of birth), lower case. */
-export interface PatientSearchRow {
-  id: string;
-  siteId: string | null;
-  terms: string[];
-}
-
 export class FuselightDb extends Dexie {
   records!: EntityTable<StoredRecord, 'id'>;
   outbox!: EntityTable<OutboxEntry, 'changeId'>;
   meta!: EntityTable<MetaEntry, 'key'>;
-  patientSearch!: EntityTable<PatientSearchRow, 'id'>;
+  /** The patient search, held in memory and kept current by a middleware on this connection. */
+  readonly patientDirectory: PatientDirectory;
 
   constructor(name = 'fuselight') {
     super(name);
+    this.patientDirectory = new PatientDirectory(this);
+    this.use(this.patientDirectory.middleware());
+    this.on('close', () => this.patientDirectory.reset());
     this.version(1).stores({
       records: '[collection+id], collection, id, version, updatedAt',
       outbox: 'changeId, [collection+recordId], state, authorId, createdAt',
@@ -104,6 +102,9 @@ export class FuselightDb extends Dexie {
       meta: 'key',
       patientSearch: 'id, *terms',
     });
+    // Version 4 drops the persisted search rows: the patient search is answered from memory
+    // (patient-directory.ts), built from the patient records themselves. Nothing else changes.
+    this.version(4).stores({ patientSearch: null });
   }
 }
 
@@ -155,84 +156,9 @@ async function upgradeToVersion2(tx: Transaction): Promise<void> {
       record.pendingFields ??= [];
       record.conflicts ??= [];
     });
-  const patients = (await tx
-    .table('records')
-    .where('[collection+id]')
-    .between(...collectionRange('patient'), true, true)
-    .toArray()) as StoredRecord[];
-  await tx.table('patientSearch').bulkPut(patients.map(patientSearchRow));
 }
 
-function normalise(value: string): string {
-  return value
-    .toLocaleLowerCase()
-    .normalize('NFD')
-    .replace(/\p{Diacritic}/gu, '')
-    .replace(/['’]/gu, '');
-}
-
-/** Name words, each whole and split at hyphens ("obrien-lowe", "obrien", "lowe"). */
-function nameTerms(value: unknown): string[] {
-  if (typeof value !== 'string') return [];
-  return normalise(value)
-    .split(/[\s,]+/u)
-    .filter((word) => word.length > 0)
-    .flatMap((word) => [
-      word,
-      ...word.split('-').filter((part) => part.length > 0 && part !== word),
-    ]);
-}
-
-const TYPED_ISO_DATE = /^(\d{4})-(\d{1,2})(?:-(\d{1,2}))?$/;
-const TYPED_DAY_FIRST_DATE = /^(\d{1,2})[/.](\d{1,2})[/.](\d{4})$/;
-
-/**
- * A typed date of birth as the YYYY-MM-DD prefix the index holds ("2016-4-9", "9/4/2016" and
- * "09.04.2016" → "2016-04-09"; "2016-4" → "2016-04"); any other word as it is. A date is one
- * term: its hyphens are not word breaks. A one-digit day after a two-digit month is left as
- * typed, a prefix of the day still being typed ("2016-04-1" finds the 10th to the 19th).
- */
-function dateTerm(word: string): string {
-  const dayFirst = TYPED_DAY_FIRST_DATE.exec(word);
-  if (dayFirst) {
-    const [, d = '', m = '', y = ''] = dayFirst;
-    return `${y}-${m.padStart(2, '0')}-${d.padStart(2, '0')}`;
-  }
-  const iso = TYPED_ISO_DATE.exec(word);
-  if (!iso) return word;
-  const [, y = '', m = '', d] = iso;
-  const month = m.padStart(2, '0');
-  if (d === undefined) return `${y}-${month}`;
-  return `${y}-${month}-${m.length === 1 ? d.padStart(2, '0') : d}`;
-}
-
-/** Normalises what a person types into the search box into the same form as the terms. */
-export function searchWords(query: string): string[] {
-  return normalise(query)
-    .split(/[\s,]+/u)
-    .filter((word) => word.length > 0)
-    .map(dateTerm);
-}
-
-export function patientSearchRow(record: StoredRecord): PatientSearchRow {
-  const fields = record.fields;
-  const terms = new Set<string>();
-  if (!record.deleted) {
-    for (const word of [...nameTerms(fields.givenName), ...nameTerms(fields.familyName)]) {
-      terms.add(word);
-    }
-    const clinicNumber = typeof fields.clinicNumber === 'string' ? fields.clinicNumber : '';
-    if (clinicNumber) terms.add(clinicNumber.toLocaleLowerCase().replace(/\s+/g, ''));
-    if (typeof fields.dateOfBirth === 'string') terms.add(fields.dateOfBirth);
-  }
-  return {
-    id: record.id,
-    siteId: typeof fields.siteId === 'string' ? fields.siteId : null,
-    terms: [...terms],
-  };
-}
-
-export const DEXIE_SCHEMA_VERSION = 3;
+export const DEXIE_SCHEMA_VERSION = 4;
 
 let defaultDb: FuselightDb | null = null;
 

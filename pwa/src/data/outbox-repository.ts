@@ -6,7 +6,6 @@ import { v7 as uuidv7 } from 'uuid';
 import {
   TOMBSTONE,
   getDefaultDb,
-  patientSearchRow,
   type FuselightDb,
   type OutboxEntry,
   type StoredRecord,
@@ -67,60 +66,54 @@ export class OutboxRepository {
    */
   async discard(changeId: string): Promise<DiscardReceipt> {
     const db = this.db;
-    const receipt = await db.transaction(
-      'rw',
-      [db.records, db.outbox, db.patientSearch],
-      async () => {
-        const entry = await db.outbox.get(changeId);
-        if (!entry) throw new Error('This Outbox entry is no longer there');
-        if (entry.state !== 'rejected') {
-          throw new Error(
-            'Only an edit the server refused can be discarded; this one is still waiting to be sent',
-          );
-        }
-        await db.outbox.delete(changeId);
-        const key = [entry.collection, entry.recordId] as unknown as string;
-        const record = await db.records.get(key);
-        if (record) {
-          const others = await db.outbox
-            .where('[collection+recordId]')
-            .equals([entry.collection, entry.recordId])
-            .toArray();
-          const stillHeld = new Set(others.flatMap(entryFieldNames));
-          const fields = { ...record.fields };
-          const serverFields = { ...record.serverFields };
-          const pending = new Set(record.pendingFields);
-          let deleted = record.deleted;
-          for (const name of entryFieldNames(entry)) {
-            if (stillHeld.has(name)) continue;
-            if (name === TOMBSTONE) {
-              deleted = serverFields[TOMBSTONE] === true;
-            } else if (hasOwn(serverFields, name)) {
-              fields[name] = serverFields[name];
-            } else {
-              delete fields[name];
-            }
-            delete serverFields[name];
-            pending.delete(name);
-          }
-          if (record.version === 0 && others.length === 0) {
-            await db.records.delete(key);
-            if (entry.collection === 'patient') await db.patientSearch.delete(entry.recordId);
+    const receipt = await db.transaction('rw', [db.records, db.outbox], async () => {
+      const entry = await db.outbox.get(changeId);
+      if (!entry) throw new Error('This Outbox entry is no longer there');
+      if (entry.state !== 'rejected') {
+        throw new Error(
+          'Only an edit the server refused can be discarded; this one is still waiting to be sent',
+        );
+      }
+      await db.outbox.delete(changeId);
+      const key = [entry.collection, entry.recordId] as unknown as string;
+      const record = await db.records.get(key);
+      if (record) {
+        const others = await db.outbox
+          .where('[collection+recordId]')
+          .equals([entry.collection, entry.recordId])
+          .toArray();
+        const stillHeld = new Set(others.flatMap(entryFieldNames));
+        const fields = { ...record.fields };
+        const serverFields = { ...record.serverFields };
+        const pending = new Set(record.pendingFields);
+        let deleted = record.deleted;
+        for (const name of entryFieldNames(entry)) {
+          if (stillHeld.has(name)) continue;
+          if (name === TOMBSTONE) {
+            deleted = serverFields[TOMBSTONE] === true;
+          } else if (hasOwn(serverFields, name)) {
+            fields[name] = serverFields[name];
           } else {
-            const next: StoredRecord = {
-              ...record,
-              fields,
-              serverFields,
-              deleted,
-              pendingFields: [...pending],
-            };
-            await db.records.put(next);
-            if (entry.collection === 'patient') await db.patientSearch.put(patientSearchRow(next));
+            delete fields[name];
           }
+          delete serverFields[name];
+          pending.delete(name);
         }
-        return { entry };
-      },
-    );
+        if (record.version === 0 && others.length === 0) {
+          await db.records.delete(key);
+        } else {
+          const next: StoredRecord = {
+            ...record,
+            fields,
+            serverFields,
+            deleted,
+            pendingFields: [...pending],
+          };
+          await db.records.put(next);
+        }
+      }
+      return { entry };
+    });
     notifyDataChange({
       collections: [receipt.entry.collection],
       recordIds: [receipt.entry.recordId],
@@ -133,7 +126,7 @@ export class OutboxRepository {
   async undoDiscard(receipt: DiscardReceipt): Promise<void> {
     const db = this.db;
     const { entry } = receipt;
-    await db.transaction('rw', [db.records, db.outbox, db.patientSearch], async () => {
+    await db.transaction('rw', [db.records, db.outbox], async () => {
       await db.outbox.put(entry);
       const key = [entry.collection, entry.recordId] as unknown as string;
       const record: StoredRecord = (await db.records.get(key)) ?? {
@@ -164,7 +157,6 @@ export class OutboxRepository {
       }
       const next = { ...record, fields, serverFields, deleted, pendingFields: [...pending] };
       await db.records.put(next);
-      if (entry.collection === 'patient') await db.patientSearch.put(patientSearchRow(next));
     });
     notifyDataChange({
       collections: [entry.collection],
@@ -190,7 +182,7 @@ export class OutboxRepository {
     const validation = validateFields(collection, fields);
     if (!validation.ok) throw new RecordValidationError(collection, validation.errors);
     const newId = uuidv7();
-    await db.transaction('rw', [db.records, db.outbox, db.meta, db.patientSearch], async () => {
+    await db.transaction('rw', [db.records, db.outbox, db.meta], async () => {
       const entry = await db.outbox.get(changeId);
       if (!entry || entry.state !== 'rejected') {
         throw new Error('Only an edit the server refused can be fixed and sent again');
@@ -235,7 +227,6 @@ export class OutboxRepository {
           updatedAt: ctx.nowMs,
         };
         await db.records.put(next);
-        if (entry.collection === 'patient') await db.patientSearch.put(patientSearchRow(next));
       }
     });
     notifyDataChange({ collections: [collection], recordIds: [existing.recordId], outbox: true });

@@ -1,6 +1,7 @@
 // Every local edit goes through here: it is validated with the shared schemas, then the record,
-// its Outbox entry, the device clock and the patient search terms are written in ONE Dexie
-// transaction, so an edit is never on screen without its entry (sync-protocol.md guarantee 5).
+// its Outbox entry and the device clock are written in ONE Dexie transaction, so an edit is never
+// on screen without its entry (sync-protocol.md guarantee 5). The patient search reads the
+// database's in-memory patient directory, which follows every committed write by itself.
 import {
   jsonEqual,
   validateFields,
@@ -15,14 +16,13 @@ import {
   TOMBSTONE,
   collectionRange,
   getDefaultDb,
-  patientSearchRow,
-  searchWords,
   type FuselightDb,
   type OutboxEntry,
   type StoredRecord,
 } from './db';
 import { notifyDataChange } from './data-events';
 import { tickDeviceClock } from './device-clock';
+import { searchWords } from './patient-terms';
 
 /** Who made an edit, on which tablet, and when (the caller's clock, so tests can control it). */
 export interface EditContext {
@@ -66,9 +66,6 @@ export class RecordNotFoundError extends Error {
 }
 
 export type PlacementField = 'patientId' | 'visitId';
-
-/** Search rows read at a time while checking the second and later typed words. */
-const SEARCH_ROW_CHUNK = 200;
 
 export interface ListFilter {
   /** Include tombstoned records (default false). */
@@ -225,60 +222,26 @@ export class RecordsRepository {
 
   /**
    * Patients whose name words, clinic number or date of birth start with every word typed
-   * (e.g. "oka 2016", "2016-04-09", "9/4/2016"), through the multi-entry `terms` index, in the
-   * index's order. The first word's matches are read as primary keys only (one indexed read, no
-   * cursor), made distinct here; the other words and the site are checked on their search rows.
+   * (e.g. "oka 2016", "2016-04-09", "9/4/2016"): the first word a prefix of some term, each
+   * further word a prefix of some term of the same patient; each patient once, in the order of
+   * their first matching term. Answered from the database's patient directory in memory (no
+   * IndexedDB read once it is loaded; a search before that waits for the load). The records
+   * returned are the directory's own: read them, never change them in place.
    */
   async searchPatients(
     query: string,
     options: { limit?: number; siteId?: string } = {},
   ): Promise<LocalRecord<'patient'>[]> {
-    const [first, ...rest] = searchWords(query);
-    if (first === undefined) return [];
-    const limit = options.limit ?? 50;
-    const narrowed = rest.length > 0 || options.siteId !== undefined;
-    const candidates = await this.patientIdsByTermPrefix(first, narrowed ? null : limit);
-    let matched = candidates.slice(0, limit);
-    if (narrowed) {
-      matched = [];
-      for (let i = 0; i < candidates.length && matched.length < limit; i += SEARCH_ROW_CHUNK) {
-        const rows = await this.db.patientSearch.bulkGet(candidates.slice(i, i + SEARCH_ROW_CHUNK));
-        for (const row of rows) {
-          if (
-            row &&
-            (options.siteId === undefined || row.siteId === options.siteId) &&
-            rest.every((word) => row.terms.some((term) => term.startsWith(word)))
-          ) {
-            matched.push(row.id);
-            if (matched.length === limit) break;
-          }
-        }
-      }
-    }
-    const records = await this.db.records.bulkGet(
-      matched.map((id) => ['patient', id] as unknown as string),
-    );
-    return records.filter(
-      (record): record is StoredRecord => record !== undefined && !record.deleted,
-    ) as LocalRecord<'patient'>[];
+    const words = searchWords(query);
+    if (words.length === 0) return [];
+    const search: { limit: number; siteId?: string } = { limit: options.limit ?? 50 };
+    if (options.siteId !== undefined) search.siteId = options.siteId;
+    return (await this.db.patientDirectory.search(words, search)) as LocalRecord<'patient'>[];
   }
 
-  /**
-   * Ids of patients with a term starting with `prefix`, each once, in index order; `wanted`
-   * (when given) bounds the read: first exactly that many index entries, which are that many
-   * patients unless one has two matching terms ("ada adair"); then four times as many, since a
-   * patient has only a few terms; and the whole range only when even that was short.
-   */
-  private async patientIdsByTermPrefix(prefix: string, wanted: number | null): Promise<string[]> {
-    const range = () => this.db.patientSearch.where('terms').startsWith(prefix);
-    if (wanted !== null) {
-      for (const bound of [wanted, wanted * 4]) {
-        const keys = await range().limit(bound).primaryKeys();
-        const ids = [...new Set(keys)];
-        if (ids.length >= wanted || keys.length < bound) return ids;
-      }
-    }
-    return [...new Set(await range().primaryKeys())];
+  /** Starts loading the patient directory in the background (a screen that will search). */
+  warmPatientSearch(): void {
+    this.db.patientDirectory.warm();
   }
 
   private async writeEdit(
@@ -289,86 +252,81 @@ export class RecordsRepository {
     creating: boolean,
   ): Promise<void> {
     const db = this.db;
-    const written = await db.transaction(
-      'rw',
-      [db.records, db.outbox, db.meta, db.patientSearch],
-      async () => {
-        const key = [collection, id] as unknown as string;
-        const existing = await db.records.get(key);
-        if (creating && existing) throw new Error(`A ${collection} record ${id} already exists`);
-        if (!creating && !existing) throw new RecordNotFoundError(collection, id);
-        const base: StoredRecord = existing ?? {
-          collection,
-          id,
-          version: 0,
-          deleted: false,
-          fields: {},
-          conflicts: [],
-          pendingFields: [],
-          serverFields: {},
+    const written = await db.transaction('rw', [db.records, db.outbox, db.meta], async () => {
+      const key = [collection, id] as unknown as string;
+      const existing = await db.records.get(key);
+      if (creating && existing) throw new Error(`A ${collection} record ${id} already exists`);
+      if (!creating && !existing) throw new RecordNotFoundError(collection, id);
+      const base: StoredRecord = existing ?? {
+        collection,
+        id,
+        version: 0,
+        deleted: false,
+        fields: {},
+        conflicts: [],
+        pendingFields: [],
+        serverFields: {},
+        updatedAt: ctx.nowMs,
+      };
+      const changed: Record<string, unknown> = {};
+      for (const [field, value] of Object.entries(edit.fields)) {
+        if (creating || !hasOwn(base.fields, field) || !jsonEqual(base.fields[field], value)) {
+          changed[field] = value;
+        }
+      }
+      const deleted =
+        edit.deleted !== undefined && (creating || edit.deleted !== base.deleted)
+          ? edit.deleted
+          : undefined;
+      if (!creating && Object.keys(changed).length === 0 && deleted === undefined) return false;
+
+      const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
+      const record = applyEditToRecord(base, changed, deleted, ctx.nowMs);
+      await db.records.put(record);
+
+      const latest = await db.outbox
+        .where('[collection+recordId]')
+        .equals([collection, id])
+        .sortBy('seq')
+        .then((entries) => entries.at(-1));
+      const canCoalesce =
+        latest !== undefined &&
+        latest.state === 'pending' &&
+        latest.attempts === 0 &&
+        latest.authorId === ctx.authorId &&
+        latest.deviceId === ctx.deviceId &&
+        latest.baseVersion === base.version;
+      if (canCoalesce) {
+        const merged: OutboxEntry = {
+          ...latest,
+          fields: { ...latest.fields, ...changed },
+          hlc,
           updatedAt: ctx.nowMs,
         };
-        const changed: Record<string, unknown> = {};
-        for (const [field, value] of Object.entries(edit.fields)) {
-          if (creating || !hasOwn(base.fields, field) || !jsonEqual(base.fields[field], value)) {
-            changed[field] = value;
-          }
-        }
-        const deleted =
-          edit.deleted !== undefined && (creating || edit.deleted !== base.deleted)
-            ? edit.deleted
-            : undefined;
-        if (!creating && Object.keys(changed).length === 0 && deleted === undefined) return false;
-
-        const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
-        const record = applyEditToRecord(base, changed, deleted, ctx.nowMs);
-        await db.records.put(record);
-
-        const latest = await db.outbox
-          .where('[collection+recordId]')
-          .equals([collection, id])
-          .sortBy('seq')
-          .then((entries) => entries.at(-1));
-        const canCoalesce =
-          latest !== undefined &&
-          latest.state === 'pending' &&
-          latest.attempts === 0 &&
-          latest.authorId === ctx.authorId &&
-          latest.deviceId === ctx.deviceId &&
-          latest.baseVersion === base.version;
-        if (canCoalesce) {
-          const merged: OutboxEntry = {
-            ...latest,
-            fields: { ...latest.fields, ...changed },
-            hlc,
-            updatedAt: ctx.nowMs,
-          };
-          if (deleted !== undefined) merged.deleted = deleted;
-          await db.outbox.put(merged);
-        } else {
-          const entry: OutboxEntry = {
-            changeId: uuidv7(),
-            seq: await nextSeq(db),
-            collection,
-            recordId: id,
-            baseVersion: base.version,
-            hlc,
-            fields: changed,
-            authorId: ctx.authorId,
-            deviceId: ctx.deviceId,
-            createdAt: ctx.nowMs,
-            updatedAt: ctx.nowMs,
-            state: 'pending',
-            error: null,
-            attempts: 0,
-          };
-          if (deleted !== undefined) entry.deleted = deleted;
-          await db.outbox.add(entry);
-        }
-        if (collection === 'patient') await db.patientSearch.put(patientSearchRow(record));
-        return true;
-      },
-    );
+        if (deleted !== undefined) merged.deleted = deleted;
+        await db.outbox.put(merged);
+      } else {
+        const entry: OutboxEntry = {
+          changeId: uuidv7(),
+          seq: await nextSeq(db),
+          collection,
+          recordId: id,
+          baseVersion: base.version,
+          hlc,
+          fields: changed,
+          authorId: ctx.authorId,
+          deviceId: ctx.deviceId,
+          createdAt: ctx.nowMs,
+          updatedAt: ctx.nowMs,
+          state: 'pending',
+          error: null,
+          attempts: 0,
+        };
+        if (deleted !== undefined) entry.deleted = deleted;
+        await db.outbox.add(entry);
+      }
+      return true;
+    });
     if (written) notifyDataChange({ collections: [collection], recordIds: [id], outbox: true });
   }
 }

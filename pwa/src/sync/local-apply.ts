@@ -7,13 +7,7 @@
 // - the pull cursor advances in the same transaction as the last records of its page, so a page
 //   is either stored with its cursor or pulled again (guarantee 4 on the device).
 import type { CollectionName, PulledRecord, PushResult } from '@fuselight/shared';
-import {
-  TOMBSTONE,
-  patientSearchRow,
-  type FuselightDb,
-  type OutboxEntry,
-  type StoredRecord,
-} from '../data/db';
+import { TOMBSTONE, type FuselightDb, type OutboxEntry, type StoredRecord } from '../data/db';
 import { receiveIntoDeviceClock } from '../data/device-clock';
 
 export const CURSOR_KEY = 'pullCursor';
@@ -75,7 +69,7 @@ export async function applyPushResults(
   const byId = new Map(sent.map((entry) => [entry.changeId, entry]));
   const summary: PushApplySummary = { accepted: 0, rejected: 0, collections: [] };
   const touched = new Set<CollectionName>();
-  await db.transaction('rw', [db.records, db.outbox, db.patientSearch], async () => {
+  await db.transaction('rw', [db.records, db.outbox], async () => {
     for (const result of results) {
       const entry = byId.get(result.changeId);
       if (!entry) continue;
@@ -142,8 +136,8 @@ export interface PullApplyTimings {
   mergeMs: number;
   /** Asking for the records' puts, then waiting until every write of the chunk is done. */
   writeMs: number;
-  /** Building and asking for the patient search rows and the cursor (their writes: writeMs). */
-  searchIndexMs: number;
+  /** Asking for the cursor and device clock writes with the last chunk (their writes: writeMs). */
+  cursorMs: number;
   yieldMs: number;
 }
 
@@ -230,7 +224,7 @@ export async function applyPullPage(
     readMs: 0,
     mergeMs: 0,
     writeMs: 0,
-    searchIndexMs: 0,
+    cursorMs: 0,
     yieldMs: 0,
   };
   const touched = new Set<CollectionName>();
@@ -241,7 +235,7 @@ export async function applyPullPage(
     const yieldStarted = options.now();
     await options.yieldToUi();
     timings.yieldMs += options.now() - yieldStarted;
-    await db.transaction('rw', [db.records, db.outbox, db.meta, db.patientSearch], async () => {
+    await db.transaction('rw', [db.records, db.outbox, db.meta], async () => {
       let started = options.now();
       // A fresh tablet with nothing in its Outbox has nothing local to protect.
       const skipRead = options.freshDevice && (await db.outbox.count()) === 0;
@@ -260,18 +254,14 @@ export async function applyPullPage(
         }
       }
       timings.mergeMs += options.now() - started;
-      // The records, their search rows and (with the last chunk) the cursor are asked for
-      // together and awaited once: IndexedDB carries out a transaction's requests in order
-      // anyway, and the search rows are built while the records are being written instead of
-      // after.
+      // The records and (with the last chunk) the cursor are asked for together and awaited
+      // once: IndexedDB carries out a transaction's requests in order anyway. The patient
+      // search follows the records by itself when the transaction commits.
       started = options.now();
       const writes: Promise<unknown>[] = [];
       if (merged.length > 0) writes.push(db.records.bulkPut(merged));
       timings.writeMs += options.now() - started;
       started = options.now();
-      const patients = merged.filter((record) => record.collection === 'patient');
-      if (patients.length > 0)
-        writes.push(db.patientSearch.bulkPut(patients.map(patientSearchRow)));
       if (last) {
         const stamp =
           options.greatestStamp === undefined ? greatestStamp(records) : options.greatestStamp;
@@ -282,7 +272,7 @@ export async function applyPullPage(
         }
         writes.push(writeCursor(db, cursor));
       }
-      timings.searchIndexMs += options.now() - started;
+      timings.cursorMs += options.now() - started;
       started = options.now();
       await Promise.all(writes);
       timings.writeMs += options.now() - started;

@@ -166,7 +166,13 @@ describe('a pull with a malformed page', () => {
       'records.2.id: id must be a UUID',
     );
     expect(await db.records.count()).toBe(3);
-    expect(await db.patientSearch.count()).toBe(3);
+    // The search holds the three stored patients and none of the refused page.
+    const found = await new RecordsRepository(db).searchPatients('okafor');
+    expect(found.map((patient) => patient.fields.familyName).sort()).toEqual([
+      'Okafor1',
+      'Okafor2',
+      'Okafor3',
+    ]);
     expect(await readCursor(db)).toBe(3);
   });
 

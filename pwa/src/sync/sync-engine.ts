@@ -329,7 +329,7 @@ export class SyncEngine {
       readMs: 0,
       mergeMs: 0,
       writeMs: 0,
-      searchIndexMs: 0,
+      cursorMs: 0,
       yieldMs: 0,
       totalMs: 0,
       pages: 0,
@@ -698,7 +698,7 @@ export class SyncEngine {
       timings.readMs += applied.timings.readMs;
       timings.mergeMs += applied.timings.mergeMs;
       timings.writeMs += applied.timings.writeMs;
-      timings.searchIndexMs += applied.timings.searchIndexMs;
+      timings.cursorMs += applied.timings.cursorMs;
       timings.yieldMs += applied.timings.yieldMs;
       timings.pages += 1;
       timings.records += page.records.length;
