@@ -87,9 +87,9 @@ export function usePatientLookup(query: string) {
 }
 
 /**
- * Starts a typed query's IndexedDB read from the keystroke itself, before React renders it, so
- * the read runs while the box re-renders instead of after (the query hook then finds it in
- * flight and waits for it rather than reading again).
+ * Starts a typed query's search from the keystroke itself, before React renders it, so that its
+ * answer (from memory, a few microtasks away) reaches the query cache in the keystroke's own task
+ * (the query hook then finds it there, or in flight, rather than searching again).
  */
 export function usePatientLookupPrefetch(): (query: string) => void {
   const charting = useCharting();
@@ -101,6 +101,25 @@ export function usePatientLookupPrefetch(): (query: string) => void {
     },
     [charting, queryClient],
   );
+}
+
+/**
+ * Loads the patient search's directory in idle time once `ready` (the screen's first content is
+ * on screen), so that the first search is answered from memory; a search typed before that
+ * waits for the load instead.
+ */
+export function usePatientLookupWarmup(ready: boolean): void {
+  const charting = useCharting();
+  useEffect(() => {
+    if (!ready) return;
+    const warm = () => charting.warmPatientSearch();
+    if (typeof requestIdleCallback === 'function') {
+      const handle = requestIdleCallback(warm, { timeout: 2_000 });
+      return () => cancelIdleCallback(handle);
+    }
+    const handle = setTimeout(warm, 200);
+    return () => clearTimeout(handle);
+  }, [charting, ready]);
 }
 
 export function usePatient(patientId: string | undefined) {

@@ -89,10 +89,15 @@ export class ChartingRepository {
 
   /**
    * Patients on the tablet matching what was typed: name words, clinic number and date of birth
-   * (whole or in part, "2016-04-09" or "9/4/2016"), through the search index.
+   * (whole or in part, "2016-04-09" or "9/4/2016"), from the patient directory in memory.
    */
   async searchPatients(query: string, limit = 30): Promise<LocalRecord<'patient'>[]> {
     return this.records.searchPatients(query, { limit });
+  }
+
+  /** Starts loading what the patient search reads, in the background. */
+  warmPatientSearch(): void {
+    this.records.warmPatientSearch();
   }
 
   async patient(patientId: string): Promise<LocalRecord<'patient'> | null> {

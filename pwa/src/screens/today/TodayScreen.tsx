@@ -20,6 +20,7 @@ import {
   useCharting,
   usePatientLookup,
   usePatientLookupPrefetch,
+  usePatientLookupWarmup,
   useTodaysVisits,
   type TodayEntry,
 } from '../../data/charting';
@@ -166,11 +167,14 @@ function useRowLinkNavigation(): (event: MouseEvent<HTMLElement>) => void {
 function PatientSearch({ siteId, today }: { siteId: string | null; today: string }) {
   const inputId = useId();
   const [query, setQuery] = useState('');
-  // No deferred value: the lookup is one indexed read, and its 30 rows render within a frame.
+  // No deferred value: the lookup is answered from memory, and its 30 rows render within a frame.
   const results = usePatientLookup(query);
   const startLookup = usePatientLookupPrefetch();
   const followRowLink = useRowLinkNavigation();
   const todays = useTodaysVisits(siteId, today);
+  // The search's patient directory loads once today's list is read, not before: cold start
+  // comes first.
+  usePatientLookupWarmup(todays.fetchStatus === 'idle');
   const charting = useCharting();
   const editContext = useEditContext();
   const { user } = useSession();
