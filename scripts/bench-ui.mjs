@@ -2,10 +2,14 @@
 // `npm run bench:ui`: the production PWA build served by a small static server, in Debian's
 // Chromium. Prints (does not assert):
 //   - cold start to an interactive Today screen with the network off (service worker cache);
+//   - the patient directory (the search, held in memory): its load time for 20,000 patients after
+//     Today is interactive, the longest task meanwhile, and the page's JS heap after garbage
+//     collection with those patients held beside the same page with none;
 //   - local patient search latency over 20,000 patients through the Today screen (typed query to
 //     its own results in the DOM, as a mutation observer sees the commit; and to the next
-//     animation frame, which paints them), beside a bare Dexie indexed prefix query on the same
-//     database, measured in the same run.
+//     animation frame, which paints them), beside a bare Dexie indexed prefix query over the same
+//     patients' terms (a database of its own, since the app keeps no search index) followed by a
+//     bulkGet of their records from the app's database, measured in the same run.
 // The tablet's session and the patients are written straight into IndexedDB with Dexie (its
 // UMD build injected into the page), in the shapes the app's own stores use.
 //   node scripts/bench-ui.mjs [--no-build] [--patients 20000] [--runs 7] [--searches 15]
@@ -103,6 +107,37 @@ const median = (values) => {
   return sorted[Math.floor(sorted.length / 2)];
 };
 const fmt = (ms) => `${ms.toFixed(1)} ms`;
+const mb = (bytes) => `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+const DIRECTORY_LOAD = 'fuselight:patient-directory-load';
+
+/** The User Timing entry of the patient directory's load, once there is one. */
+async function directoryLoad(page) {
+  const entry = await page.waitForFunction(
+    (name) => {
+      const [found] = performance.getEntriesByName(name);
+      return found
+        ? { start: found.startTime, ms: found.duration, patients: found.detail?.patients ?? null }
+        : false;
+    },
+    DIRECTORY_LOAD,
+    { timeout: 60_000, polling: 50 },
+  );
+  return entry.jsonValue();
+}
+
+/** The page's JS heap in use after a full garbage collection (Chromium's DevTools protocol). */
+async function heapAfterGc(page) {
+  const cdp = await page.context().newCDPSession(page);
+  try {
+    await cdp.send('HeapProfiler.enable');
+    await cdp.send('HeapProfiler.collectGarbage');
+    await cdp.send('HeapProfiler.collectGarbage');
+    const { usedSize } = await cdp.send('Runtime.getHeapUsage');
+    return usedSize;
+  } finally {
+    await cdp.detach();
+  }
+}
 
 try {
   // 1. First online visit: the service worker precaches the shell; the app creates its stores.
@@ -149,6 +184,9 @@ try {
   await page.waitForSelector('input[type="search"]');
   await page.getByText('No visits booked or seen today').waitFor();
   await page.addScriptTag({ path: join(root, 'node_modules', 'dexie', 'dist', 'dexie.js') });
+  // The same screen holding no patients: the heap figure's baseline.
+  const emptyLoad = await directoryLoad(page);
+  const emptyHeap = await heapAfterGc(page);
   await page.evaluate(
     async ({ site, count }) => {
       const Dexie = window.Dexie;
@@ -171,7 +209,7 @@ try {
       ];
       const family = ['Alder', 'Birch', 'Cedar', 'Dunmore', 'Elwood', 'Fairley', 'Garth', 'Hollin'];
       const rows = [];
-      const search = [];
+      const terms = [];
       for (let i = 0; i < count; i += 1) {
         const id = `0190c6a1-0000-7000-8000-${i.toString(16).padStart(12, '0')}`;
         const g = given[i % given.length];
@@ -195,15 +233,17 @@ try {
           serverFields: {},
           updatedAt: now,
         });
-        search.push({
-          id,
-          siteId: site,
-          terms: [g.toLowerCase(), f.toLowerCase(), `bn-${i}`, dob],
-        });
+        // The terms the app's directory makes of these fields (patient-terms.ts).
+        terms.push({ id, terms: [g.toLowerCase(), f.toLowerCase(), `bn-${i}`, dob] });
       }
       await records.table('records').bulkPut(rows);
-      await records.table('patientSearch').bulkPut(search);
       records.close();
+      // The bare query's own index: the same terms in a multi-entry index, as a persisted
+      // search table would hold them.
+      const bare = new Dexie('fuselight-bench-bare');
+      bare.version(1).stores({ patients: 'id, *terms' });
+      await bare.table('patients').bulkPut(terms);
+      bare.close();
     },
     { site: SITE, count: PATIENTS },
   );
@@ -215,6 +255,17 @@ try {
   const starts = [];
   for (let i = 0; i < RUNS; i += 1) {
     const p = await context.newPage();
+    if (i === RUNS - 1) {
+      // The last page also notes long tasks, to see what the directory's load costs the screen.
+      await p.addInitScript(() => {
+        window.benchLongTasks = [];
+        new PerformanceObserver((list) => {
+          for (const entry of list.getEntries()) {
+            window.benchLongTasks.push({ start: entry.startTime, ms: entry.duration });
+          }
+        }).observe({ type: 'longtask', buffered: true });
+      });
+    }
     await p.goto(`${origin}/today`);
     const at = await p.waitForFunction(
       () => {
@@ -228,9 +279,20 @@ try {
     starts.push(await at.jsonValue());
     if (i < RUNS - 1) await p.close();
     else {
-      // 4. Search latency: type a query, time until its results are listed; beside it the bare
-      //    Dexie query for the same text, run in the same page right before or after it.
+      // 4. The patient directory loads in idle time once Today is up: its time, the longest
+      //    task meanwhile, and the heap it takes (against the same screen with no patients).
       await p.addScriptTag({ path: join(root, 'node_modules', 'dexie', 'dist', 'dexie.js') });
+      const load = await directoryLoad(p);
+      const interactiveAt = starts.at(-1);
+      const loadTasks = await p.evaluate(
+        ({ start, end }) =>
+          window.benchLongTasks.filter((task) => task.start < end && task.start + task.ms > start),
+        { start: load.start, end: load.start + load.ms },
+      );
+      const fullHeap = await heapAfterGc(p);
+
+      // 5. Search latency: type a query, time until its results are listed; beside it the bare
+      //    Dexie query for the same text, run in the same page right before or after it.
       const typeAndWait = (query) =>
         p.evaluate(async (typed) => {
           const box = document.querySelector('input[type="search"]');
@@ -274,22 +336,32 @@ try {
           await new Promise((r) => requestAnimationFrame(r));
           return [domAt - t0, performance.now() - t0];
         }, query);
-      // The bare query: Dexie's indexed prefix read of 30 search rows, then their records, with
-      // no screen, no query cache and no rendering.
+      // The bare query: Dexie's indexed prefix read of 30 rows of the same patients' terms, then
+      // their records from the app's database, with no screen, no query cache and no rendering.
       const bareQuery = (query) =>
         p.evaluate(async (q) => {
           const db = (window.benchDb ??= new window.Dexie('fuselight'));
           if (!db.isOpen()) await db.open();
+          let bare = window.benchBare;
+          if (!bare) {
+            bare = window.benchBare = new window.Dexie('fuselight-bench-bare');
+            bare.version(1).stores({ patients: 'id, *terms' });
+          }
+          if (!bare.isOpen()) await bare.open();
           await new Promise((r) => setTimeout(r, 100));
           const t0 = performance.now();
-          const rows = await db
-            .table('patientSearch')
+          const rows = await bare
+            .table('patients')
             .where('terms')
             .startsWith(q)
             .limit(30)
             .toArray();
-          await db.table('records').bulkGet(rows.map((r) => ['patient', r.id]));
-          return performance.now() - t0;
+          const found = await db.table('records').bulkGet(rows.map((r) => ['patient', r.id]));
+          const ms = performance.now() - t0;
+          if (found.length === 0 || found.some((record) => !record)) {
+            throw new Error(`the bare query found no records for ${q}`);
+          }
+          return ms;
         }, query);
       // Measurement hygiene, so that the ratio compares the two reads and not the machine's
       // moment: one untimed warm-up of each first (the first call of either pays for compiling
@@ -327,11 +399,19 @@ try {
         frames.push(frame);
         if (i % 2 === 0) bare.push(await bareQuery(query));
       }
-      await p.evaluate(() => window.benchDb.close());
+      await p.evaluate(() => {
+        window.benchDb.close();
+        window.benchBare.close();
+      });
       const count = await p.evaluate(async () => {
-        const db = new window.Dexie('fuselight');
+        const { Dexie } = window;
+        const db = new Dexie('fuselight');
         await db.open();
-        const n = await db.table('patientSearch').count();
+        const n = await db
+          .table('records')
+          .where('[collection+id]')
+          .between(['patient', Dexie.minKey], ['patient', Dexie.maxKey])
+          .count();
         db.close();
         return n;
       });
@@ -340,6 +420,13 @@ try {
       );
       console.log(
         `  cold start to an interactive Today screen, offline: median ${fmt(median(starts))} (runs: ${starts.map(fmt).join(', ')})`,
+      );
+      console.log(
+        `  patient directory load (${load.patients} patients): ${fmt(load.ms)}, starting ${fmt(load.start - interactiveAt)} after Today was interactive; ` +
+          `${loadTasks.length} long tasks meanwhile${loadTasks.length > 0 ? `, longest ${fmt(Math.max(...loadTasks.map((t) => t.ms)))}` : ''}`,
+      );
+      console.log(
+        `  JS heap after GC: ${mb(fullHeap)} holding ${load.patients} patients, ${mb(emptyHeap)} with ${emptyLoad.patients} (the directory and its records: ≈ ${mb(fullHeap - emptyHeap)})`,
       );
       console.log(
         `  Today search, typed query to results in the DOM:    median ${fmt(median(ui))} (runs: ${ui.map(fmt).join(', ')})`,
