@@ -51,7 +51,17 @@ export interface KnownSite {
   name: string;
   kind: 'clinic' | 'outreach';
   timeZone: string;
+  /** The site's address for letterheads; absent when the server did not give one. */
+  address?: string | null;
   /** Epoch ms of the answer it came from. */
+  fetchedAt: number;
+}
+
+/** A colleague's name as the server last gave it (GET /api/me/colleagues), kept for offline. */
+export interface KnownColleague {
+  id: string;
+  name: string;
+  role: 'orthoptist' | 'supervisor' | 'admin';
   fetchedAt: number;
 }
 
@@ -66,6 +76,7 @@ export class AuthDb extends Dexie {
   pins!: EntityTable<PinRecord, 'userId'>;
   settings!: EntityTable<AuthSetting, 'key'>;
   sites!: EntityTable<KnownSite, 'id'>;
+  colleagues!: EntityTable<KnownColleague, 'id'>;
 
   constructor(name = AUTH_DB_NAME) {
     super(name);
@@ -81,6 +92,14 @@ export class AuthDb extends Dexie {
       pins: 'userId',
       settings: 'key',
       sites: 'id',
+    });
+    this.version(3).stores({
+      tablet: 'key',
+      people: 'userId',
+      pins: 'userId',
+      settings: 'key',
+      sites: 'id',
+      colleagues: 'id',
     });
   }
 }

@@ -171,6 +171,19 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
             SITES.filter((site) => person?.siteIds.includes(site.id)),
           );
         }
+        case 'GET /api/me/colleagues': {
+          if (server.deviceState === 'revoked') return revoked();
+          if (server.offline) throw new TypeError('Failed to fetch');
+          if (!caller) return json(401, { message: 'Sign in first.' });
+          const mine = byId.get(caller)?.siteIds ?? [];
+          return json(
+            200,
+            [...byId.values()]
+              .filter((p) => p.siteIds.some((site) => mine.includes(site)))
+              .map((p) => ({ id: p.id, name: p.name, role: p.role }))
+              .sort((a, b) => a.name.localeCompare(b.name)),
+          );
+        }
         case 'POST /api/devices/heartbeat':
           if (server.deviceState === 'revoked') return revoked();
           return caller ? json(201, { ok: true }) : json(401, { message: 'Sign in first.' });

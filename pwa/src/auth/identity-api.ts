@@ -15,8 +15,18 @@ export const mySiteSchema = z.object({
   name: z.string().min(1),
   kind: z.enum(['clinic', 'outreach']),
   timeZone: z.string().min(1),
+  /** Absent from servers older than the field; null when the site has none. */
+  address: z.string().nullable().optional(),
 });
 export type MySite = z.infer<typeof mySiteSchema>;
+
+/** One person of GET /api/me/colleagues: someone who shares a site with the signed-in person. */
+export const colleagueSchema = z.object({
+  id: z.uuid(),
+  name: z.string().min(1),
+  role: z.enum(['orthoptist', 'supervisor', 'admin']),
+});
+export type Colleague = z.infer<typeof colleagueSchema>;
 
 export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
 
@@ -211,6 +221,13 @@ export class IdentityApi {
   /** The sites the signed-in person belongs to, with their names (any role). */
   async mySites(token: string): Promise<MySite[]> {
     return z.array(mySiteSchema).parse(await this.request('GET', '/api/me/sites', { token }));
+  }
+
+  /** The people who share a site with the signed-in person, to name who signed what. */
+  async colleagues(token: string): Promise<Colleague[]> {
+    return z
+      .array(colleagueSchema)
+      .parse(await this.request('GET', '/api/me/colleagues', { token }));
   }
 
   enrol(code: string): Promise<EnrolResponse> {

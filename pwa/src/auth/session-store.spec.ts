@@ -213,6 +213,44 @@ describe('site names', () => {
   });
 });
 
+describe('colleague names', () => {
+  it('keeps the names of the people who share the person’s sites, and shows them offline after a restart', async () => {
+    const { store, server, make } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    await store.signIn({ email: TOMASZ.email, password: PASSWORDS[TOMASZ.email]! });
+    await store.refreshSites();
+    expect(server.calls.map((c) => c.route)).toContain('GET /api/me/colleagues');
+    expect(store.getSnapshot().colleagues[AMARA.id]).toMatchObject({
+      name: 'Amara Lindqvist',
+      role: 'orthoptist',
+    });
+
+    server.offline = true;
+    const restarted = make();
+    await restarted.load();
+    await restarted.refreshSites();
+    expect(
+      Object.values(restarted.getSnapshot().colleagues)
+        .map((p) => p.name)
+        .sort(),
+    ).toEqual(['Amara Lindqvist', 'Rosalind Achterberg', 'Tomasz Okonjo']);
+  });
+
+  it('forgets them when the tablet is erased', async () => {
+    const { store, server } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    await store.signIn({ email: TOMASZ.email, password: PASSWORDS[TOMASZ.email]! });
+    await store.refreshSites();
+    expect(Object.keys(store.getSnapshot().colleagues).length).toBeGreaterThan(0);
+    server.deviceState = 'revoked';
+    await store.refreshSites();
+    expect(store.getSnapshot().colleagues).toEqual({});
+    expect(store.getSnapshot().sites).toEqual({});
+  });
+});
+
 describe('GET /api/me/sites on the tablet', () => {
   it('refuses an answer that is not a list of sites, naming the field', async () => {
     const api = new IdentityApi({

@@ -5,6 +5,7 @@
 import type { LoginRequest, SessionUser } from '@fuselight/shared';
 import {
   AuthDb,
+  type KnownColleague,
   type KnownSite,
   type PersonSession,
   type PinRecord,
@@ -76,6 +77,8 @@ export interface AuthSnapshot {
   pinOfferFor: string | null;
   /** Site names by id, as the server last gave them (kept in IndexedDB, so known offline). */
   sites: Readonly<Record<string, KnownSite>>;
+  /** Names of the people who share a site with those signed in here, by id (kept offline). */
+  colleagues: Readonly<Record<string, KnownColleague>>;
 }
 
 export type UnlockResult =
@@ -126,6 +129,7 @@ export class SessionStore {
   private loaded = false;
   private pinOfferFor: string | null = null;
   private sites = new Map<string, KnownSite>();
+  private colleagues = new Map<string, KnownColleague>();
   private erasing: Promise<void> | null = null;
   private readonly refreshing = new Map<string, Promise<string | null>>();
   private readonly listeners = new Set<() => void>();
@@ -199,6 +203,7 @@ export class SessionStore {
       policy: this.policy,
       pinOfferFor: this.pinOfferFor,
       sites: Object.fromEntries(this.sites),
+      colleagues: Object.fromEntries(this.colleagues),
     };
   }
 
@@ -206,15 +211,17 @@ export class SessionStore {
 
   async load(): Promise<void> {
     this.erasure = readErasureNote();
-    const [tablet, people, pins, active, policy, sites] = await Promise.all([
+    const [tablet, people, pins, active, policy, sites, colleagues] = await Promise.all([
       this.db.tablet.get('tablet'),
       this.db.people.toArray(),
       this.db.pins.toArray(),
       this.db.settings.get(ACTIVE_KEY),
       this.db.settings.get(POLICY_KEY),
       this.db.sites.toArray(),
+      this.db.colleagues.toArray(),
     ]);
     this.sites = new Map(sites.map((site) => [site.id, site]));
+    this.colleagues = new Map(colleagues.map((person) => [person.id, person]));
     this.tablet = tablet ?? null;
     this.people = new Map(people.map((p) => [p.userId, p]));
     this.pins = new Map(pins.map((p) => [p.userId, p]));
@@ -455,8 +462,10 @@ export class SessionStore {
   // ---- site names ---------------------------------------------------------------------------
 
   /**
-   * Asks the server for the active person's sites and keeps their names. Offline, or refused,
-   * the names last fetched stay (a person's sites come from their session, not from this list).
+   * Asks the server for the active person's sites and colleagues and keeps their names (and the
+   * sites' addresses). Offline, or refused, the names last fetched stay (a person's sites come
+   * from their session, not from this list). Each answer is kept on its own: an older server
+   * without the colleagues route still names the sites.
    */
   async refreshSites(): Promise<void> {
     const userId = this.activeUserId;
@@ -474,6 +483,18 @@ export class SessionStore {
     const known = answer.map((site): KnownSite => ({ ...site, fetchedAt }));
     await this.db.sites.bulkPut(known);
     for (const site of known) this.sites.set(site.id, site);
+    this.publish();
+
+    let people: Awaited<ReturnType<IdentityApi['colleagues']>>;
+    try {
+      people = await this.api.colleagues(token);
+    } catch (error) {
+      await this.eraseIfTold(error);
+      return;
+    }
+    const colleagues = people.map((person): KnownColleague => ({ ...person, fetchedAt }));
+    await this.db.colleagues.bulkPut(colleagues);
+    for (const person of colleagues) this.colleagues.set(person.id, person);
     this.publish();
   }
 
@@ -670,6 +691,7 @@ export class SessionStore {
     this.people.clear();
     this.pins.clear();
     this.sites.clear();
+    this.colleagues.clear();
     this.waiting.clear();
     this.activeUserId = null;
     this.retirement = null;

@@ -16,10 +16,13 @@ import { DisputeMark, VisitStatusBadge } from './ScreenState';
 export function SignPanel({
   bundle,
   blockedReason,
+  who,
 }: {
   bundle: VisitBundle;
   /** Why signing must wait (unsaved or refused values), or null. */
   blockedReason: string | null;
+  /** A person's name as this screen shows it ("you", a colleague's name, or a stand-in). */
+  who: (id: string | null | undefined) => string;
 }) {
   const { user } = useSession();
   const charting = useCharting();
@@ -45,9 +48,6 @@ export function SignPanel({
       setBusy(false);
     }
   };
-
-  const who = (id: string | null | undefined) =>
-    id && user && id === user.id ? 'you' : (id ?? 'unknown');
 
   return (
     <section className="flc-panel" aria-labelledby="sign-title" id="section-sign">

@@ -219,6 +219,36 @@ describe('signing, countersigning and addenda', () => {
     expect(plan!.fields.impression).toBe('Controlled exophoria');
   });
 
+  it('names who signed: "you", a colleague by the name the tablet holds, or a stand-in for someone unknown', async () => {
+    const { repos, visitId, charting } = await setupVisit();
+    await charting.sign(visitId, ORTHOPTIST, editContext());
+    const sign = () => sectionNamed('Sign and Addenda');
+
+    const asSigner = renderVisit(repos, visitId, ORTHOPTIST);
+    await waitFor(() => expect(within(sign()).getByText(/^Signed by you at/)).toBeTruthy());
+    asSigner.unmount();
+
+    const unknown = renderVisit(repos, visitId, SUPERVISOR);
+    await waitFor(() =>
+      expect(
+        within(sign()).getByText(/^Signed by a colleague not yet known to this tablet \(…00d001\)/),
+      ).toBeTruthy(),
+    );
+    unknown.unmount();
+
+    const authDb = await authDbWith();
+    await authDb.colleagues.put({
+      id: ORTHOPTIST.id,
+      name: 'Isolde Farrant',
+      role: 'orthoptist',
+      fetchedAt: Date.now(),
+    });
+    renderVisit(repos, visitId, SUPERVISOR, authDb);
+    await waitFor(() =>
+      expect(within(sign()).getByText(/^Signed by Isolde Farrant at/)).toBeTruthy(),
+    );
+  });
+
   it('adds an Addendum as an addendum record with its Outbox entry and leaves the signed plan as it was', async () => {
     const { repos, visitId, patientId, charting } = await setupVisit();
     await charting.saveSection(
@@ -398,7 +428,27 @@ describe('letters and photos on the Visit', () => {
     const letters = await screen.findByRole('region', { name: 'Letters' });
     expect(
       await within(letters).findByText(
-        'Letterhead: Brackenfold Orthoptic Clinic · Site address not on this tablet (the letter the clinic server sends prints it)',
+        'Letterhead: Brackenfold Orthoptic Clinic · Site address not on this tablet yet (the letter the clinic server sends prints it)',
+      ),
+    ).toBeTruthy();
+  });
+
+  it('puts the site’s address the tablet holds on the letterhead, a line at each comma', async () => {
+    const { repos, visitId } = await setupVisit();
+    const authDb = await authDbWith([
+      {
+        id: TEST_SITE_ID,
+        name: 'Brackenfold Orthoptic Clinic',
+        kind: 'clinic',
+        timeZone: 'UTC',
+        address: '12 Weir Row, Brackenfold, BF3 9LW',
+      },
+    ]);
+    renderVisit(repos, visitId, ORTHOPTIST, authDb);
+    const letters = await screen.findByRole('region', { name: 'Letters' });
+    expect(
+      await within(letters).findByText(
+        'Letterhead: Brackenfold Orthoptic Clinic · 12 Weir Row · Brackenfold · BF3 9LW',
       ),
     ).toBeTruthy();
   });

@@ -45,6 +45,7 @@ import {
 } from '../../data/charting';
 import { PanelBoundary } from './PanelBoundary';
 import { clinicForLetters } from './visit-letterhead';
+import { personLabel } from '../../auth/person-names';
 
 interface SectionSpec {
   collection: SectionCollectionName;
@@ -132,12 +133,15 @@ function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean
 function VisitBody({ bundle }: { bundle: VisitBundle }) {
   const { visit, patient, sections, addenda } = bundle;
   const { user } = useSession();
-  const { sites } = useAuthState();
+  const { sites, colleagues } = useAuthState();
   const clinic = useMemo(
     () => clinicForLetters(sites, visit.fields.siteId),
     [sites, visit.fields.siteId],
   );
-  const who = useCallback((id: string) => (user && id === user.id ? 'you' : id), [user]);
+  const who = useCallback(
+    (id: string | null | undefined) => personLabel(colleagues, id, user?.id),
+    [colleagues, user],
+  );
   const locked = !canEditSections(visit);
   const [statuses, setStatuses] = useState<Record<string, SaveStatus>>({});
   const reporters = useMemo(() => {
@@ -235,7 +239,7 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
         );
       })}
       <InterpretationSummary sections={values} ageYears={age} addenda={addenda} who={who} />
-      <SignPanel bundle={bundle} blockedReason={blockedReason} />
+      <SignPanel bundle={bundle} blockedReason={blockedReason} who={who} />
       <div id="section-letters">
         <PanelBoundary title="Letters">
           <LetterPanel visitId={visit.id} clinic={clinic} />
