@@ -13,6 +13,7 @@ import {
   type PushChange,
 } from '@fuselight/shared';
 import type { AuthUser } from '../auth/auth-user';
+import { CLOCK, type Clock } from '../common/clock.provider';
 import { SyncService } from '../sync/sync.service';
 import { clinicalDemoRecords, type DemoRecord } from './clinical-demo.data';
 import { DEMO_PEOPLE, DEMO_SITES } from './demo-scenario';
@@ -49,9 +50,17 @@ function pusherFor(siteId: string): AuthUser {
 export class ClinicalDemoSeed implements SeedStep {
   readonly name = 'clinical demo scenario';
 
-  constructor(@Inject(ModuleRef) private readonly moduleRef: ModuleRef) {}
+  constructor(
+    @Inject(ModuleRef) private readonly moduleRef: ModuleRef,
+    @Inject(CLOCK) private readonly clock: Clock,
+  ) {}
 
-  async run(_em: EntityManager, now: Date = new Date()): Promise<string[]> {
+  /**
+   * `now` defaults to the server's own clock, which the push judges the stamps by: real time in
+   * production, the test's fixed clock under test (real time there put the stamps more than a
+   * day ahead of it once the calendar passed the test clock's date).
+   */
+  async run(_em: EntityManager, now: Date = this.clock.now()): Promise<string[]> {
     const sync = this.moduleRef.get(SyncService, { strict: false });
     const records = clinicalDemoRecords({ today: demoToday(now) });
     const bySite = new Map<string, DemoRecord[]>();
