@@ -158,6 +158,25 @@ async function upgradeToVersion2(tx: Transaction): Promise<void> {
     });
 }
 
+/** A record the tablet has not held before: nothing stored, nothing pending, no version yet. */
+export function newStoredRecord(
+  collection: CollectionName,
+  id: string,
+  updatedAt: number,
+): StoredRecord {
+  return {
+    collection,
+    id,
+    version: 0,
+    deleted: false,
+    fields: {},
+    conflicts: [],
+    pendingFields: [],
+    serverFields: {},
+    updatedAt,
+  };
+}
+
 export const DEXIE_SCHEMA_VERSION = 4;
 
 let defaultDb: FuselightDb | null = null;

@@ -6,6 +6,7 @@ import { v7 as uuidv7 } from 'uuid';
 import {
   TOMBSTONE,
   getDefaultDb,
+  newStoredRecord,
   type FuselightDb,
   type OutboxEntry,
   type StoredRecord,
@@ -129,17 +130,9 @@ export class OutboxRepository {
     await db.transaction('rw', [db.records, db.outbox], async () => {
       await db.outbox.put(entry);
       const key = [entry.collection, entry.recordId] as unknown as string;
-      const record: StoredRecord = (await db.records.get(key)) ?? {
-        collection: entry.collection,
-        id: entry.recordId,
-        version: 0,
-        deleted: false,
-        fields: {},
-        conflicts: [],
-        pendingFields: [],
-        serverFields: {},
-        updatedAt: entry.updatedAt,
-      };
+      const record: StoredRecord =
+        (await db.records.get(key)) ??
+        newStoredRecord(entry.collection, entry.recordId, entry.updatedAt);
       const fields = { ...record.fields };
       const serverFields = { ...record.serverFields };
       const pending = new Set(record.pendingFields);

@@ -16,6 +16,7 @@ import {
   TOMBSTONE,
   collectionRange,
   getDefaultDb,
+  newStoredRecord,
   type FuselightDb,
   type OutboxEntry,
   type StoredRecord,
@@ -257,17 +258,7 @@ export class RecordsRepository {
       const existing = await db.records.get(key);
       if (creating && existing) throw new Error(`A ${collection} record ${id} already exists`);
       if (!creating && !existing) throw new RecordNotFoundError(collection, id);
-      const base: StoredRecord = existing ?? {
-        collection,
-        id,
-        version: 0,
-        deleted: false,
-        fields: {},
-        conflicts: [],
-        pendingFields: [],
-        serverFields: {},
-        updatedAt: ctx.nowMs,
-      };
+      const base: StoredRecord = existing ?? newStoredRecord(collection, id, ctx.nowMs);
       const changed: Record<string, unknown> = {};
       for (const [field, value] of Object.entries(edit.fields)) {
         if (creating || !hasOwn(base.fields, field) || !jsonEqual(base.fields[field], value)) {
