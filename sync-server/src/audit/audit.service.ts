@@ -132,8 +132,6 @@ export class AuditService {
       ...shared.map(({ key }) => first[key] as string | null),
     ];
     const perRow = AUDIT_BATCH_COLUMNS.filter((column) => !shared.includes(column));
-    const values = (column: (typeof AUDIT_BATCH_COLUMNS)[number]) =>
-      shared.includes(column) ? `?::${column.type}` : `r."${column.key}"`;
     params.push(
       JSON.stringify(
         rows.map((row) => {
@@ -143,13 +141,16 @@ export class AuditService {
         }),
       ),
     );
-    // The select list takes the shared values first, as they are bound.
-    const ordered = [...shared, ...perRow].map(values);
+    // The select list takes the shared values first, as they are bound, then the rows' own.
+    const selected = [
+      ...shared.map(({ type }) => `?::${type}`),
+      ...perRow.map(({ key }) => `r."${key}"`),
+    ];
     const columns = [...shared, ...perRow].map(({ column }) => `"${column}"`);
     const knex = (em as unknown as SqlEntityManager).getKnex();
     const query = knex.raw(
       `insert into "audit_event" ("occurred_at", ${columns.join(', ')})
-       select ?::timestamptz, ${ordered.join(', ')}
+       select ?::timestamptz, ${selected.join(', ')}
          from jsonb_to_recordset(?::jsonb) as r(${perRow.map(({ key, type }) => `"${key}" ${type}`).join(', ')})`,
       params,
     );
