@@ -3,7 +3,6 @@
 // records every clinical record change this way). Account events (sign-ins, tablets, people,
 // sites) are read by admins; clinical events by supervisors of the event's site.
 import type { EntityManager } from '@mikro-orm/core';
-import type { EntityManager as SqlEntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable } from '@nestjs/common';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { AuditEvent, type AuditScope } from './audit-event.entity';
@@ -72,22 +71,6 @@ export function withoutSecrets(value: unknown): unknown {
   return hasSecretKey(value) ? stripSecrets(value) : value;
 }
 
-/**
- * The columns of a batch insert: the table's column, the row's key, its SQL type, and whether a
- * value every event of the batch shares may be bound once (ids and details are each event's own).
- */
-const AUDIT_BATCH_COLUMNS = [
-  { column: 'id', key: 'id', type: 'uuid', sharable: false },
-  { column: 'scope', key: 'scope', type: 'text', sharable: true },
-  { column: 'kind', key: 'kind', type: 'text', sharable: true },
-  { column: 'actor_id', key: 'actorId', type: 'uuid', sharable: true },
-  { column: 'device_id', key: 'deviceId', type: 'uuid', sharable: true },
-  { column: 'site_id', key: 'siteId', type: 'uuid', sharable: true },
-  { column: 'subject_type', key: 'subjectType', type: 'text', sharable: true },
-  { column: 'subject_id', key: 'subjectId', type: 'text', sharable: true },
-  { column: 'detail', key: 'detail', type: 'jsonb', sharable: false },
-] as const;
-
 @Injectable()
 export class AuditService {
   constructor(
@@ -101,62 +84,42 @@ export class AuditService {
   }
 
   /**
-   * Appends several events in one statement (a sync push records one per change). Plain SQL over
-   * a JSON array bound as one parameter: the ORM's per-entity conversion, and MikroORM's
-   * `execute` (which inlines and escapes every parameter into the statement text), cost more
-   * than the rest of a push. The time travels once, and so does every column whose value all
-   * the events share (a push's actor, tablet, scope and usually site and kind): it is bound as
-   * one parameter instead of being repeated in each row of the array.
+   * The audit half of a statement that also makes the change it describes: an
+   * `insert into "audit_event" … select … from <from>` for a data-modifying WITH query, each
+   * column an SQL expression over the caller's rows (a push logs each change's result and audits
+   * it in one statement, from one JSON parameter that says each thing once). The detail is built
+   * in SQL from the keys given here, so none of them may look like a credential's; its values
+   * are the caller's to keep free of secrets, as `record`'s are. The returned bindings are the
+   * time, the scope, the actor and the tablet; the caller's own follow them, in the order they
+   * appear in the text: those of the expressions (id to detail), then those of `from`.
    */
-  async recordMany(em: EntityManager, events: AuditInput[]): Promise<void> {
-    if (events.length === 0) return;
-    const occurredAt = this.clock.now().toISOString();
-    const rows = events.map((event) => ({
-      id: this.ids.uuid(),
-      scope: event.scope ?? scopeOfKind(event.kind),
-      kind: event.kind,
-      actorId: event.actorId ?? null,
-      deviceId: event.deviceId ?? null,
-      siteId: event.siteId ?? null,
-      subjectType: event.subjectType,
-      subjectId: event.subjectId ?? null,
-      detail: withoutSecrets(event.detail ?? {}),
-    }));
-    type Row = (typeof rows)[number];
-    const first = rows[0] as Row;
-    const shared = AUDIT_BATCH_COLUMNS.filter(
-      ({ key, sharable }) => sharable && rows.every((row) => row[key] === first[key]),
-    );
-    const params: (string | null)[] = [
-      occurredAt,
-      ...shared.map(({ key }) => first[key] as string | null),
-    ];
-    const perRow = AUDIT_BATCH_COLUMNS.filter((column) => !shared.includes(column));
-    params.push(
-      JSON.stringify(
-        rows.map((row) => {
-          const own: Partial<Row> = {};
-          for (const { key } of perRow) (own as Record<string, unknown>)[key] = row[key];
-          return own;
-        }),
-      ),
-    );
-    // The select list takes the shared values first, as they are bound, then the rows' own.
-    const selected = [
-      ...shared.map(({ type }) => `?::${type}`),
-      ...perRow.map(({ key }) => `r."${key}"`),
-    ];
-    const columns = [...shared, ...perRow].map(({ column }) => `"${column}"`);
-    const knex = (em as unknown as SqlEntityManager).getKnex();
-    const query = knex.raw(
-      `insert into "audit_event" ("occurred_at", ${columns.join(', ')})
-       select ?::timestamptz, ${selected.join(', ')}
-         from jsonb_to_recordset(?::jsonb) as r(${perRow.map(({ key, type }) => `"${key}" ${type}`).join(', ')})`,
-      params,
-    );
-    const trx = em.getTransactionContext<Parameters<typeof query.transacting>[0]>();
-    if (trx) query.transacting(trx);
-    await query;
+  insertSelectSql(input: {
+    scope: AuditScope;
+    actorId: string | null;
+    deviceId: string | null;
+    /** One uuid expression per row, unique: the event's id. */
+    id: string;
+    kind: string;
+    siteId: string;
+    subjectType: string;
+    subjectId: string;
+    detail: Readonly<Record<string, string>>;
+    /** `from …` and any `where …` of the rows. */
+    from: string;
+  }): { sql: string; bindings: (string | null)[] } {
+    const secret = Object.keys(input.detail).find((key) => SECRET_KEY.test(key));
+    if (secret !== undefined)
+      throw new Error(`audit detail key ${secret} looks like a credential and is not stored`);
+    const detail = Object.entries(input.detail)
+      .map(([key, expression]) => `'${key.replaceAll("'", "''")}', ${expression}`)
+      .join(', ');
+    return {
+      sql: `insert into "audit_event" ("occurred_at", "scope", "actor_id", "device_id", "id", "kind", "site_id", "subject_type", "subject_id", "detail")
+            select ?::timestamptz, ?::text, ?::uuid, ?::uuid, ${input.id}, ${input.kind}, ${input.siteId},
+                   ${input.subjectType}, ${input.subjectId}, jsonb_build_object(${detail})
+            ${input.from}`,
+      bindings: [this.clock.now().toISOString(), input.scope, input.actorId, input.deviceId],
+    };
   }
 
   private row(event: AuditInput) {

@@ -1,4 +1,7 @@
 import request from 'supertest';
+import { v7 as uuidv7 } from 'uuid';
+import type { EntityManager } from '@mikro-orm/core';
+import type { EntityManager as SqlEntityManager } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   bearer,
@@ -7,6 +10,7 @@ import {
   signIn,
   type TestSession,
 } from '../testing/identity-factory';
+import { sqlRows } from '../records/sql';
 import { createTestApp, type TestApp } from '../testing/test-app';
 import { AuditService, scopeOfKind, withoutSecrets } from './audit.service';
 
@@ -139,63 +143,48 @@ describe('the audit trail', () => {
     expect(cursor.body.message).toContain('query.cursor');
   });
 
-  it('appends several events in one call, in order, with the caller’s transaction', async () => {
-    await t.em().transactional(async (em) => {
-      await audit().recordMany(em, [
-        { kind: 'record.changed', siteId: siteB, subjectType: 'visit', subjectId: 'many-1' },
-        {
-          kind: 'record.changed',
-          siteId: siteB,
-          subjectType: 'visit',
-          subjectId: 'many-2',
-          detail: { token: 'x' },
-        },
-      ]);
+  /** Writes audit events from a JSON source through `insertSelectSql`, as the push does. */
+  async function insertFrom(
+    em: EntityManager,
+    rows: { id: string; kind: string; site: string | null; subject: string; note?: string }[],
+    actorId: string | null = null,
+  ) {
+    const insert = audit().insertSelectSql({
+      scope: 'clinical',
+      actorId,
+      deviceId: null,
+      id: 'x."id"',
+      kind: 'x."kind"',
+      siteId: 'x."site"',
+      subjectType: `'visit'`,
+      subjectId: 'x."subject"',
+      detail: { note: 'x."note"', kindAgain: 'x."kind"' },
+      from: `from jsonb_to_recordset(?::jsonb) as x("id" uuid, "kind" text, "site" uuid, "subject" text, "note" text)`,
     });
-    const rows = await t
-      .em()
-      .getConnection()
-      .execute<{ subject_id: string; detail: unknown }[]>(
-        `select subject_id, detail from audit_event where subject_id like 'many-%' order by seq`,
-      );
-    expect(rows.map((row) => row.subject_id)).toEqual(['many-1', 'many-2']);
-    expect(rows[1]?.detail).toEqual({});
-  });
+    await sqlRows(em as SqlEntityManager, insert.sql, [...insert.bindings, JSON.stringify(rows)]);
+  }
 
-  it('stores every event’s own values in a batch, whether a column is shared by all events or differs', async () => {
+  it('writes the events of a caller’s statement with each row’s own values, the actor and the time', async () => {
     const actor = '0190c6a0-0000-7000-8000-00000000aa01';
     await t.em().transactional(async (em) => {
-      await audit().recordMany(em, [
-        {
-          kind: 'record.created',
-          actorId: actor,
-          siteId: siteB,
-          subjectType: 'visit',
-          subjectId: 'mix-1',
-        },
-        {
-          kind: 'record.changed',
-          actorId: actor,
-          siteId: null,
-          subjectType: 'visit',
-          subjectId: 'mix-2',
-        },
-        {
-          kind: 'record.changed',
-          actorId: actor,
-          subjectType: 'patient',
-          subjectId: 'mix-3',
-          detail: { n: 3 },
-        },
-      ]);
+      await insertFrom(
+        em,
+        [
+          { id: uuidv7(), kind: 'record.created', site: siteB, subject: 'mix-1', note: 'first' },
+          { id: uuidv7(), kind: 'record.changed', site: null, subject: 'mix-2' },
+        ],
+        actor,
+      );
     });
     const rows = await t
       .em()
       .getConnection()
       .execute<Record<string, unknown>[]>(
-        `select "kind", "scope", "actor_id", "device_id", "site_id", "subject_type", "subject_id", "detail"
+        `select "kind", "scope", "actor_id", "device_id", "site_id", "subject_type", "subject_id", "detail",
+                (extract(epoch from "occurred_at") * 1000)::float8 as "occurred_ms"
            from audit_event where subject_id like 'mix-%' order by seq`,
       );
+    const at = t.clock.now().getTime();
     expect(rows).toEqual([
       {
         kind: 'record.created',
@@ -205,7 +194,8 @@ describe('the audit trail', () => {
         site_id: siteB,
         subject_type: 'visit',
         subject_id: 'mix-1',
-        detail: {},
+        detail: { note: 'first', kindAgain: 'record.created' },
+        occurred_ms: at,
       },
       {
         kind: 'record.changed',
@@ -215,38 +205,23 @@ describe('the audit trail', () => {
         site_id: null,
         subject_type: 'visit',
         subject_id: 'mix-2',
-        detail: {},
-      },
-      {
-        kind: 'record.changed',
-        scope: 'clinical',
-        actor_id: actor,
-        device_id: null,
-        site_id: null,
-        subject_type: 'patient',
-        subject_id: 'mix-3',
-        detail: { n: 3 },
+        detail: { note: null, kindAgain: 'record.changed' },
+        occurred_ms: at,
       },
     ]);
   });
 
-  it('keeps quotes, backslashes and question marks of a batch intact, and rolls the batch back with its transaction', async () => {
+  it('keeps quotes, backslashes and question marks intact, and rolls the events back with their transaction', async () => {
     const awkward = `O'Brien said "?" \\ then $1 ?? ok`;
     await t.em().transactional(async (em) => {
-      await audit().recordMany(em, [
-        {
-          kind: 'record.changed',
-          siteId: siteB,
-          subjectType: 'visit',
-          subjectId: 'batch-kept',
-          detail: { note: awkward },
-        },
+      await insertFrom(em, [
+        { id: uuidv7(), kind: 'record.changed', site: siteB, subject: 'batch-kept', note: awkward },
       ]);
     });
     await expect(
       t.em().transactional(async (em) => {
-        await audit().recordMany(em, [
-          { kind: 'record.changed', siteId: siteB, subjectType: 'visit', subjectId: 'batch-lost' },
+        await insertFrom(em, [
+          { id: uuidv7(), kind: 'record.changed', site: siteB, subject: 'batch-lost' },
         ]);
         throw new Error('the change failed');
       }),
@@ -254,12 +229,28 @@ describe('the audit trail', () => {
     const rows = await t
       .em()
       .getConnection()
-      .execute<{ subject_id: string; detail: { note?: string }; occurred_at: Date }[]>(
-        `select subject_id, detail, occurred_at from audit_event where subject_id like 'batch-%'`,
+      .execute<{ subject_id: string; detail: { note?: string } }[]>(
+        `select subject_id, detail from audit_event where subject_id like 'batch-%'`,
       );
     expect(rows.map((row) => row.subject_id)).toEqual(['batch-kept']);
     expect(rows[0]?.detail.note).toBe(awkward);
-    expect(new Date(rows[0]?.occurred_at ?? 0).toISOString()).toBe(t.clock.now().toISOString());
+  });
+
+  it('refuses a detail key that looks like a credential', () => {
+    expect(() =>
+      audit().insertSelectSql({
+        scope: 'clinical',
+        actorId: null,
+        deviceId: null,
+        id: 'x."id"',
+        kind: `'record.changed'`,
+        siteId: 'null',
+        subjectType: `'visit'`,
+        subjectId: 'null',
+        detail: { accessToken: 'x."t"' },
+        from: 'from x',
+      }),
+    ).toThrow('audit detail key accessToken looks like a credential');
   });
 
   it('files kinds under account or clinical by their prefix', () => {

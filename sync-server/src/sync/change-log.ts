@@ -7,6 +7,7 @@
 // So a change is applied and answered once, however often and concurrently it is sent.
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { PushResult } from '@fuselight/shared';
+import type { AuditService } from '../audit/audit.service';
 import { jsonParam, sqlRows } from '../records/sql';
 
 export async function firstResults(
@@ -25,56 +26,115 @@ export async function firstResults(
   return found;
 }
 
+/** What the audit trail keeps of an applied change, besides its result. */
+export interface ChangeAudit {
+  /** The audit event's id. */
+  id: string;
+  kind: string;
+  siteId: string;
+  collection: string;
+  /** The fields the change wrote (and `deleted` for a deletion or restore). */
+  fields: string[];
+}
+
 export interface ChangeLogEntry {
   result: PushResult;
   recordId: string | null;
+  /** Present for a change that was applied: its audit event is written with its log row. */
+  audit?: ChangeAudit;
 }
 
 /**
- * Logs first results (ids sorted, so two pushes never wait on each other in opposite orders).
- * Returns the ids it logged; an id missing from the answer was already logged by another push.
+ * Logs first results (ids sorted, so two pushes never wait on each other in opposite orders) and,
+ * in the same statement, writes the audit event of each change that was applied. Returns the ids
+ * it logged; an id missing from the answer was already logged by another push (the caller then
+ * rolls the attempt back, audit events included).
+ *
+ * Each change travels once, as one row of one JSON parameter, and each table takes its columns
+ * from it: the stored result and the audit detail are built in SQL from the row's own values, and
+ * what most rows share (the audit kind, site and collection) is bound once, a row carrying its own
+ * only where it differs. The change id goes in as sent (text), so a replay answers with the id
+ * exactly as it came.
  */
 export async function storeResults(
   em: EntityManager,
+  audit: AuditService,
   entries: readonly ChangeLogEntry[],
   claimant: { userId: string; deviceId: string | null },
   at: Date,
 ): Promise<Set<string>> {
   if (entries.length === 0) return new Set();
-  // The stored result is built from the row's own columns rather than sent a second time: an
-  // accepted change's conflicts (usually none) and a rejected change's error are all it adds.
-  // The change id goes in as sent (text), so a replay answers with the id exactly as it came.
-  const rows = await sqlRows<{ change_id: string }>(
+  const common = entries.find((entry) => entry.audit)?.audit;
+  const rows = entries.map(({ result, recordId, audit: facts }) => {
+    if (result.status === 'rejected')
+      return { c: result.changeId, s: result.status, r: recordId, e: result.error };
+    const row: Record<string, unknown> = {
+      c: result.changeId,
+      s: result.status,
+      v: result.version,
+      r: recordId,
+    };
+    if (result.conflicts.length > 0) row.k = result.conflicts;
+    if (facts) {
+      row.a = facts.id;
+      row.f = facts.fields;
+      if (facts.kind !== common?.kind) row.n = facts.kind;
+      if (facts.siteId !== common?.siteId) row.i = facts.siteId;
+      if (facts.collection !== common?.collection) row.o = facts.collection;
+    }
+    return row;
+  });
+  const auditInsert = audit.insertSelectSql({
+    scope: 'clinical',
+    actorId: claimant.userId,
+    deviceId: claimant.deviceId,
+    id: 'x."a"',
+    kind: 'coalesce(x."n", ?::text)',
+    siteId: 'coalesce(x."i", ?::uuid)',
+    subjectType: 'coalesce(x."o", ?::text)',
+    subjectId: 'x."r"::text',
+    detail: {
+      collection: 'coalesce(x."o", ?::text)',
+      changeId: 'x."c"',
+      version: 'x."v"',
+      status: 'x."s"',
+      fields: 'x."f"',
+      conflicts: `coalesce(x."k", '[]'::jsonb)`,
+    },
+    from: 'from "x" where x."a" is not null',
+  });
+  const logged = await sqlRows<{ change_id: string }>(
     em,
-    `insert into "sync_change" ("change_id", "user_id", "device_id", "status", "version", "record_id", "result", "received_at")
-     select x."c"::uuid, ?::uuid, ?, x."s", x."v", x."r",
-            case when x."s" = 'rejected'
-              then jsonb_build_object('changeId', x."c", 'status', x."s", 'error', x."e")
-              else jsonb_build_object('changeId', x."c", 'status', x."s", 'version', x."v", 'conflicts', coalesce(x."k", '[]'::jsonb))
-            end,
-            ?::timestamptz
-       from jsonb_to_recordset(?::jsonb) as x("c" text, "s" text, "v" bigint, "r" uuid, "k" jsonb, "e" text)
-      order by x."c"::uuid
-     on conflict ("change_id") do nothing
-     returning "change_id"`,
+    `with "x" as (
+       select * from jsonb_to_recordset(?::jsonb)
+         as x("c" text, "s" text, "v" bigint, "r" uuid, "k" jsonb, "e" text, "a" uuid, "f" jsonb, "n" text, "i" uuid, "o" text)
+     ), "logged" as (
+       insert into "sync_change" ("change_id", "user_id", "device_id", "status", "version", "record_id", "result", "received_at")
+       select x."c"::uuid, ?::uuid, ?, x."s", x."v", x."r",
+              case when x."s" = 'rejected'
+                then jsonb_build_object('changeId', x."c", 'status', x."s", 'error', x."e")
+                else jsonb_build_object('changeId', x."c", 'status', x."s", 'version', x."v", 'conflicts', coalesce(x."k", '[]'::jsonb))
+              end,
+              ?::timestamptz
+         from "x"
+        order by x."c"::uuid
+       on conflict ("change_id") do nothing
+       returning "change_id"
+     ), "audited" as (
+       ${auditInsert.sql}
+     )
+     select "change_id" from "logged"`,
     [
+      jsonParam(rows),
       claimant.userId,
       claimant.deviceId,
       at.toISOString(),
-      jsonParam(
-        entries.map(({ result, recordId }) =>
-          result.status === 'rejected'
-            ? { c: result.changeId, s: result.status, r: recordId, e: result.error }
-            : {
-                c: result.changeId,
-                s: result.status,
-                v: result.version,
-                r: recordId,
-                ...(result.conflicts.length > 0 ? { k: result.conflicts } : {}),
-              },
-        ),
-      ),
+      ...auditInsert.bindings,
+      common?.kind ?? null,
+      common?.siteId ?? null,
+      common?.collection ?? null,
+      common?.collection ?? null,
     ],
   );
-  return new Set(rows.map((row) => row.change_id));
+  return new Set(logged.map((row) => row.change_id));
 }

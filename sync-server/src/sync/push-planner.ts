@@ -25,6 +25,7 @@ import { letterPushProblem } from '../letters/letter-push-rule';
 import type { VersionAllocator } from '../records/record-version';
 import type { ConflictInsert, RecordWrite } from '../records/record-store';
 import type { StoredCandidate, StoredRecord, StoredStamp } from '../records/stored-record';
+import type { ChangeAudit } from './change-log';
 
 export interface ChangePlan {
   result: AcceptedPushResult;
@@ -34,7 +35,8 @@ export interface ChangePlan {
   joined: { conflictId: string; candidate: StoredCandidate }[];
   /** Conflicts opened by this change, by field. */
   opened: Map<string, string>;
-  audit: { kind: string; siteId: string; detail: Record<string, unknown> };
+  /** Its audit event, written with its log row (change-log.ts). */
+  audit: ChangeAudit;
 }
 
 export type PlanOutcome =
@@ -226,20 +228,15 @@ export class PushPlanner {
       joined,
       opened,
       audit: {
+        id: this.ids.uuid(),
         kind: record
           ? merged.deleted && !record.deleted
             ? 'record.deleted'
             : 'record.changed'
           : 'record.created',
         siteId,
-        detail: {
-          collection: change.collection,
-          changeId: change.changeId,
-          version,
-          status: merged.status,
-          fields: Object.keys(merged.writes),
-          conflicts: merged.conflicts,
-        },
+        collection: change.collection,
+        fields: Object.keys(merged.writes),
       },
     };
   }

@@ -3,9 +3,10 @@
 // Push: one transaction per request. Changes already answered are replays (idempotency, see
 // change-log.ts), the records are locked with SELECT … FOR UPDATE, every other change is planned
 // in request order by the shared merge rule, and the plans are written in a few batched
-// statements inside a savepoint, then their results logged. If PostgreSQL
-// refuses a value (a data error), the batch is rolled back to that savepoint and the changes are
-// written again one by one, each in its own savepoint, so only the offending change is rejected.
+// statements inside a savepoint, then their results logged and their audit events written in
+// one more (change-log.ts). If PostgreSQL refuses a value (a data error), the batch is rolled
+// back to that savepoint and the changes are written again one by one, each in its own
+// savepoint, so only the offending change is rejected.
 // Pull: one REPEATABLE READ read-only snapshot, bounded by the transaction-id watermark
 // (records/record-version.ts).
 import { EntityManager } from '@mikro-orm/postgresql';
@@ -59,7 +60,6 @@ export interface PushTimings {
   lockMs: number;
   planMs: number;
   writeMs: number;
-  auditMs: number;
   logMs: number;
   commitMs: number;
 }
@@ -75,7 +75,6 @@ export class SyncService {
     lockMs: 0,
     planMs: 0,
     writeMs: 0,
-    auditMs: 0,
     logMs: 0,
     commitMs: 0,
   };
@@ -155,7 +154,7 @@ export class SyncService {
       // change by change; an attempt that cannot log all its results rolls back to it too.
       await sqlRows(em, 'savepoint "push_attempt"');
       try {
-        await this.writePlans(em, plans, now, user);
+        await this.writePlans(em, plans, now);
       } catch (error) {
         if (!isDataError(error)) throw error;
         this.logger.warn(
@@ -163,11 +162,11 @@ export class SyncService {
         );
         await sqlRows(em, 'rollback to savepoint "push_attempt"');
         answered.clear();
-        await this.writeOneByOne(em, makePlanner(), toPlan, answered, now, user);
+        await this.writeOneByOne(em, makePlanner(), toPlan, answered, now);
       }
       lap('writeMs');
 
-      const logged = await storeResults(em, [...answered.values()], claimant, now);
+      const logged = await storeResults(em, this.audit, [...answered.values()], claimant, now);
       lap('logMs');
       if (logged.size === answered.size) {
         await sqlRows(em, 'release savepoint "push_attempt"');
@@ -187,29 +186,11 @@ export class SyncService {
     em: EntityManager,
     plans: readonly ChangePlan[],
     now: Date,
-    user: AuthUser,
   ): Promise<void> {
     const batch = collapsePlans(plans);
     await upsertRecords(em, batch.records, now);
     await insertConflicts(em, batch.newConflicts, now);
     await appendCandidates(em, batch.joined);
-    const started = performance.now();
-    // One multi-row insert for the whole batch: every clinical change is audited in the same
-    // transaction as the change, without a round trip per change.
-    await this.audit.recordMany(
-      em,
-      plans.map((plan) => ({
-        kind: plan.audit.kind,
-        actorId: user.userId,
-        deviceId: user.deviceId,
-        siteId: plan.audit.siteId,
-        subjectType: plan.record.collection,
-        subjectId: plan.record.id,
-        detail: plan.audit.detail,
-      })),
-    );
-    this.timings.auditMs += performance.now() - started;
-    this.timings.writeMs -= performance.now() - started;
   }
 
   /** The slow path: each change in its own savepoint; a value the database refuses rejects only it. */
@@ -219,7 +200,6 @@ export class SyncService {
     toPlan: readonly { index: number; raw: Record<string, unknown> }[],
     answered: Map<string, ChangeLogEntry>,
     now: Date,
-    user: AuthUser,
   ): Promise<void> {
     for (const { index, raw } of toPlan) {
       const outcome = planner.plan(raw, index);
@@ -233,10 +213,14 @@ export class SyncService {
       }
       await sqlRows(em, 'savepoint "push_change"');
       try {
-        await this.writePlans(em, [outcome.plan], now, user);
+        await this.writePlans(em, [outcome.plan], now);
         await sqlRows(em, 'release savepoint "push_change"');
         planner.commit(outcome.plan);
-        answered.set(changeId, { result: outcome.plan.result, recordId: outcome.plan.record.id });
+        answered.set(changeId, {
+          result: outcome.plan.result,
+          recordId: outcome.plan.record.id,
+          audit: outcome.plan.audit,
+        });
       } catch (error) {
         if (!isDataError(error)) throw error;
         await sqlRows(em, 'rollback to savepoint "push_change"');
@@ -350,7 +334,11 @@ function planAll(
     }
     planner.commit(outcome.plan);
     plans.push(outcome.plan);
-    answered.set(changeId, { result: outcome.plan.result, recordId: outcome.plan.record.id });
+    answered.set(changeId, {
+      result: outcome.plan.result,
+      recordId: outcome.plan.record.id,
+      audit: outcome.plan.audit,
+    });
   }
   return plans;
 }

@@ -691,6 +691,118 @@ describe('the audit trail of a push', () => {
       expect(row.device_id).toBe(tablet.caller.deviceId);
     }
   });
+
+  it('gives each applied change of a mixed push its own kind, site, subject and detail, and none to a rejected one', async () => {
+    // Kind, site and collection are bound once for the push where the changes share them; this
+    // push mixes all three, with a conflict, a deletion and a rejected change among them.
+    const tablet = await tabletFor(t, 'orthoptist', [SITE_A, SITE_B]);
+    const other = await tabletFor(t, 'orthoptist', [SITE_A, SITE_B]);
+    const edited = await createPatient(tablet);
+    const disputed = await createPatient(tablet);
+    const removed = await createPatient(tablet);
+    await other.pushOk([
+      other.change({
+        recordId: disputed.recordId,
+        baseVersion: disputed.version,
+        fields: { clinicNumber: 'D-1' },
+      }),
+    ]);
+    const visitId = newId();
+    const changes = [
+      tablet.change({ recordId: newId(), fields: patientFields(SITE_A) }),
+      tablet.change({ recordId: newId(), fields: patientFields(SITE_B) }),
+      tablet.change({
+        recordId: visitId,
+        collection: 'visit',
+        fields: {
+          siteId: SITE_B,
+          patientId: edited.recordId,
+          date: '2026-11-30',
+          clinicianId: tablet.caller.userId,
+          status: 'draft',
+        },
+      }),
+      tablet.change({
+        recordId: edited.recordId,
+        baseVersion: edited.version,
+        fields: { notes: 'seen' },
+      }),
+      tablet.change({
+        recordId: disputed.recordId,
+        baseVersion: disputed.version,
+        fields: { clinicNumber: 'D-2' },
+      }),
+      tablet.change({
+        recordId: removed.recordId,
+        baseVersion: removed.version,
+        fields: {},
+        deleted: true,
+      }),
+      tablet.change({ recordId: newId(), fields: { siteId: SITE_A, shoeSize: 9 } }),
+    ];
+    const { results } = await tablet.pushOk(changes);
+    expect(results.map((r) => r.status)).toEqual([
+      'applied',
+      'applied',
+      'applied',
+      'applied',
+      'conflict',
+      'applied',
+      'rejected',
+    ]);
+    const rows = await t
+      .em()
+      .getConnection()
+      .execute<
+        {
+          kind: string;
+          site_id: string;
+          subject_type: string;
+          subject_id: string;
+          actor_id: string;
+          device_id: string;
+          scope: string;
+          detail: Record<string, unknown>;
+        }[]
+      >(
+        `select kind, site_id, subject_type, subject_id, actor_id, device_id, scope, detail
+           from audit_event
+          where detail ->> 'changeId' in (select jsonb_array_elements_text(?::jsonb))
+          order by seq`,
+        [JSON.stringify(changes.map((c) => c.changeId))],
+      );
+    const expected = [
+      ['record.created', SITE_A, 'patient', Object.keys(patientFields(SITE_A))],
+      ['record.created', SITE_B, 'patient', Object.keys(patientFields(SITE_B))],
+      ['record.created', SITE_B, 'visit', ['siteId', 'patientId', 'date', 'clinicianId', 'status']],
+      ['record.changed', SITE_A, 'patient', ['notes']],
+      ['record.changed', SITE_A, 'patient', ['clinicNumber']],
+      ['record.deleted', SITE_A, 'patient', ['deleted']],
+    ] as const;
+    expect(rows).toHaveLength(expected.length);
+    expected.forEach(([kind, site, collection, fields], i) => {
+      const change = changes[i] as Record<string, unknown>;
+      const result = results[i] as PushResult & { version: number; conflicts: string[] };
+      expect(rows[i]).toEqual({
+        kind,
+        site_id: site,
+        subject_type: collection,
+        subject_id: change.recordId,
+        actor_id: tablet.caller.userId,
+        device_id: tablet.caller.deviceId,
+        scope: 'clinical',
+        detail: {
+          collection,
+          changeId: change.changeId,
+          version: result.version,
+          status: result.status,
+          fields: [...fields],
+          conflicts: result.conflicts,
+        },
+      });
+    });
+    expect((rows[4]?.detail as { conflicts: string[] }).conflicts).toEqual(['clinicNumber']);
+  });
 });
 
 describe('POST /api/sync/push: final letters', () => {

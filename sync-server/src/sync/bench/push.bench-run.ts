@@ -212,8 +212,7 @@ const STEPS: Record<keyof SyncService['timings'], string> = {
   lockMs: 'lock records, read open disputes',
   planMs: 'validate and merge (JS)',
   writeMs: 'write records and history',
-  auditMs: 'audit rows',
-  logMs: 'log results (idempotency)',
+  logMs: 'log results and audit events',
   commitMs: 'commit',
 };
 
