@@ -50,6 +50,16 @@ export const pushChangeSchema = z.object({
 });
 export type PushChange = z.infer<typeof pushChangeSchema>;
 
+/**
+ * `pushChangeSchema` for a change that was read from JSON (the server's request body): every
+ * value is JSON already, so the fields are only required to be an object, and each value is then
+ * checked by its field's own schema (`validateFields`). Walking every value once more as JSON
+ * cost the server about a third of this check.
+ */
+export const pushChangeFromJsonSchema = pushChangeSchema.extend({
+  fields: z.record(z.string(), z.unknown(), { error: 'fields must be an object' }),
+});
+
 const pushEnvelopeShape = {
   protocol: z.literal(PROTOCOL_VERSION, { error: `protocol must be ${PROTOCOL_VERSION}` }),
   schemaVersion: z.int({ error: 'schemaVersion must be a whole number' }).min(0, {

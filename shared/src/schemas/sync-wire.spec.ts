@@ -8,6 +8,8 @@ import {
   pushRequestShapeSchema,
   pushResponseSchema,
   pushResultSchema,
+  pushChangeFromJsonSchema,
+  pushChangeSchema,
   resolveConflictRequestSchema,
   type PushChange,
 } from './sync-wire.schema';
@@ -194,5 +196,27 @@ describe('conflicts', () => {
       true,
     );
     expect(resolveConflictRequestSchema.safeParse({ note: 'cleared' }).success).toBe(false);
+  });
+});
+
+describe('a change read from JSON', () => {
+  // The server's check: the same envelope rules, with values left to each field's own schema.
+  it('accepts what the strict change schema accepts and refuses the same envelope problems', () => {
+    const read = JSON.parse(JSON.stringify(change)) as unknown;
+    expect(pushChangeFromJsonSchema.safeParse(read)).toEqual(pushChangeSchema.safeParse(read));
+    for (const broken of [
+      { ...change, changeId: 'nope' },
+      { ...change, collection: 'shoe' },
+      { ...change, hlc: '12-3' },
+      { ...change, baseVersion: -1 },
+      { ...change, fields: [1, 2] },
+      { ...change, fields: 'Okafor' },
+    ]) {
+      const strict = pushChangeSchema.safeParse(broken);
+      const fromJson = pushChangeFromJsonSchema.safeParse(broken);
+      expect(strict.success).toBe(false);
+      expect(fromJson.success).toBe(false);
+      expect(messages(fromJson)).toEqual(messages(strict));
+    }
   });
 });

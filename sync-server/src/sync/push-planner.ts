@@ -7,6 +7,7 @@ import {
   TOMBSTONE_FIELD,
   isStampTooFarAhead,
   mergeChange,
+  pushChangeFromJsonSchema,
   pushChangeSchema,
   validateFields,
   validateRecord,
@@ -83,7 +84,7 @@ export class PushPlanner {
 
   /** Plans one change against the working state, without changing it (see `commit`). */
   plan(raw: unknown, index: number): PlanOutcome {
-    const parsed = pushChangeSchema.safeParse(raw);
+    const parsed = pushChangeFromJsonSchema.safeParse(raw);
     if (!parsed.success) return rejected(describeZodError(parsed.error, `changes.${index}`));
     const change = parsed.data;
     if (!canWriteClinical(this.user)) {
@@ -138,7 +139,7 @@ export class PushPlanner {
 
   private merge(
     record: StoredRecord | undefined,
-    change: PushChange,
+    change: Omit<PushChange, 'fields'>,
     fields: Record<string, JsonValue>,
   ): ChangePlan {
     const open = record ? this.conflictsOf(record.id) : new Map<string, string>();
