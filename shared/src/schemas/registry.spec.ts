@@ -188,6 +188,39 @@ describe('validateRecord', () => {
     ]);
   });
 
+  it('treats an undefined value as absent in a full record, and as an error in changed fields', () => {
+    const full = validateRecord('patient', {
+      siteId: SITE_ID,
+      givenName: 'Ama',
+      familyName: undefined,
+      notes: undefined,
+    });
+    expect(errorsOf(full)).toEqual([
+      { field: 'familyName', message: 'Family name is required' },
+      { field: 'dateOfBirth', message: 'Date of birth is required' },
+      { field: 'clinicNumber', message: 'Clinic number is required' },
+    ]);
+    expect(errorsOf(validateFields('patient', { notes: undefined, familyName: null }))).toEqual([
+      { field: 'notes', message: 'Notes has no value; send null to clear it' },
+      { field: 'familyName', message: 'Family name is required and cannot be cleared' },
+    ]);
+    const cleared = validateRecord('patient', {
+      siteId: SITE_ID,
+      givenName: 'Ama',
+      familyName: 'Okafor',
+      dateOfBirth: '2016-04-09',
+      clinicNumber: 'FL-0001',
+      notes: undefined,
+    });
+    expect(cleared.ok && Object.keys(cleared.fields)).toEqual([
+      'siteId',
+      'givenName',
+      'familyName',
+      'dateOfBirth',
+      'clinicNumber',
+    ]);
+  });
+
   it('refuses a section that is not placed in a visit', () => {
     const errors = errorsOf(validateRecord('fusion', { siteId: SITE_ID, result: 'present' }));
     expect(errors.map((error) => error.field).sort()).toEqual(['patientId', 'visitId']);

@@ -208,27 +208,55 @@ export function validateFields(
       errors: [{ field: '', message: `fields for collection ${collection} must be an object` }],
     };
   }
+  return checkFields(collection, fields, false);
+}
+
+/**
+ * The check both validations share, in one pass over the given keys (a push checks up to 500
+ * records at a time, so nothing is copied first). `full`: an undefined value is an absent key and
+ * missing required fields are errors too.
+ */
+function checkFields(
+  collection: CollectionName,
+  fields: Record<string, unknown>,
+  full: boolean,
+): FieldValidation<Record<string, unknown>> {
   const shape = shapeOf(collection);
   const errors: FieldError[] = [];
   const parsed: Record<string, unknown> = {};
-  for (const [field, value] of Object.entries(fields)) {
+  for (const field in fields) {
+    if (!Object.hasOwn(fields, field)) continue;
+    const value = fields[field];
+    if (value === undefined && full) continue;
     const schema = Object.hasOwn(shape, field) ? shape[field] : undefined;
     if (schema === undefined) {
       errors.push(unknownFieldError(collection, field));
       continue;
     }
-    const label = labelOf(collection, field);
     if (value === undefined) {
-      errors.push({ field, message: `${label} has no value; send null to clear it` });
+      errors.push({
+        field,
+        message: `${labelOf(collection, field)} has no value; send null to clear it`,
+      });
       continue;
     }
     if (value === null && isRequired(schema)) {
-      errors.push({ field, message: `${label} is required and cannot be cleared` });
+      errors.push({
+        field,
+        message: `${labelOf(collection, field)} is required and cannot be cleared`,
+      });
       continue;
     }
     const result = schema.safeParse(value);
     if (result.success) parsed[field] = result.data;
     else errors.push(...issuesToErrors(field, result.error));
+  }
+  if (full) {
+    for (const field of requiredFields(collection)) {
+      if (fields[field] === undefined) {
+        errors.push({ field, message: `${labelOf(collection, field)} is required` });
+      }
+    }
   }
   return errors.length > 0 ? { ok: false, errors } : { ok: true, fields: parsed };
 }
@@ -256,16 +284,5 @@ export function validateRecord(
     };
   }
   // An undefined value in a full record is the same as an absent key.
-  const given = Object.fromEntries(
-    Object.entries(record).filter(([, value]) => value !== undefined),
-  );
-  const present = validateFields(collection, given);
-  const errors: FieldError[] = present.ok ? [] : [...present.errors];
-  for (const field of requiredFields(collection)) {
-    if (given[field] === undefined) {
-      errors.push({ field, message: `${labelOf(collection, field)} is required` });
-    }
-  }
-  if (errors.length > 0 || !present.ok) return { ok: false, errors };
-  return { ok: true, fields: present.fields };
+  return checkFields(collection, record, true);
 }
