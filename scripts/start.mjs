@@ -13,6 +13,7 @@ import {
   ensurePostgres,
   repoRoot,
   run,
+  serverNodeArgs,
   startCluster,
   step,
   stopCluster,
@@ -120,7 +121,7 @@ async function main() {
         );
       }),
   );
-  spawnChild('server', ['sync-server/dist/main.cjs'], env);
+  spawnChild('server', [...serverNodeArgs, 'sync-server/dist/main.cjs'], env);
   await step(`start the server on http://127.0.0.1:${port}`, () =>
     waitForHttp(`http://127.0.0.1:${port}/api/health`),
   );

@@ -16,6 +16,7 @@ import {
   freePort,
   repoRoot,
   run,
+  serverNodeArgs,
   startCluster,
   step,
   stopCluster,
@@ -130,7 +131,7 @@ async function main() {
       await step('migrate the end-to-end database', () =>
         run('node', ['sync-server/dist/cli.cjs', 'migrate'], { env: serverEnv }),
       );
-      const server = spawn('node', ['sync-server/dist/main.cjs'], {
+      const server = spawn('node', [...serverNodeArgs, 'sync-server/dist/main.cjs'], {
         cwd: repoRoot,
         env: serverEnv,
         stdio: ['ignore', 'ignore', 'inherit'],

@@ -10,7 +10,7 @@
 // its module runner on every imported binding, so that run is slower and its figures are
 // printed beside it.
 import { spawn, type ChildProcess } from 'node:child_process';
-import { existsSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import type { AddressInfo } from 'node:net';
 import { join } from 'node:path';
 import pg from 'pg';
@@ -35,6 +35,10 @@ const FIELDS_PER_CHANGE = Object.keys(patientFields(SITE_A)).length;
 // A production-length secret shared by both servers, so the tablets' tokens work on either.
 const BENCH_JWT_SECRET = 'push-benchmark-secret-0123456789abcdefghij';
 const BUNDLE = join(import.meta.dirname, '..', '..', '..', 'dist', 'main.cjs');
+// The Node flags `npm start` runs the server with (scripts/lib.mjs explains them).
+const SERVER_NODE_ARGS = JSON.parse(
+  readFileSync(join(import.meta.dirname, '..', '..', '..', 'server-node-args.json'), 'utf8'),
+) as string[];
 
 let t: TestApp;
 let inProcessUrl: string;
@@ -50,7 +54,10 @@ async function startBundle(databaseUrl: string): Promise<string> {
   // BENCH_PROFILE=<dir> writes a CPU profile of the bundle there when it stops (open it in
   // Chromium's DevTools): where the server's own time goes, beside the step breakdown.
   const profile = process.env.BENCH_PROFILE;
-  const nodeArgs = profile ? ['--cpu-prof', `--cpu-prof-dir=${profile}`] : [];
+  const nodeArgs = [
+    ...SERVER_NODE_ARGS,
+    ...(profile ? ['--cpu-prof', `--cpu-prof-dir=${profile}`] : []),
+  ];
   bundle = spawn(process.execPath, [...nodeArgs, BUNDLE], {
     env: {
       ...process.env,
@@ -270,7 +277,7 @@ it('measures push throughput', async () => {
   const perBatch = (ms: number) => (ms / BATCHES_PER_TABLET).toFixed(1).padStart(6);
   const lines = [
     `push benchmark: batches of ${BATCH} changes x ${FIELDS_PER_CHANGE} fields, ${BATCHES_PER_TABLET} batches per tablet, ${ROUNDS} rounds (medians; aim: ratio ≥ 0.30)`,
-    `  production server bundle (dist/main.cjs, its own process):`,
+    `  production server bundle (node ${[...SERVER_NODE_ARGS, 'dist/main.cjs'].join(' ')}, its own process):`,
     line(
       '  1 tablet ',
       measured.map((r) => r.push1),
