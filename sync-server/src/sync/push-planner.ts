@@ -274,9 +274,17 @@ function changedValues(
   );
 }
 
+/**
+ * A rejection names what the tablet sent, which may hold characters PostgreSQL cannot keep in a
+ * JSON value (a NUL, a lone surrogate); the change log stores the words, so they are written in
+ * a form it keeps — the same words the first answer and every replay give.
+ */
 function rejected(error: string): PlanOutcome {
-  return { kind: 'rejected', error };
+  const kept = error.replace(LONE_SURROGATE, '\uFFFD').replaceAll('\u0000', '\\u0000');
+  return { kind: 'rejected', error: kept };
 }
+
+const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g;
 
 function storedCandidate(value: JsonValue, stamp: FieldWriteStamp): StoredCandidate {
   const at = (stamp as Partial<StoredStamp>).at ?? '';

@@ -322,6 +322,29 @@ describe('POST /api/sync/push: rejected changes', () => {
     expect(await recordRow(good.recordId as string)).toBeDefined();
     expect(await recordRow(nul.recordId as string)).toBeUndefined();
   });
+
+  it('rejects a change whose field name holds a NUL character in words the log can keep, and replays it alike', async () => {
+    const odd = tabA.change({
+      recordId: newId(),
+      fields: { ...patientFields(SITE_A), 'note\u0000s': 'x' },
+    });
+    const good = tabA.change({ recordId: newId(), fields: patientFields(SITE_A) });
+    const [r0, r1] = (await tabA.pushOk([odd, good])).results;
+    expect(r0).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('unknown field note\\u0000s'),
+    });
+    expect(r0?.status === 'rejected' && r0.error).not.toContain('\u0000');
+    expect(r1).toMatchObject({ status: 'applied' });
+    const [again] = (await tabA.pushOk([odd])).results;
+    expect(again).toEqual({ ...r0, replayed: true });
+    const half = tabA.change({ recordId: newId(), fields: { siteId: SITE_A, 'x\ud800': 1 } });
+    const [r2] = (await tabA.pushOk([half])).results;
+    expect(r2).toMatchObject({
+      status: 'rejected',
+      error: expect.stringContaining('unknown field x\ufffd'),
+    });
+  });
 });
 
 describe('POST /api/sync/push: replays', () => {
