@@ -2,7 +2,7 @@
 // npm run bench:sync — push throughput of the sync server (its production bundle) against a
 // throwaway PostgreSQL cluster: batches of 500 changes from one and four tablets, beside a plain
 // batched INSERT … ON CONFLICT of the same rows, with a breakdown of where the push time goes.
-// Then the tablet's first sync into Dexie. Figures are printed, not asserted. BENCH_BATCHES sets the batches per tablet (default 6).
+// Then the tablet's first sync into Dexie. Figures are printed, not asserted. BENCH_BATCHES sets the batches per tablet (default 8).
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { ensurePostgres, freePort, repoRoot, run, startCluster, stopCluster } from './lib.mjs';
