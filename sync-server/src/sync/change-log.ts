@@ -52,8 +52,8 @@ export interface ChangeLogEntry {
  *
  * Each change travels once, as one row of one JSON parameter, and each table takes its columns
  * from it: the stored result and the audit detail are built in SQL from the row's own values, and
- * what most rows share (the audit kind, site and collection) is bound once, a row carrying its own
- * only where it differs. The change id goes in as sent (text), so a replay answers with the id
+ * what most rows share (the audit kind, site and collection) is bound once and filled in where a
+ * row carries none (the `x` rows), a row carrying its own only where it differs. The change id goes in as sent (text), so a replay answers with the id
  * exactly as it came.
  */
 export async function storeResults(
@@ -89,12 +89,12 @@ export async function storeResults(
     actorId: claimant.userId,
     deviceId: claimant.deviceId,
     id: 'x."a"',
-    kind: 'coalesce(x."n", ?::text)',
-    siteId: 'coalesce(x."i", ?::uuid)',
-    subjectType: 'coalesce(x."o", ?::text)',
+    kind: 'x."n"',
+    siteId: 'x."i"',
+    subjectType: 'x."o"',
     subjectId: 'x."r"::text',
     detail: {
-      collection: 'coalesce(x."o", ?::text)',
+      collection: 'x."o"',
       changeId: 'x."c"',
       version: 'x."v"',
       status: 'x."s"',
@@ -106,8 +106,10 @@ export async function storeResults(
   const logged = await sqlRows<{ change_id: string }>(
     em,
     `with "x" as (
-       select * from jsonb_to_recordset(?::jsonb)
-         as x("c" text, "s" text, "v" bigint, "r" uuid, "k" jsonb, "e" text, "a" uuid, "f" jsonb, "n" text, "i" uuid, "o" text)
+       select r."c", r."s", r."v", r."r", r."k", r."e", r."a", r."f",
+              coalesce(r."n", ?::text) as "n", coalesce(r."i", ?::uuid) as "i", coalesce(r."o", ?::text) as "o"
+         from jsonb_to_recordset(?::jsonb)
+           as r("c" text, "s" text, "v" bigint, "r" uuid, "k" jsonb, "e" text, "a" uuid, "f" jsonb, "n" text, "i" uuid, "o" text)
      ), "logged" as (
        insert into "sync_change" ("change_id", "user_id", "device_id", "status", "version", "record_id", "result", "received_at")
        select x."c"::uuid, ?::uuid, ?, x."s", x."v", x."r",
@@ -125,15 +127,14 @@ export async function storeResults(
      )
      select "change_id" from "logged"`,
     [
+      common?.kind ?? null,
+      common?.siteId ?? null,
+      common?.collection ?? null,
       jsonParam(rows),
       claimant.userId,
       claimant.deviceId,
       at.toISOString(),
       ...auditInsert.bindings,
-      common?.kind ?? null,
-      common?.siteId ?? null,
-      common?.collection ?? null,
-      common?.collection ?? null,
     ],
   );
   return new Set(logged.map((row) => row.change_id));
