@@ -25,17 +25,19 @@ export class SimTablet {
   readonly acks: Array<{ entry: OutboxEntry; result: PushResult }> = [];
   /** Who is using the tablet now. */
   user: TestUser;
+  private readonly people: TestUser[];
 
   constructor(
     readonly name: string,
     private readonly clinic: Clinic,
     readonly device: TestDevice,
     people: TestUser[],
-    options: { schemaVersion?: number; pageLimit?: number } = {},
+    private readonly options: { schemaVersion?: number; pageLimit?: number; dbName?: string } = {},
   ) {
     tabletCount += 1;
+    this.people = people;
     this.user = people[0] as TestUser;
-    this.db = new FuselightDb(`tablet-${name}-${process.pid}-${tabletCount}`);
+    this.db = new FuselightDb(options.dbName ?? `tablet-${name}-${process.pid}-${tabletCount}`);
     this.records = new RecordsRepository(this.db);
     this.outbox = new OutboxRepository(this.db);
     this.auth = new ServerSyncAuth(clinic.baseUrl, device, new Map(people.map((p) => [p.id, p])));
@@ -139,6 +141,22 @@ export class SimTablet {
           },
         ]),
     );
+  }
+
+  /**
+   * The app reloaded: this engine stops and its database connection closes; a new tablet object
+   * opens the same database with a new engine (same device, people and options).
+   */
+  async reload(): Promise<SimTablet> {
+    this.engine.stop();
+    const dbName = this.db.name;
+    this.db.close();
+    const next = new SimTablet(this.name, this.clinic, this.device, this.people, {
+      ...this.options,
+      dbName,
+    });
+    await next.engine.loadPersistedStatus();
+    return next;
   }
 
   async close(): Promise<void> {

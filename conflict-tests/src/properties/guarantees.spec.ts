@@ -3,16 +3,20 @@
 import { jsonEqual, type ConflictItem, type PushResult } from '@fuselight/shared';
 import type { OutboxEntry } from '@pwa/data/db';
 import type { TestDevice, TestUser } from '@server/testing/identity-factory';
+import { startVersionsBelowPowerOfTen, versionLengths } from '@server/testing/version-boundary';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startClinic, type Clinic } from '../harness/clinic-server';
 import type { Fault } from '../harness/faulty-network';
+import { databaseSnapshot, firstSyncThroughPull } from '../harness/server-records';
 import { deskToken, listConflicts, serverSnapshot } from '../harness/server-view';
 import { SimTablet } from '../harness/sim-tablet';
 
 const TABLETS = 3;
 const PATIENTS = 2;
 const FIELDS = ['givenName', 'familyName', 'notes'] as const;
+/** Pull page sizes the tablets use, small so a first sync spans many pages. */
+const PAGE_LIMITS = [1, 2, 7, 50] as const;
 
 type Op =
   | { kind: 'edit'; tablet: number; patient: number; field: (typeof FIELDS)[number]; value: string }
@@ -114,6 +118,9 @@ beforeAll(async () => {
     devices.push(await clinic.device());
   }
   supervisorToken = await deskToken(clinic, await clinic.person('supervisor'));
+  // Versions start just below a power of ten: the first runs cross into one digit more, and the
+  // tablets of every later run first-sync through records of both lengths.
+  await startVersionsBelowPowerOfTen(clinic.t.db.url, { transactionsBefore: 20 });
 });
 
 afterAll(async () => {
@@ -130,7 +137,9 @@ async function runSchedule(ops: Op[]): Promise<void> {
   run += 1;
   const tablets = devices.map(
     (device, i) =>
-      new SimTablet(`p${run}-${i}`, clinic, device, [people[i] as TestUser, ...people]),
+      new SimTablet(`p${run}-${i}`, clinic, device, [people[i] as TestUser, ...people], {
+        pageLimit: PAGE_LIMITS[(run + i) % PAGE_LIMITS.length]!,
+      }),
   );
   try {
     // Two patients everyone holds before the schedule starts.
@@ -238,11 +247,20 @@ async function runSchedule(ops: Op[]): Promise<void> {
     }
 
     const token = await tablets[0]!.auth.tokenFor(people[0]!.id);
-    const server = await serverSnapshot(clinic, token!);
+    // The server's records as its tables hold them, and as a first sync through pull sees them:
+    // each once, in ascending numeric order, whatever the page size.
+    const server = await databaseSnapshot(clinic);
+    expect(await serverSnapshot(clinic, token!)).toEqual(server);
+    for (const limit of PAGE_LIMITS) {
+      const pulled = await firstSyncThroughPull(clinic, token!, limit);
+      expect(pulled.map((r) => r.key).sort()).toEqual(Object.keys(server).sort());
+      const versions = pulled.map((r) => r.version);
+      expect(versions).toEqual([...versions].sort((a, b) => a - b));
+    }
     const acks: Ack[] = tablets.flatMap((t, i) => t.acks.map((ack) => ({ tablet: i, ...ack })));
 
-    // Guarantee 1, convergence (and 4: every tablet pulled incrementally, the server view is a
-    // fresh pull from 0, so a change skipped behind a cursor would show as a difference).
+    // Guarantee 1, convergence (and 4: every tablet pulled incrementally, the server view is read
+    // from its tables, so a change skipped behind a cursor would show as a difference).
     for (const t of tablets) {
       const mine = await t.snapshot();
       expect(Object.keys(mine).sort()).toEqual(Object.keys(server).sort());
@@ -343,5 +361,8 @@ describe('guarantees over random schedules of edits and network faults', () => {
       fc.asyncProperty(fc.array(opArb, { minLength: 4, maxLength: 24 }), runSchedule),
       { numRuns: Number(process.env.FUSELIGHT_PROPERTY_RUNS ?? 12), endOnFailure: true },
     );
+    // The runs did cross the power of ten: the server holds versions of two lengths.
+    const versions = Object.values(await databaseSnapshot(clinic)).map((r) => r.version);
+    expect(versionLengths(versions).length).toBeGreaterThanOrEqual(2);
   });
 });

@@ -5,7 +5,7 @@ import { FuselightDb } from '../data/db';
 import { RecordsRepository } from '../data/records-repository';
 import { CLINICIAN_ID, DEVICE_ID, patientFields } from '../data/test-fixtures';
 import { SyncEngine } from '../sync/sync-engine';
-import { describeLastSynced, SyncIndicator } from './SyncIndicator';
+import { describeLastSynced, describeRepullForBar, SyncIndicator } from './SyncIndicator';
 
 const dbs: FuselightDb[] = [];
 afterEach(async () => {
@@ -75,5 +75,33 @@ describe('the sync indicator', () => {
     expect(describeLastSynced(now - 5 * 60_000, now)).toBe('Synced 5 min ago');
     expect(describeLastSynced(now - 3 * 60 * 60_000, now)).toMatch(/^Synced at /);
     expect(describeLastSynced(now - 3 * 24 * 60 * 60_000, now)).toMatch(/^Synced on /);
+  });
+
+  it('shows a full re-sync under way, and its end for a few minutes', () => {
+    const { engine } = engineWith({ online: true });
+    engine.status.update({
+      fullRepull: { reason: 'cursor-epoch', startedAt: Date.now(), finishedAt: null, received: 42 },
+    });
+    const { unmount } = render(<SyncIndicator engine={engine} compact />);
+    expect(screen.getByRole('status').textContent).toContain('Full re-sync: 42 received');
+    unmount();
+    engine.status.update({
+      fullRepull: { reason: 'cursor-epoch', startedAt: 1, finishedAt: Date.now(), received: 42 },
+    });
+    render(<SyncIndicator engine={engine} />);
+    expect(screen.getByRole('status').textContent).toMatch(
+      /Full re-sync done at .*: 42 records received\./,
+    );
+    const now = Date.now();
+    const done = {
+      reason: 'horizon' as const,
+      startedAt: 1,
+      finishedAt: now - 11 * 60_000,
+      received: 3,
+    };
+    expect(
+      describeRepullForBar({ ...engine.status.getSnapshot(), fullRepull: done }, now, false),
+    ).toBeNull();
+    engine.stop();
   });
 });

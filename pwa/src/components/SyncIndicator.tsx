@@ -3,7 +3,13 @@
 import { IonIcon, IonSpinner } from '@ionic/react';
 import { cloudDoneOutline, cloudOfflineOutline, syncOutline, warningOutline } from 'ionicons/icons';
 import { useEffect, useState } from 'react';
-import { requestSyncNow, useSyncStatus, type SyncEngine, type SyncStatus } from '../sync';
+import {
+  describeFullRepull,
+  requestSyncNow,
+  useSyncStatus,
+  type SyncEngine,
+  type SyncStatus,
+} from '../sync';
 
 /** "just now", "3 min ago", "at 09:41", or "on 1 Dec" for an older time. */
 export function describeLastSynced(lastSyncedAt: number | null, nowMs: number): string {
@@ -22,6 +28,29 @@ export function describeOutbox(status: SyncStatus): string {
   if (status.outboxCount === 0) return 'Outbox empty';
   const waiting = `${status.pendingCount} waiting`;
   return status.rejectedCount > 0 ? `${waiting}, ${status.rejectedCount} refused` : waiting;
+}
+
+/** How long the bar still says a full re-sync finished. */
+const REPULL_DONE_SHOWN_MS = 10 * 60_000;
+
+const clockTime = (ms: number) =>
+  new Date(ms).toLocaleTimeString(undefined, { hour: '2-digit', minute: '2-digit' });
+
+/** A full re-sync under way, or one that ended in the last few minutes; null otherwise. */
+export function describeRepullForBar(
+  status: SyncStatus,
+  nowMs: number,
+  compact: boolean,
+): string | null {
+  const repull = status.fullRepull;
+  if (!repull) return null;
+  if (repull.finishedAt !== null && nowMs - repull.finishedAt > REPULL_DONE_SHOWN_MS) return null;
+  if (compact) {
+    return repull.finishedAt === null
+      ? `Full re-sync: ${repull.received.toLocaleString()} received`
+      : `Full re-sync done`;
+  }
+  return describeFullRepull(repull, clockTime);
 }
 
 function describeProgress(status: SyncStatus): string | null {
@@ -45,6 +74,7 @@ export function SyncIndicator(props: {
   }, []);
   const busy = status.phase === 'pushing' || status.phase === 'pulling';
   const progress = describeProgress(status);
+  const repull = describeRepullForBar(status, nowMs, props.compact === true);
   const syncNow = () => {
     if (props.onSyncNow) void props.onSyncNow();
     else if (props.engine) void props.engine.syncNow();
@@ -84,6 +114,7 @@ export function SyncIndicator(props: {
           <span className="fl-muted">· {describeLastSynced(status.lastSyncedAt, nowMs)}</span>
         )}
         {progress ? <span>· {progress}</span> : null}
+        {repull ? <span className="fl-sync-repull">· {repull}</span> : null}
       </span>
       {props.compact ? (
         status.error ? (

@@ -20,3 +20,4 @@ export {
   type AppSyncOptions,
 } from './sync-runtime';
 export { useSyncStatus } from './useSyncStatus';
+export { describeFullRepull, type FullRepull, type FullRepullReason } from './full-repull';

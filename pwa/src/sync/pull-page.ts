@@ -12,6 +12,7 @@ import {
   type PullPage,
   type PulledRecord,
 } from '@fuselight/shared';
+import { resetReasonOf, type FullRepullReason } from './full-repull';
 
 /** The clinic server sent a pull answer that is not protocol 1; `path` names the first problem. */
 export class PullPageError extends Error {
@@ -29,7 +30,11 @@ export interface ReadPullPage extends PullPage {
   greatestStamp: string | null;
 }
 
-export type ReadPullResponse = ReadPullPage | { reset: true };
+export interface ReadPullReset {
+  reset: true;
+  reason: FullRepullReason;
+}
+export type ReadPullResponse = ReadPullPage | ReadPullReset;
 
 const collections: ReadonlySet<string> = new Set<CollectionName>(COLLECTIONS);
 // The same pattern as zod's z.uuid() (versions 1 to 8, the nil and the max uuid).
@@ -112,7 +117,7 @@ export function readPullResponse(json: unknown): ReadPullResponse {
     return readPage(json);
   } catch (error) {
     // As pullResponseSchema's union: what is not a page may still be a reset.
-    if (json.reset === true) return { reset: true };
+    if (json.reset === true) return { reset: true, reason: resetReasonOf(json.reason) };
     throw error;
   }
 }
@@ -136,6 +141,6 @@ function readPage(json: Record<string, unknown>): ReadPullPage {
   };
 }
 
-export function isReadPullReset(response: ReadPullResponse): response is { reset: true } {
+export function isReadPullReset(response: ReadPullResponse): response is ReadPullReset {
   return 'reset' in response;
 }

@@ -23,9 +23,14 @@ import {
   applyPushResults,
   claimForSending,
   readCursor,
-  writeCursor,
   type PullApplyTimings,
 } from './local-apply';
+import {
+  beginFullRepull,
+  finishFullRepull,
+  noteFullRepullPage,
+  readFullRepull,
+} from './full-repull';
 import { PullPageError, isReadPullReset, readPullResponse } from './pull-page';
 import type { SyncAuth } from './sync-auth';
 import { SyncStatusStore, type SyncStatus } from './sync-status';
@@ -293,11 +298,13 @@ export class SyncEngine {
     this.status.update({ nextAttemptAt: this.clock.now() + delayMs });
   }
 
-  private async loadPersistedStatus(): Promise<void> {
+  /** Reads what the status keeps across reloads (last sync, a full re-pull) and the counts. */
+  async loadPersistedStatus(): Promise<void> {
     const lastSynced = (await this.db.meta.get(LAST_SYNCED_KEY))?.value;
     if (typeof lastSynced === 'number' && this.status.getSnapshot().lastSyncedAt === null) {
       this.status.update({ lastSyncedAt: lastSynced });
     }
+    this.status.update({ fullRepull: await readFullRepull(this.db) });
     await this.refreshCounts();
   }
 
@@ -674,7 +681,9 @@ export class SyncEngine {
           );
         }
         cursor = 0;
-        await writeCursor(this.db, 0);
+        // Keeps the Outbox and pending edits; what arrives merges as in any pull.
+        const repull = await beginFullRepull(this.db, page.reason, this.clock.now());
+        this.status.update({ fullRepull: repull });
         continue;
       }
       if (page.more) {
@@ -706,6 +715,11 @@ export class SyncEngine {
         notifyDataChange({ collections: applied.collections as CollectionName[], outbox: false });
       }
       cursor = page.cursor;
+      if (this.status.getSnapshot().fullRepull?.finishedAt === null) {
+        let repull = await noteFullRepullPage(this.db, page.records.length);
+        if (!page.more) repull = await finishFullRepull(this.db, this.clock.now());
+        this.status.update({ fullRepull: repull });
+      }
       if (!page.more) return received;
       await this.yieldToUi();
     }

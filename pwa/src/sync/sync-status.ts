@@ -1,6 +1,8 @@
 // What the person sees of sync: online or not, when the tablet last synced, what is waiting in
 // the Outbox, the progress of a long pull, and any problem in words. One small store per engine,
 // read by React through useSyncExternalStore.
+import type { FullRepull } from './full-repull';
+
 export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
 
 export interface SyncProgress {
@@ -27,6 +29,8 @@ export interface SyncStatus {
   needsSignIn: string[];
   nextAttemptAt: number | null;
   consecutiveFailures: number;
+  /** A pull from the start the server asked for: under way (finishedAt null) or the last one done. */
+  fullRepull: FullRepull | null;
 }
 
 export const INITIAL_SYNC_STATUS: SyncStatus = {
@@ -42,6 +46,7 @@ export const INITIAL_SYNC_STATUS: SyncStatus = {
   needsSignIn: [],
   nextAttemptAt: null,
   consecutiveFailures: 0,
+  fullRepull: null,
 };
 
 export class SyncStatusStore {

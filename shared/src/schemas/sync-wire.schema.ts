@@ -170,8 +170,17 @@ export const pullPageSchema = z.object({
 });
 export type PullPage = z.infer<typeof pullPageSchema>;
 
-/** The device's cursor is behind the tombstone horizon: pull again from 0. */
-export const pullResetSchema = z.object({ reset: z.literal(true) });
+/**
+ * Pull again from 0, keeping the Outbox and local edits: the device's cursor is behind the
+ * tombstone horizon (`horizon`), or was handed out before the server's cursor epoch, when pages
+ * could skip records (`cursor-epoch`). Servers before the epoch send no reason.
+ */
+export const PULL_RESET_REASONS = ['horizon', 'cursor-epoch'] as const;
+export type PullResetReason = (typeof PULL_RESET_REASONS)[number];
+export const pullResetSchema = z.object({
+  reset: z.literal(true),
+  reason: z.enum(PULL_RESET_REASONS).optional(),
+});
 export type PullReset = z.infer<typeof pullResetSchema>;
 
 export const pullResponseSchema = z.union([pullPageSchema, pullResetSchema]);

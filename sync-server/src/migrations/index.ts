@@ -9,6 +9,7 @@ import { Migration20261201050000LettersMail } from './Migration20261201050000Let
 import { Migration20261201050100FinalLetterGuard } from './Migration20261201050100FinalLetterGuard';
 import { Migration20261201060000AddendumRecords } from './Migration20261201060000AddendumRecords';
 import { Migration20261202000000SupersededHistory } from './Migration20261202000000SupersededHistory';
+import { Migration20261204000000VersionOffsetAndCursorEpoch } from './Migration20261204000000VersionOffsetAndCursorEpoch';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -24,5 +25,9 @@ export const migrationsList: MigrationObject[] = [
   {
     name: 'Migration20261202000000SupersededHistory',
     class: Migration20261202000000SupersededHistory,
+  },
+  {
+    name: 'Migration20261204000000VersionOffsetAndCursorEpoch',
+    class: Migration20261204000000VersionOffsetAndCursorEpoch,
   },
 ];

@@ -36,8 +36,8 @@ let client: pg.Client;
 
 async function history(): Promise<HistoryRow[]> {
   const { rows } = await client.query<HistoryRow>(
-    `select "record_id", "field", "value", "hlc", "version"::text as "version", "by_user", "device"
-       from "review_field_value" order by "record_id", "field", "version"`,
+    `select h."record_id", h."field", h."value", h."hlc", h."version"::text as "version", h."by_user", h."device"
+       from "review_field_value" h order by h."record_id", h."field", h."version"`,
   );
   return rows;
 }

@@ -17,19 +17,33 @@
 // the hold-back the protocol allows, bounded by the statement and idle-in-transaction timeouts.
 // Versions stay one strictly increasing server-wide counter (PostgreSQL's transaction counter,
 // refined by the change's place in its transaction); they are not dense.
+//
+// The transaction id is first raised by `sync_version_offset.xid_offset` (0 on a new server): a
+// restore into a fresh cluster raises it so new versions stay above the stored ones, and tests
+// raise it to start versions just below a power of ten. It changes only while nothing writes.
+//
+// Versions are bigints in SQL and numbers on the wire; they are compared and ordered as numbers
+// everywhere. A select that casts "version" to text must not also order by the bare name
+// "version": ORDER BY resolves an output alias first, so pages came out in text order
+// (1000001 before 743001) and cursors skipped records. sql-alias-order.spec.ts catches that.
+
+/** Epoch of the cursors this server hands out. Cursors of epoch 1 came from text-ordered pages. */
+export const CURSOR_EPOCH = 2;
 
 /** Versions one transaction can number; a push carries at most 500 changes. */
 export const VERSIONS_PER_TRANSACTION = 1000;
+
+const XID_OFFSET_SQL = `(select "xid_offset" from "sync_version_offset")`;
 
 /**
  * First statement of a writing transaction: assigns its transaction id (so every version it
  * numbers is above the watermark of any snapshot taken while it runs) and bounds how long one
  * statement may hold back pulls.
  */
-export const BEGIN_VERSIONED_WRITE_SQL = `select (pg_current_xact_id()::text::bigint * ${VERSIONS_PER_TRANSACTION})::text as "base", set_config('statement_timeout', '5000', true) as "timeout"`;
+export const BEGIN_VERSIONED_WRITE_SQL = `select ((pg_current_xact_id()::text::bigint + ${XID_OFFSET_SQL}) * ${VERSIONS_PER_TRANSACTION})::text as "base", set_config('statement_timeout', '5000', true) as "timeout"`;
 
 /** Versions below this bound are final in the pull's snapshot (see above). */
-export const SAFE_VERSION_BOUND_SQL = `pg_snapshot_xmin(pg_current_snapshot())::text::bigint * ${VERSIONS_PER_TRANSACTION}`;
+export const SAFE_VERSION_BOUND_SQL = `(pg_snapshot_xmin(pg_current_snapshot())::text::bigint + ${XID_OFFSET_SQL}) * ${VERSIONS_PER_TRANSACTION}`;
 
 /** Numbers the changes of one transaction. */
 export class VersionAllocator {

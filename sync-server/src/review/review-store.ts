@@ -167,8 +167,8 @@ export interface FieldValueRow {
 export async function fieldValuesOf(em: EntityManager, recordId: string): Promise<FieldValueRow[]> {
   return sqlRows<FieldValueRow>(
     em,
-    `select "field", "value", "hlc", "version"::text as "version", "by_user", "device", "at"
-       from "review_field_value" where "record_id" = ? order by "version", "field"`,
+    `select h."field", h."value", h."hlc", h."version"::text as "version", h."by_user", h."device", h."at"
+       from "review_field_value" h where h."record_id" = ? order by h."version", h."field"`,
     [recordId],
   );
 }

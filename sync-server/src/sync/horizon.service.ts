@@ -1,7 +1,8 @@
 // The tombstone horizon (sync-protocol.md, "Pull"): tombstones and the change-id log are kept for
 // config.tombstoneHorizonDays, longer than any clinic's offline period. Pruning moves the horizon
 // marker to the newest version it removed; a device whose cursor is older may have missed a
-// removed tombstone, so its pull answers `{ "reset": true }` and it pulls again from 0.
+// removed tombstone, so its pull answers `{ "reset": true, "reason": "horizon" }` and it pulls
+// again from 0.
 import { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable } from '@nestjs/common';
 import { CLOCK, type Clock } from '../common/clock.provider';

@@ -1,10 +1,12 @@
 // Guarantee 4 under load: four tablets push concurrently while a puller walks its cursor, and a
 // slow writer keeps committing changes numbered below versions the puller has already been sent
 // (an out-of-order commit). The puller must end up with every record, never going backwards.
+// Versions start just below a power of ten, so the run crosses a change in their digit count.
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { isPullReset } from '@fuselight/shared';
 import type { TestApp } from '../testing/test-app';
+import { startVersionsBelowPowerOfTen, versionLengths } from '../testing/version-boundary';
 import {
   SITE_A,
   createSyncTestApp,
@@ -30,6 +32,13 @@ describe('pull cursors under concurrent pushes', () => {
     const puller = await tabletFor(t, 'orthoptist', [SITE_A]);
     const expected = new Set<string>();
     let pushing = true;
+    // Records from before the boundary, then versions a few pushes below it.
+    const early = Array.from({ length: 30 }, () => newId());
+    await pushers[0]!.pushOk(
+      early.map((recordId) => pushers[0]!.change({ recordId, fields: patientFields(SITE_A) })),
+    );
+    early.forEach((id) => expected.add(id));
+    const { boundary } = await startVersionsBelowPowerOfTen(t.db.url, { transactionsBefore: 12 });
 
     // Pushers keep going until the slow writer is done, so its commits always land behind theirs.
     let slowWriterDone = false;
@@ -53,7 +62,7 @@ describe('pull cursors under concurrent pushes', () => {
           const id = newId();
           await client.query('begin');
           const { rows } = await client.query<{ v: string }>(
-            `select (pg_current_xact_id()::text::bigint * 1000 + 1)::text as v`,
+            `select ((pg_current_xact_id()::text::bigint + (select "xid_offset" from "sync_version_offset")) * 1000 + 1)::text as v`,
           );
           const version = Number(rows[0]?.v);
           await client.query(
@@ -114,6 +123,15 @@ describe('pull cursors under concurrent pushes', () => {
     expect(pages).toBeGreaterThan(5);
     const missing = [...expected].filter((id) => !received.has(id));
     expect(missing).toEqual([]);
-    expect(expected.size).toBeGreaterThanOrEqual(4 * 12 * 20 + 6);
+    expect(expected.size).toBeGreaterThanOrEqual(4 * 12 * 20 + 6 + 30);
+    // The run did cross the boundary: versions of both lengths were there to be paged through.
+    const versions = (
+      await t
+        .em()
+        .getConnection()
+        .execute<{ v: string }[]>(`select r."version"::text as "v" from "sync_record" r`)
+    ).map((row) => Number(row.v));
+    expect(versions.some((v) => v < boundary) && versions.some((v) => v >= boundary)).toBe(true);
+    expect(versionLengths(versions).length).toBeGreaterThanOrEqual(2);
   }, 120_000);
 });

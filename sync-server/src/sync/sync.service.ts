@@ -44,6 +44,7 @@ import {
 } from '../records/record-store';
 import {
   BEGIN_VERSIONED_WRITE_SQL,
+  CURSOR_EPOCH,
   SAFE_VERSION_BOUND_SQL,
   VersionAllocator,
 } from '../records/record-version';
@@ -241,23 +242,39 @@ export class SyncService {
     const { after, limit } = parseWith(pullQuerySchema, query, 'query');
     if (!canReadClinical(user)) return { records: [], cursor: after, more: false };
     const sites = sitesOf(user);
+    // A pull from the start puts the tablet's cursors in this server's epoch (see CURSOR_EPOCH).
+    if (after === 0 && user.deviceId !== null) {
+      await sqlRows(this.em.fork(), MARK_CURSOR_EPOCH_SQL, [
+        CURSOR_EPOCH,
+        user.deviceId,
+        CURSOR_EPOCH,
+      ]);
+    }
     return this.em.fork().transactional(
       async (em): Promise<PullResponse> => {
         // The first statement fixes the snapshot; the bound and the rows come from the same one.
-        const [head] = await sqlRows<{ bound: string; horizon: string }>(
+        const [head] = await sqlRows<{ bound: string; horizon: string; epoch: number | null }>(
           em,
-          `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon"`,
+          `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon",
+                  (select d."pull_epoch" from "device" d where d."id" = ?::uuid) as "epoch"`,
+          [user.deviceId],
         );
         const bound = Number(head?.bound ?? 0);
         const horizon = Number(head?.horizon ?? 0);
-        if (after > 0 && after < horizon) return { reset: true };
+        if (after > 0 && after < horizon) return { reset: true, reason: 'horizon' };
+        // A cursor handed out before CURSOR_EPOCH may have skipped records: start over once.
+        if (after > 0 && head?.epoch != null && head.epoch < CURSOR_EPOCH) {
+          return { reset: true, reason: 'cursor-epoch' };
+        }
+        // Ordered and compared as numbers: "sync_record"."version" is the bigint column, never
+        // the text alias of the select list.
         const rows = await sqlRows<StoredRecordRow>(
           em,
-          `select "id", "collection", "site_id", "version"::text as "version", "deleted", "fields", "stamps", "created_at"
-             from "sync_record"
-            where "version" > ? and "version" < ?
-              and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
-            order by "version" limit ?`,
+          `select r."id", r."collection", r."site_id", r."version"::text as "version", r."deleted", r."fields", r."stamps", r."created_at"
+             from "sync_record" r
+            where r."version" > ? and r."version" < ?
+              and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
+            order by r."version" limit ?`,
           [after, bound, jsonParam(sites), limit + 1],
         );
         // A committed change beyond the watermark (an older transaction is still open) is not
@@ -296,6 +313,8 @@ export class SyncService {
     );
   }
 }
+
+const MARK_CURSOR_EPOCH_SQL = `update "device" set "pull_epoch" = ? where "id" = ?::uuid and "pull_epoch" < ?`;
 
 /** One result per change of the request, in its order; a repeated id is a replay of its first. */
 function resultsInRequestOrder(

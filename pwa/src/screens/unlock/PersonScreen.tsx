@@ -9,13 +9,28 @@ import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Confirmation, SelectField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { describeFullRepull, useSyncStatus, type FullRepull } from '../../sync';
 import { identityKeys } from '../admin/identity-query-keys';
+
+/** The tablet's full re-syncs in words: under way, the last one done, or none needed yet. */
+export function FullRepullNote(props: { repull: FullRepull | null }) {
+  const text = describeFullRepull(props.repull, (ms) => new Date(ms).toLocaleString());
+  return (
+    <section aria-label="Full re-sync">
+      <h2 style={{ fontSize: '1.1rem' }}>Sync on this tablet</h2>
+      <p role="status" aria-live="polite">
+        {text ?? 'No full re-sync has been needed on this tablet.'}
+      </p>
+    </section>
+  );
+}
 
 export default function PersonScreen() {
   const { user, activeSiteId, deviceId } = useSession();
   const { people, policy, sites } = useAuthState();
   const actions = useAuthActions();
   const navigate = useNavigate();
+  const sync = useSyncStatus();
   const [confirmingSignOut, setConfirmingSignOut] = useState(false);
   const waiting = useQuery({
     queryKey: identityKeys.waitingChanges(user?.id ?? ''),
@@ -54,6 +69,7 @@ export default function PersonScreen() {
           The clinic allows {policy.offlineUnlockHours} hours offline.
         </p>
       ) : null}
+      {deviceId ? <FullRepullNote repull={sync.fullRepull} /> : null}
       <div className="fl-id-row">
         {deviceId ? (
           <Button tone="quiet" onClick={() => navigate('/pin')}>
