@@ -25,6 +25,43 @@ describe('the installed app shell', () => {
     await page.close();
   });
 
+  it('loads its hashed scripts and styles compressed and cacheable for a year', async () => {
+    const page = await context.newPage();
+    const assets: Array<{
+      url: string;
+      encoding: string | undefined;
+      cache: string | undefined;
+      length: number | null;
+    }> = [];
+    page.on('response', (res) => {
+      if (!/\/assets\/[^/]+\.(js|css)$/.test(new URL(res.url()).pathname)) return;
+      if (res.fromServiceWorker()) return;
+      const headers = res.headers();
+      assets.push({
+        url: res.url(),
+        encoding: headers['content-encoding'],
+        cache: headers['cache-control'],
+        length: headers['content-length'] === undefined ? null : Number(headers['content-length']),
+      });
+    });
+    await page.goto(baseUrl());
+    await page
+      .getByRole('heading', { name: /^(Sign in|Today)$/ })
+      .first()
+      .waitFor();
+    expect(assets.length).toBeGreaterThan(2);
+    expect(
+      assets.filter((a) => a.encoding === 'br' || a.encoding === 'gzip').length,
+    ).toBeGreaterThan(2);
+    for (const asset of assets) {
+      // Answers under a kilobyte are not worth compressing (sync-server/src/app.factory.ts).
+      if (asset.encoding === undefined) expect(asset.length, asset.url).toBeLessThan(1024);
+      else expect(['br', 'gzip'], asset.url).toContain(asset.encoding);
+      expect(asset.cache, asset.url).toBe('public, max-age=31536000, immutable');
+    }
+    await page.close();
+  });
+
   it('opens with the network off after one online visit', async () => {
     const page = await context.newPage();
     await page.goto(baseUrl());
