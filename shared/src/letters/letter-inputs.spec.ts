@@ -128,7 +128,7 @@ describe('letterInputsOf: which records feed a letter', () => {
     const shuffled = [...records.sections].reverse();
     const current = visitFindingsOf(records.visit, shuffled);
     expect(current.amblyoscopeAngles?.objectiveHorizontalDeg).toBe(
-      exampleVisits.third.amblyoscopeAngles.objectiveHorizontalDeg,
+      exampleVisits.third.amblyoscopeAngles?.objectiveHorizontalDeg,
     );
     expect(current.plan?.impression).toBe(exampleVisits.third.plan.impression);
     const second = visitFindingsOf(records.patientVisits[1]!, shuffled);
