@@ -6,7 +6,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { z } from 'zod';
 import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
-import { ageOnDate, type VisitSectionValues } from '../../components/charting/interpretations';
+import { ageOnDate, type VisitSectionValues } from '@fuselight/shared';
 import { fieldLabel, formatFieldValue, formatInstant, sectionLabel } from './field-format';
 import { reviewKeys, type CountersignItem } from './review-api';
 import { useReviewApi } from './review-context';

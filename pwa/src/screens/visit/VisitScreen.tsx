@@ -13,7 +13,7 @@ import {
   IonTitle,
   IonToolbar,
 } from '@ionic/react';
-import type { SectionCollectionName } from '@fuselight/shared';
+import { ageOnDate, type SectionCollectionName, type VisitSectionValues } from '@fuselight/shared';
 import { useCallback, useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router-dom';
 import { AttachmentPanel } from '../../attachments/AttachmentPanel';
@@ -32,7 +32,6 @@ import {
   VisitStatusBadge,
 } from '../../components/charting/ScreenState';
 import { describeAge, formatDate, patientFullName } from '../../components/charting/format';
-import { ageOnDate, type VisitSectionValues } from '../../components/charting/interpretations';
 import type { SaveStatus } from '../../components/charting/useSectionAutosave';
 import '../../components/charting/charting.css';
 import { useEditContext } from '../../data';

@@ -1,6 +1,6 @@
 import { useVisitBundle } from '../../../data/charting';
 import { benchFields } from '../../../data/bench';
-import { bsvInconsistencies } from '../bench-interpretations';
+import { bsvGradesOf } from '@fuselight/shared';
 
 /** The BSV hierarchy check at the point of entry: says so when a grade sits on an absent one. */
 export function BsvCheck({
@@ -15,7 +15,7 @@ export function BsvCheck({
   };
 }) {
   const bundle = useVisitBundle(visitId).data;
-  const problems = bsvInconsistencies({
+  const { problems } = bsvGradesOf({
     simultaneousPerception: {
       ...benchFields(bundle, 'simultaneousPerception'),
       ...overrides?.simultaneousPerception,
