@@ -16,3 +16,4 @@ export * from './fusional-norms';
 export * from './fusional-ranges';
 export * from './suppression-scotoma';
 export * from './interpretation';
+export * from './section-labels';
