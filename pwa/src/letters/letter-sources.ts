@@ -1,28 +1,16 @@
 // Builds a visit's letter on the tablet from the records in IndexedDB (offline): the letter, its
-// visit and patient, the sections of this and earlier visits, through the records repository.
+// visit and patient, the patient's visits and their Section records, read through the records
+// repository; which of them feed the letter, and its date, is the shared rule (letterLayoutOf)
+// the server applies to the letter it mails.
 import {
-  buildClinicLetter,
-  buildExerciseHandout,
+  earlierVisitsOf,
+  LETTER_SECTION_COLLECTIONS,
+  letterLayoutOf,
   type ClinicDetails,
   type ClinicianDetails,
-  type CollectionName,
   type LetterLayout,
-  type VisitFindings,
 } from '@fuselight/shared';
 import type { LocalRecord, RecordsRepository } from '../data';
-
-const LETTER_SECTIONS = [
-  'visualAcuity',
-  'coverTest',
-  'prismCoverTest',
-  'simultaneousPerception',
-  'amblyoscopeAngles',
-  'fusion',
-  'fusionalRanges',
-  'nearPointConvergence',
-  'stereoacuity',
-  'plan',
-] as const satisfies readonly CollectionName[];
 
 export class LetterSourceError extends Error {
   override readonly name = 'LetterSourceError';
@@ -33,20 +21,6 @@ export interface LetterContext {
   clinician: ClinicianDetails;
   /** Today on the tablet, YYYY-MM-DD (used for a draft; a final letter keeps its own date). */
   today: string;
-}
-
-async function findingsOf(
-  records: RecordsRepository,
-  visit: LocalRecord<'visit'>,
-): Promise<VisitFindings> {
-  const findings: VisitFindings = {
-    visit: { id: visit.id, date: visit.fields.date, reason: visit.fields.reason ?? null },
-  };
-  for (const collection of LETTER_SECTIONS) {
-    const [section] = await records.listByField(collection, 'visitId', visit.id);
-    if (section) (findings as unknown as Record<string, unknown>)[collection] = section.fields;
-  }
-  return findings;
 }
 
 export async function layoutOfLetter(
@@ -60,21 +34,14 @@ export async function layoutOfLetter(
   const patient = await records.get('patient', letter.fields.patientId);
   if (!visit || !patient)
     throw new LetterSourceError("This letter's visit or patient is not on this tablet");
-  const visits = (await records.listByField('visit', 'patientId', patient.id)).filter(
-    (v) => v.fields.date <= visit.fields.date && v.id !== visit.id,
-  );
-  const current = await findingsOf(records, visit);
-  const earlier = await Promise.all(visits.map((v) => findingsOf(records, v)));
-  const common = {
-    clinic: context.clinic,
-    patient: patient.fields,
-    letter: { ...letter.fields, id: letter.id },
-    clinician: context.clinician,
-    issuedOn: letter.fields.finalisedAt?.slice(0, 10) ?? context.today,
-  };
-  return letter.fields.kind === 'handout'
-    ? buildExerciseHandout({ ...common, visit: current.visit, plan: current.plan })
-    : buildClinicLetter({ ...common, current, earlier });
+  const patientVisits = await records.listByField('visit', 'patientId', patient.id);
+  const sections: LocalRecord[] = [];
+  for (const v of [visit, ...earlierVisitsOf(visit, patientVisits)]) {
+    for (const collection of LETTER_SECTION_COLLECTIONS) {
+      sections.push(...(await records.listByField(collection, 'visitId', v.id)));
+    }
+  }
+  return letterLayoutOf({ letter, visit, patient, patientVisits, sections }, context);
 }
 
 /** The letter as PDF bytes, drawn on the tablet (the renderer loads with its fonts on demand). */

@@ -2,10 +2,16 @@ import { PDFDocument } from 'pdf-lib';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import {
   exampleLetterInput,
+  exampleLetterRecords,
   exampleVisits,
+  letterLayoutOf,
   letterPlainText,
+  type CollectionName,
   type VisitFindings,
 } from '@fuselight/shared';
+import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
+import { pdfText } from '@fuselight/shared/pdf-text-testing';
+import { v7 as uuidv7 } from 'uuid';
 import { FuselightDb } from '../data/db';
 import { OutboxRepository } from '../data/outbox-repository';
 import { RecordsRepository, type EditContext } from '../data/records-repository';
@@ -17,6 +23,7 @@ import {
   LetterRuleError,
   requestSend,
 } from './letter-actions';
+import { letterFonts } from './letter-fonts';
 import { layoutOfLetter, letterPdfOnTablet, type LetterContext } from './letter-sources';
 
 const SITE = exampleVisits.first.visit.id.replace(/b0001$/, 'a0009');
@@ -190,5 +197,35 @@ describe('letters on the tablet', () => {
         deliveryError: 'no referrer e-mail address',
       }),
     ).toBe('Not sent: no referrer e-mail address');
+  });
+
+  it('shows the letter the server mails: the shared model of the same records, and its PDF text', async () => {
+    // The same invented records the server's mail test pushes (shared letter-records fixture),
+    // with rival Section records and an earlier app's Addendum kept as a plan beside the real ones.
+    const fixture = exampleLetterRecords({
+      siteId: SITE,
+      patientId: uuidv7(),
+      visitIds: [uuidv7(), uuidv7(), uuidv7()],
+      letterId: uuidv7(),
+      clinicianId: CLINICIAN,
+      newId: uuidv7,
+    });
+    for (const record of fixture.all) {
+      await records.create(record.collection as CollectionName, record.fields as never, ctx(), {
+        id: record.id,
+      });
+    }
+    const model = letterLayoutOf(fixture.records, context);
+    const layout = await layoutOfLetter(records, fixture.records.letter.id, context);
+    expect(layout).toEqual(model);
+    expect(letterPlainText(layout)).toContain('exo 8.0° (14.1Δ) (previously exo 11.0° (19.4Δ))');
+
+    const onTablet = await pdfText(
+      await letterPdfOnTablet(records, fixture.records.letter.id, context),
+    );
+    const ofModel = await pdfText(await renderLetterPdf(model, letterFonts()));
+    expect(onTablet.all).toBe(ofModel.all);
+    expect(onTablet.all).toContain('Harbourside Eye Clinic');
+    expect(onTablet.all).not.toMatch(/exo (30|25|40)\.0°/);
   });
 });

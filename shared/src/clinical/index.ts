@@ -15,3 +15,5 @@ export * from './finding-series';
 export * from './fusional-norms';
 export * from './fusional-ranges';
 export * from './suppression-scotoma';
+export * from './interpretation';
+export * from './section-labels';

@@ -16,7 +16,7 @@ import {
   type Letterhead,
   type TrendPoint,
 } from './letter-layout';
-import { findingLines, interpretations, type VisitFindings } from './visit-findings';
+import { findingLines, letterInterpretations, type VisitFindings } from './visit-findings';
 
 export interface ClinicDetails {
   name: string;
@@ -209,7 +209,7 @@ export function buildClinicLetter(input: ClinicLetterInput): LetterLayout {
     });
   if (letter.findingsText) blocks.push({ type: 'paragraph', text: letter.findingsText });
 
-  const computed = interpretations(current, patient);
+  const computed = letterInterpretations(current, patient);
   if (computed.length > 0)
     blocks.push({ type: 'interpretation', label: INTERPRETATION_LABEL, items: computed });
 

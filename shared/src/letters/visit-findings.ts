@@ -1,9 +1,8 @@
 // The findings of one visit in the trade's words, both units wherever an angle is given, for a
 // letter's findings table. Each finding has a stable key so this visit's row can sit beside the
 // previous visit's; only findings that were recorded become rows.
-import { classifyCorrespondence } from '../clinical/correspondence';
 import { describeDeviation } from '../clinical/deviation';
-import { judgeNearPointOfConvergence } from '../clinical/near-point-of-convergence';
+import { interpretVisit, type Interpretation } from '../clinical/interpretation';
 import { degreesToPrismDioptres, prismDioptresToDegrees } from '../clinical/prism-dioptre';
 import type { PatientFields } from '../schemas/patient.schema';
 import type { RecordFields } from '../schemas/registry';
@@ -291,31 +290,22 @@ export function findingLines(findings: VisitFindings): FindingLine[] {
   return lines;
 }
 
-/** Computed interpretations of one visit; each is support for judgement, never a verdict. */
-export function interpretations(
+/** The interpretations a letter to a referrer carries (the others stay on the Visit screen). */
+const LETTER_INTERPRETATIONS: readonly Interpretation['key'][] = ['correspondence', 'npc'];
+
+/**
+ * Computed interpretations of one visit for a letter, from the same interpretation module as the
+ * Visit and the Bench: only those that could be made, each in one sentence. Each is support for
+ * judgement, never a verdict; the letter prints them under INTERPRETATION_LABEL.
+ */
+export function letterInterpretations(
   findings: VisitFindings,
   patient: Pick<PatientFields, 'dateOfBirth'>,
 ): string[] {
-  const items: string[] = [];
-  const angles = findings.amblyoscopeAngles;
-  if (angles && num(angles.objectiveHorizontalDeg) && num(angles.subjectiveHorizontalDeg)) {
-    const result = classifyCorrespondence({
-      objectiveDeg: angles.objectiveHorizontalDeg,
-      subjectiveDeg: angles.subjectiveHorizontalDeg,
-    });
-    items.push(`Retinal correspondence: ${result.message}`);
-  }
-  const npc = findings.nearPointConvergence;
-  if (npc && num(npc.breakCm) && (!num(npc.recoveryCm) || npc.recoveryCm >= npc.breakCm)) {
-    const judgement = judgeNearPointOfConvergence({
-      breakCm: npc.breakCm,
-      ...(num(npc.recoveryCm) ? { recoveryCm: npc.recoveryCm } : {}),
-      ageYears: ageInYears(patient.dateOfBirth, findings.visit.date),
-    });
-    const why = judgement.reasons.length > 0 ? ` (${judgement.reasons.join('; ')})` : '';
-    items.push(
-      `Near point of convergence: ${judgement.verdict}${why}; compared with ${judgement.normUsed}.`,
-    );
-  }
-  return items;
+  const { items } = interpretVisit(findings, {
+    ageYears: ageInYears(patient.dateOfBirth, findings.visit.date),
+  });
+  return items
+    .filter((item) => LETTER_INTERPRETATIONS.includes(item.key) && item.summary !== null)
+    .map((item) => `${item.title}: ${item.summary}`);
 }

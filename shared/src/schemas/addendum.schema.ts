@@ -3,7 +3,8 @@
 // by the server when a supervisor resolves a dispute on a Signed or Countersigned visit (then it
 // also names the field it amends, the value before and after, and the dispute).
 import { z } from 'zod';
-import { COLLECTIONS, collectionWords } from './collection-names.schema';
+import { COLLECTION_LABELS } from '../clinical/section-labels';
+import { COLLECTIONS } from './collection-names.schema';
 import { choice, id, instant, jsonValue, text, withMeta } from './field-types.schema';
 
 export const addendumSchema = z.object({
@@ -13,7 +14,7 @@ export const addendumSchema = z.object({
   authorId: id('Author'),
   writtenAt: instant('Written at'),
   text: text('Addendum text', { max: 4000, min: 1 }),
-  amendedCollection: choice('Amended section', collectionWords, COLLECTIONS).nullish(),
+  amendedCollection: choice('Amended section', COLLECTION_LABELS, COLLECTIONS).nullish(),
   amendedRecordId: id('Amended record').nullish(),
   amendedField: withMeta(
     z.string({ error: 'Amended field must be text' }).regex(/^[a-z][A-Za-z0-9]{0,99}$/, {

@@ -1,11 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import {
-  collectionWords,
-  fieldMeta,
-  requiredFields,
-  validateFields,
-  validateRecord,
-} from './registry';
+import { fieldMeta, requiredFields, validateFields, validateRecord } from './registry';
+import { COLLECTION_LABELS } from '../clinical/section-labels';
 import { CLINICIAN_ID, RECORD_ID, placement } from './test-ids.fixture';
 
 const written = {
@@ -74,7 +69,7 @@ describe('the addendum collection', () => {
       }),
     );
     expect(errors.map((e) => e.field)).toEqual(['amendedCollection', 'amendedField', 'writtenAt']);
-    expect(errors[0]!.message).toMatch(/^Amended section must be one of: Patient, Visit, /);
+    expect(errors[0]!.message).toMatch(/^Amended section must be one of: Patient details, Visit, /);
     expect(errors[1]!.message).toBe(
       'Amended field must be a field name like objectiveHorizontalDeg',
     );
@@ -90,6 +85,6 @@ describe('the addendum collection', () => {
       value: 'amblyoscopeAngles',
       label: 'Amblyoscope angles',
     });
-    expect(collectionWords.addendum).toBe('Addendum');
+    expect(COLLECTION_LABELS.addendum).toBe('Addendum');
   });
 });

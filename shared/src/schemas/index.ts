@@ -26,3 +26,4 @@ export * from './registry';
 export * from './sync-wire.schema';
 export * from './identity.schema';
 export * from './review-views';
+export * from './section-records';

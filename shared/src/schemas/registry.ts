@@ -44,7 +44,6 @@ export const SCHEMA_VERSION = 1;
 export {
   COLLECTIONS,
   SECTION_COLLECTIONS,
-  collectionWords,
   type CollectionName,
   type SectionCollectionName,
 } from './collection-names.schema';

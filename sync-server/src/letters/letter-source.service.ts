@@ -9,30 +9,17 @@ import {
   UnprocessableEntityException,
 } from '@nestjs/common';
 import {
-  buildClinicLetter,
-  buildExerciseHandout,
   ClinicalInputError,
-  type CollectionName,
+  earlierVisitsOf,
+  LETTER_SECTION_COLLECTIONS,
+  letterLayoutOf,
   type LetterLayout,
   type RecordFields,
-  type VisitFindings,
 } from '@fuselight/shared';
+import { CLOCK, type Clock } from '../common/clock.provider';
 import { sqlRows } from '../records/sql';
 import type { StoredRecord } from '../records/stored-record';
 import { RecordAccess } from './record-access';
-
-const LETTER_SECTIONS = [
-  'visualAcuity',
-  'coverTest',
-  'prismCoverTest',
-  'simultaneousPerception',
-  'amblyoscopeAngles',
-  'fusion',
-  'fusionalRanges',
-  'nearPointConvergence',
-  'stereoacuity',
-  'plan',
-] as const satisfies readonly CollectionName[];
 
 const ROLE_WORDS: Record<string, string> = {
   orthoptist: 'Orthoptist',
@@ -52,6 +39,7 @@ export class LetterSourceService {
   constructor(
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(RecordAccess) private readonly records: RecordAccess,
+    @Inject(CLOCK) private readonly clock: Clock,
   ) {}
 
   async load(letterId: string): Promise<LetterSource> {
@@ -72,28 +60,16 @@ export class LetterSourceService {
         `letter ${letterId}: its patient ${fields.patientId} is not on the server yet`,
       );
     const visitFields = visit.fields as RecordFields<'visit'>;
-    const patientFields = patient.fields as RecordFields<'patient'>;
 
-    const visits = (await this.records.findBy(['visit'], 'patientId', [patient.id], em)).filter(
-      (v) => (v.fields as RecordFields<'visit'>).date <= visitFields.date,
-    );
+    // Which of these feed the letter (each visit's Section, the earlier visits) is the shared
+    // rule, the one the tablet applies to the letter it shows.
+    const patientVisits = await this.records.findBy(['visit'], 'patientId', [patient.id], em);
     const sections = await this.records.findBy(
-      LETTER_SECTIONS,
+      LETTER_SECTION_COLLECTIONS,
       'visitId',
-      visits.map((v) => v.id),
+      [visit.id, ...earlierVisitsOf(visit, patientVisits).map((v) => v.id)],
       em,
     );
-    const findingsOf = (v: StoredRecord): VisitFindings => {
-      const vf = v.fields as RecordFields<'visit'>;
-      const out: VisitFindings = { visit: { id: v.id, date: vf.date, reason: vf.reason ?? null } };
-      for (const section of sections) {
-        if ((section.fields as { visitId?: string }).visitId !== v.id) continue;
-        (out as unknown as Record<string, unknown>)[section.collection] = section.fields;
-      }
-      return out;
-    };
-    const current = findingsOf(visit);
-    const earlier = visits.filter((v) => v.id !== visit.id).map(findingsOf);
 
     const [site] = await sqlRows<{ name: string; address: string | null }>(
       em,
@@ -106,21 +82,17 @@ export class LetterSourceService {
       `select "name", "role" from "app_user" where "id" = ?::uuid`,
       [clinicianId],
     );
-    const common = {
+    const context = {
       clinic: { name: site?.name ?? 'Fuselight clinic', address: site?.address ?? null },
-      patient: patientFields,
-      letter: { ...fields, id: letter.id },
       clinician: {
         name: person?.name ?? 'The clinician',
         role: ROLE_WORDS[person?.role ?? ''] ?? 'Orthoptist',
       },
-      issuedOn: (fields.finalisedAt ?? letter.createdAt).slice(0, 10),
+      // The server's calendar day (UTC), the date of a letter that is not final yet.
+      today: this.clock.now().toISOString().slice(0, 10),
     };
     try {
-      const layout =
-        fields.kind === 'handout'
-          ? buildExerciseHandout({ ...common, visit: current.visit, plan: current.plan })
-          : buildClinicLetter({ ...common, current, earlier });
+      const layout = letterLayoutOf({ letter, visit, patient, patientVisits, sections }, context);
       return { letter, patient, layout };
     } catch (error) {
       if (error instanceof ClinicalInputError) {

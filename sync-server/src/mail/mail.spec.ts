@@ -1,16 +1,27 @@
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import type { RecordFields } from '@fuselight/shared';
+import { v7 as uuidv7 } from 'uuid';
+import {
+  exampleLetterInput,
+  exampleLetterRecords,
+  letterLayoutOf,
+  type JsonValue,
+  type RecordFields,
+} from '@fuselight/shared';
+import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
+import { letterFonts } from '../letters/letter-fonts';
+import { LetterSourceService } from '../letters/letter-source.service';
 import { RecordAccess } from '../letters/record-access';
 import { pdfText } from '../letters/pdf-text.testing';
 import {
   pdfAttachmentOf,
   pushLetterScenario,
   startFakeSmtp,
+  tabletAt,
   type FakeSmtp,
   type LetterScenario,
 } from '../letters/testing/letters-test-kit';
-import { createUser } from '../testing/identity-factory';
+import { createSite, createUser } from '../testing/identity-factory';
 import { sqlRows } from '../records/sql';
 import { createTestApp, type TestApp } from '../testing/test-app';
 import { MailService, retryDelayMs } from './mail.service';
@@ -90,6 +101,49 @@ describe('mail: final letters by e-mail through the outbox', () => {
     // Another pass sends nothing twice.
     expect(await mail.runOnce()).toMatchObject({ enqueued: 0, sent: 0 });
     expect(smtp.mails).toHaveLength(1);
+  });
+
+  it('mails the letter the tablet shows: the shared model of the same records, and its PDF text', async () => {
+    // The same invented records the tablet's letter test charts (shared letter-records fixture),
+    // with rival Section records and an earlier app's Addendum kept as a plan beside the real ones.
+    const site = await createSite(t, {
+      name: exampleLetterInput.clinic.name,
+      address: exampleLetterInput.clinic.address,
+    });
+    const tablet = await tabletAt(t, 'orthoptist', [site.id]);
+    const fixture = exampleLetterRecords({
+      siteId: site.id,
+      patientId: uuidv7(),
+      visitIds: [uuidv7(), uuidv7(), uuidv7()],
+      letterId: uuidv7(),
+      clinicianId: tablet.person.id,
+      newId: uuidv7,
+    });
+    await tablet.pushAll(
+      fixture.all.map((record) => ({
+        collection: record.collection,
+        recordId: record.id,
+        fields: {
+          ...(record.fields as Record<string, JsonValue>),
+          ...(record.collection === 'letter' ? { deliveryState: 'queued' } : {}),
+        },
+      })),
+    );
+    const model = letterLayoutOf(fixture.records, {
+      clinic: exampleLetterInput.clinic,
+      clinician: exampleLetterInput.clinician,
+      today: t.clock.now().toISOString().slice(0, 10),
+    });
+    const { layout } = await t.app.get(LetterSourceService).load(fixture.records.letter.id);
+    expect(layout).toEqual(model);
+
+    expect(await mail.runOnce()).toMatchObject({ sent: 1 });
+    const pdf = pdfAttachmentOf(smtp.mails[0]!.raw);
+    const mailed = await pdfText(new Uint8Array(pdf!.bytes));
+    const ofModel = await pdfText(await renderLetterPdf(model, letterFonts()));
+    expect(mailed.all).toBe(ofModel.all);
+    expect(mailed.all).toContain('Harbourside Eye Clinic');
+    expect(mailed.all).not.toMatch(/exo (30|25|40)\.0°/);
   });
 
   it('keeps a mail queued when the relay refuses for now, and retries it after the back-off', async () => {

@@ -1,7 +1,7 @@
 // The Addenda of a signed visit, oldest first: who wrote each and when, what it says, and for an
 // Addendum written when a supervisor resolved a dispute, the field it amends with the value
 // before and after. Used in the Sign panel and under the visit's interpretation.
-import { collectionWords } from '@fuselight/shared';
+import { collectionLabel } from '@fuselight/shared';
 import type { Addendum } from '../../data/charting';
 import { describeFieldValue } from './format';
 import { DisputeMark } from './ScreenState';
@@ -18,7 +18,7 @@ export function amendmentWords(addendum: Addendum): string | null {
   if (!a) return null;
   const before = describeFieldValue(a.collection, a.field, a.previousValue);
   const after = describeFieldValue(a.collection, a.field, a.newValue);
-  return `${collectionWords[a.collection]} · ${a.fieldLabel}: ${before} → ${after}`;
+  return `${collectionLabel(a.collection)} · ${a.fieldLabel}: ${before} → ${after}`;
 }
 
 export function AddendaList({

@@ -1,6 +1,6 @@
 // What the Bench recorded at the amblyoscope, in short, with the two main angles adjustable here
 // (AngleControl) and a link to the full guided capture on the Bench.
-import type { SectionCollectionName } from '@fuselight/shared';
+import { collectionLabel, type SectionCollectionName } from '@fuselight/shared';
 import { Link } from 'react-router-dom';
 import { AngleControl } from '../controls';
 import type { VisitSectionRecords } from '../../data/charting';
@@ -8,15 +8,17 @@ import { DisputeMark } from './ScreenState';
 import { SaveIndicator, metaOf, sectionFieldNames } from './SectionForm';
 import { useSectionAutosave, type SaveStatus } from './useSectionAutosave';
 
-const AMBLYOSCOPE_SECTIONS: readonly [SectionCollectionName, string][] = [
-  ['amblyoscopeSetup', 'Setup'],
-  ['simultaneousPerception', 'Simultaneous perception'],
-  ['amblyoscopeAngles', 'Angles'],
-  ['suppressionScotoma', 'Suppression scotoma'],
-  ['fusion', 'Fusion'],
-  ['fusionalRanges', 'Fusional ranges'],
-  ['grossStereopsis', 'Gross stereopsis'],
-];
+const AMBLYOSCOPE_SECTIONS: readonly [SectionCollectionName, string][] = (
+  [
+    'amblyoscopeSetup',
+    'simultaneousPerception',
+    'amblyoscopeAngles',
+    'suppressionScotoma',
+    'fusion',
+    'fusionalRanges',
+    'grossStereopsis',
+  ] as const
+).map((collection) => [collection, collectionLabel(collection)]);
 
 function shown(collection: SectionCollectionName, field: string, value: unknown): string | null {
   if (value === null || value === undefined) return null;

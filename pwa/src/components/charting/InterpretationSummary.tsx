@@ -3,7 +3,7 @@
 import { useMemo } from 'react';
 import type { Addendum } from '../../data/charting';
 import { AddendaList } from './AddendaList';
-import { interpretVisit, type VisitSectionValues } from './interpretations';
+import { interpretVisit, type VisitSectionValues } from '@fuselight/shared';
 
 export function CautionNote({ caution }: { caution: string }) {
   return (

@@ -1,7 +1,12 @@
 // How the charting screens write people, dates and field values.
-import { fieldMeta, type CollectionName, type FieldMeta, type JsonValue } from '@fuselight/shared';
+import {
+  ageOnDate,
+  fieldMeta,
+  type CollectionName,
+  type FieldMeta,
+  type JsonValue,
+} from '@fuselight/shared';
 import type { LocalRecord } from '../../data';
-import { ageOnDate } from './interpretations';
 
 export function patientFullName(patient: LocalRecord<'patient'> | null | undefined): string {
   if (!patient) return 'Unknown patient';

@@ -5,11 +5,11 @@ import {
   AMBLYOSCOPE_FUSIONAL_NORMS,
   fusionalRangeAmplitudes,
   findingSeries,
+  rangeReadings,
   type FusionalDirection,
 } from '@fuselight/shared';
 import type { LocalRecord } from '../../data';
 import type { VisitSectionRecords } from '../../data/charting';
-import { rangeReadings } from './interpretations';
 
 export interface TrendVisit {
   date: string;

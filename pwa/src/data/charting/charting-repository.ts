@@ -3,6 +3,7 @@
 // Sections, saving a Section field, signing, countersigning and addenda. The visit's lock lives
 // here as well as on screen, so a signed visit's content cannot change through this layer.
 import {
+  pickSectionRecord,
   SECTION_COLLECTIONS,
   type RecordFieldsInput,
   type SectionCollectionName,
@@ -119,17 +120,18 @@ export class ChartingRepository {
   ): Promise<Map<string, VisitSectionRecords>> {
     const byVisit = new Map<string, VisitSectionRecords>();
     for (const collection of collections) {
-      const records = (await this.records.listByField(collection, 'patientId', patientId)).sort(
-        byIdAscending,
-      );
-      for (const record of records) {
-        if (collection === 'plan' && parseLegacyAddendum(record as LocalRecord<'plan'>) !== null)
-          continue;
+      const placed = new Map<string, LocalRecord<C>[]>();
+      for (const record of await this.records.listByField(collection, 'patientId', patientId)) {
         const visitId = (record.fields as { visitId: string }).visitId;
+        placed.set(visitId, [...(placed.get(visitId) ?? []), record]);
+      }
+      for (const [visitId, records] of placed) {
+        // The visit's Section by the shared rule (the derived id, else the lowest id); a second
+        // record made elsewhere offline is shown by the sync's Disputes, not mixed in here.
+        const chosen = pickSectionRecord(visitId, collection, records);
+        if (!chosen) continue;
         const sections = byVisit.get(visitId) ?? {};
-        // The earliest-made record is the visit's Section; a second one made elsewhere
-        // offline is shown by the sync's Disputes, not silently mixed in here.
-        if (!sections[collection]) (sections as Record<string, unknown>)[collection] = record;
+        (sections as Record<string, unknown>)[collection] = chosen;
         byVisit.set(visitId, sections);
       }
     }
@@ -148,19 +150,15 @@ export class ChartingRepository {
     const addenda: Addendum[] = [];
     await Promise.all([
       ...SECTION_COLLECTIONS.map(async (collection) => {
-        const records = (await this.records.listByField(collection, 'visitId', visitId)).sort(
-          byIdAscending,
-        );
-        for (const record of records) {
-          if (collection === 'plan') {
+        const records = await this.records.listByField(collection, 'visitId', visitId);
+        if (collection === 'plan') {
+          for (const record of [...records].sort(byIdAscending)) {
             const legacy = parseLegacyAddendum(record as LocalRecord<'plan'>);
-            if (legacy) {
-              addenda.push(legacy);
-              continue;
-            }
+            if (legacy) addenda.push(legacy);
           }
-          if (!sections[collection]) (sections as Record<string, unknown>)[collection] = record;
         }
+        const chosen = pickSectionRecord(visitId, collection, records);
+        if (chosen) (sections as Record<string, unknown>)[collection] = chosen;
       }),
       this.records.listByField('addendum', 'visitId', visitId).then((records) => {
         for (const record of records) addenda.push(addendumFromRecord(record));
@@ -260,11 +258,11 @@ export class ChartingRepository {
     // that start the same Section offline write one record and the server merges their fields.
     // Older records with random ids are still found and kept.
     const sharedId = sectionRecordId(visitId, collection);
-    const candidates = (await this.records.listByField(collection, 'visitId', visitId)).filter(
-      (r) => collection !== 'plan' || parseLegacyAddendum(r as LocalRecord<'plan'>) === null,
+    const existing = pickSectionRecord(
+      visitId,
+      collection,
+      await this.records.listByField(collection, 'visitId', visitId),
     );
-    const existing =
-      candidates.find((r) => r.id === sharedId) ?? [...candidates].sort(byIdAscending)[0];
     if (existing) {
       await this.records.update(collection, existing.id, fields as never, ctx);
       return existing.id;

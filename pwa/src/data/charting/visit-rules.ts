@@ -7,15 +7,13 @@
 import {
   fieldMeta,
   isCollectionName,
+  isLegacyAddendumPlan,
   type CollectionName,
   type FieldMeta,
   type JsonValue,
   type SessionUser,
 } from '@fuselight/shared';
 import type { LocalRecord } from '../records-repository';
-
-/** The marker line of an Addendum kept as a `plan` record by earlier app versions. */
-export const LEGACY_ADDENDUM_PREFIX = 'Addendum ·';
 
 /** The field an Addendum amends (set when a resolved dispute wrote it), with the values. */
 export interface AddendumAmendment {
@@ -114,9 +112,7 @@ export function addendumFromRecord(record: LocalRecord<'addendum'>): Addendum {
 /** The Addendum an earlier app version kept in a plan record, or null for the visit's own plan. */
 export function parseLegacyAddendum(record: LocalRecord<'plan'>): Addendum | null {
   const impression = record.fields.impression;
-  if (typeof impression !== 'string' || !impression.startsWith(`${LEGACY_ADDENDUM_PREFIX}\t`)) {
-    return null;
-  }
+  if (!isLegacyAddendumPlan(record.fields) || typeof impression !== 'string') return null;
   const newline = impression.indexOf('\n');
   const header = newline === -1 ? impression : impression.slice(0, newline);
   const [, writtenAt = '', authorId = '', authorName = ''] = header.split('\t');

@@ -139,9 +139,11 @@ describe('the Bench', () => {
     bench.renderBench('fusion');
     const result = await screen.findByRole('group', { name: 'Fusion' });
     await user.click(result.querySelector('input[value="present"]')!);
-    expect((await screen.findByText(/BSV grades disagree/)).parentElement?.textContent).toContain(
+    const warning = (await screen.findByText(/BSV grades disagree/)).parentElement;
+    expect(warning?.textContent).toContain(
       'Fusion is recorded as present while simultaneous perception is absent',
     );
+    expect(warning?.textContent).toContain(CLINICAL_CAUTION);
   });
 
   it('derives range amplitudes from the subjective angle, names the norms table and notes proximal convergence', async () => {

@@ -1,5 +1,6 @@
 // The Bench's steps in the order the trade measures them at the amblyoscope. Two steps share
 // the angles Section (subjective first, then objective), so each step names its fields too.
+import { collectionLabel } from '@fuselight/shared';
 import type { BenchCollection } from '../../data/bench';
 
 export type BenchStepId =
@@ -25,7 +26,7 @@ export const BENCH_STEPS: readonly BenchStep[] = [
   { id: 'setup', title: 'Setup', collection: 'amblyoscopeSetup' },
   {
     id: 'simultaneous-perception',
-    title: 'Simultaneous perception',
+    title: collectionLabel('simultaneousPerception'),
     collection: 'simultaneousPerception',
   },
   {
@@ -40,10 +41,22 @@ export const BENCH_STEPS: readonly BenchStep[] = [
     collection: 'amblyoscopeAngles',
     fields: ['objectiveHorizontalDeg', 'objectiveVerticalPd', 'objectiveTorsionDeg'],
   },
-  { id: 'suppression-scotoma', title: 'Suppression scotoma', collection: 'suppressionScotoma' },
-  { id: 'fusion', title: 'Fusion', collection: 'fusion' },
-  { id: 'fusional-ranges', title: 'Fusional ranges', collection: 'fusionalRanges' },
-  { id: 'gross-stereopsis', title: 'Gross stereopsis', collection: 'grossStereopsis' },
+  {
+    id: 'suppression-scotoma',
+    title: collectionLabel('suppressionScotoma'),
+    collection: 'suppressionScotoma',
+  },
+  { id: 'fusion', title: collectionLabel('fusion'), collection: 'fusion' },
+  {
+    id: 'fusional-ranges',
+    title: collectionLabel('fusionalRanges'),
+    collection: 'fusionalRanges',
+  },
+  {
+    id: 'gross-stereopsis',
+    title: collectionLabel('grossStereopsis'),
+    collection: 'grossStereopsis',
+  },
   { id: 'summary', title: 'Summary', collection: null },
 ];
 

@@ -2,7 +2,13 @@
 // ones the server refused, with its reason, for their author to fix (send again with corrected
 // values) or discard (after confirming, with undo).
 import { IonContent, IonHeader, IonPage, IonSpinner, IonTitle, IonToolbar } from '@ionic/react';
-import { fieldMeta, type CollectionName, type FieldMeta } from '@fuselight/shared';
+import {
+  collectionLabel,
+  fieldMeta,
+  isSectionCollection,
+  type CollectionName,
+  type FieldMeta,
+} from '@fuselight/shared';
 import { useState } from 'react';
 import { useSession } from '../../auth/session-context';
 import { SyncIndicator } from '../../components/SyncIndicator';
@@ -15,17 +21,9 @@ import {
   type OutboxEntry,
 } from '../../data';
 
-const collectionWords: Partial<Record<CollectionName, string>> = {
-  patient: 'Patient details',
-  visit: 'Visit',
-  attachment: 'Attachment',
-  letter: 'Letter',
-};
-
-function collectionLabel(collection: CollectionName): string {
-  if (collectionWords[collection]) return collectionWords[collection];
-  const words = collection.replace(/([A-Z])/g, ' $1').toLowerCase();
-  return `Section: ${words.charAt(0).toUpperCase()}${words.slice(1)}`;
+function recordLabel(collection: CollectionName): string {
+  const label = collectionLabel(collection);
+  return isSectionCollection(collection) ? `Section: ${label}` : label;
 }
 
 function labelOf(collection: CollectionName, field: string): string {
@@ -118,7 +116,7 @@ function FixForm(props: { entry: OutboxEntry; onDone: () => void; onCancel: () =
 
   return (
     <form
-      aria-label={`Fix the refused edit of ${collectionLabel(entry.collection)}`}
+      aria-label={`Fix the refused edit of ${recordLabel(entry.collection)}`}
       onSubmit={(event) => {
         event.preventDefault();
         void submit();
@@ -202,7 +200,7 @@ function EntryItem(props: {
         borderLeft: rejected ? '6px solid var(--ion-color-danger, #b00020)' : undefined,
       }}
     >
-      <h3 style={{ margin: '0 0 4px' }}>{collectionLabel(entry.collection)}</h3>
+      <h3 style={{ margin: '0 0 4px' }}>{recordLabel(entry.collection)}</h3>
       <p style={{ margin: '0 0 4px' }}>{fieldSummary(entry)}</p>
       <p className="fl-muted" style={{ margin: 0 }}>
         Saved {savedAt(entry)}

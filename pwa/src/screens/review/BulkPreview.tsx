@@ -1,8 +1,9 @@
 // The preview before a bulk resolution: each dispute, what its candidates read as, and the value
 // it will get. Nothing is sent until the supervisor confirms; each is resolved on its own, so a
 // refusal of one (say, resolved meanwhile on another desk) is reported and the rest go ahead.
+import { collectionLabel } from '@fuselight/shared';
 import { useState } from 'react';
-import { fieldLabel, formatFieldValue, sectionLabel } from './field-format';
+import { fieldLabel, formatFieldValue } from './field-format';
 import type { BulkProposal } from './bulk-resolution';
 
 export interface BulkOutcome {
@@ -41,7 +42,8 @@ export function BulkPreview({
             >
               <strong>
                 {dispute.patientName ?? 'Patient not on record'} ·{' '}
-                {sectionLabel(dispute.collection)}: {fieldLabel(dispute.collection, dispute.field)}
+                {collectionLabel(dispute.collection)}:{' '}
+                {fieldLabel(dispute.collection, dispute.field)}
               </strong>
               <span className="fl-review-badge">{proposal.kind}</span>
               <div>Entered: {proposal.shown.join(' / ')}</div>

@@ -1,13 +1,18 @@
 // Visits waiting for a supervisor's countersignature: a summary of each (patient, clinician,
 // Sections in the clinician's words, computed interpretations with the caution), and the two
 // answers — Countersign, or Return to the author with a comment they will see on their tablet.
-import { CLINICAL_CAUTION, SECTION_PLACEMENT_KEYS, isSectionCollection } from '@fuselight/shared';
+import {
+  CLINICAL_CAUTION,
+  SECTION_PLACEMENT_KEYS,
+  isSectionCollection,
+  collectionLabel,
+} from '@fuselight/shared';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { z } from 'zod';
 import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
-import { ageOnDate, type VisitSectionValues } from '../../components/charting/interpretations';
-import { fieldLabel, formatFieldValue, formatInstant, sectionLabel } from './field-format';
+import { ageOnDate, type VisitSectionValues } from '@fuselight/shared';
+import { fieldLabel, formatFieldValue, formatInstant } from './field-format';
 import { reviewKeys, type CountersignItem } from './review-api';
 import { useReviewApi } from './review-context';
 
@@ -37,8 +42,8 @@ function VisitSummary({ item }: { item: CountersignItem }) {
             !HIDDEN.has(field) && value !== null && !(Array.isArray(value) && value.length === 0),
         );
         return (
-          <section key={section.id} aria-label={sectionLabel(section.collection)}>
-            <h4>{sectionLabel(section.collection)}</h4>
+          <section key={section.id} aria-label={collectionLabel(section.collection)}>
+            <h4>{collectionLabel(section.collection)}</h4>
             {entries.length === 0 ? (
               <p className="fl-muted">Nothing recorded.</p>
             ) : (

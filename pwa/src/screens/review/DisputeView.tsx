@@ -3,7 +3,11 @@
 // of the record for context. The supervisor chooses a candidate or enters a corrected value
 // through the Visit form's controls, and must say why.
 import { zodResolver } from '@hookform/resolvers/zod';
-import { SECTION_PLACEMENT_KEYS, resolveConflictRequestSchema } from '@fuselight/shared';
+import {
+  SECTION_PLACEMENT_KEYS,
+  resolveConflictRequestSchema,
+  collectionLabel,
+} from '@fuselight/shared';
 import { useState } from 'react';
 import { Controller, useForm, useWatch } from 'react-hook-form';
 import { z } from 'zod';
@@ -18,7 +22,6 @@ import {
   formatFieldValue,
   formatInstant,
   formatStampTime,
-  sectionLabel,
 } from './field-format';
 import type { ContextRecord, DisputeDetail } from './review-api';
 
@@ -122,7 +125,7 @@ export function DisputeView({ dispute, now, onResolve, onOpenHistory, onClose }:
     <article className="fl-review-dispute" aria-labelledby={`dispute-${dispute.id}-title`}>
       <header className="fl-review-dispute__head">
         <h2 id={`dispute-${dispute.id}-title`}>
-          {sectionLabel(dispute.collection)}: {label}
+          {collectionLabel(dispute.collection)}: {label}
         </h2>
         <p className="fl-muted">
           {dispute.patientName ?? 'Patient not on record'}
@@ -255,12 +258,12 @@ export function DisputeView({ dispute, now, onResolve, onOpenHistory, onClose }:
         className="fl-review-context-panel"
       >
         <h3 id={`dispute-${dispute.id}-context`}>
-          Rest of this {sectionLabel(dispute.collection).toLowerCase()} record
+          Rest of this {collectionLabel(dispute.collection).toLowerCase()} record
         </h3>
         <ContextFields record={dispute.record} highlight={dispute.field} timeZone={tz} />
         {dispute.related.map((record) => (
           <div key={record.id}>
-            <h4>Another {sectionLabel(record.collection).toLowerCase()} record of this visit</h4>
+            <h4>Another {collectionLabel(record.collection).toLowerCase()} record of this visit</h4>
             <ContextFields record={record} timeZone={tz} />
           </div>
         ))}

@@ -1,12 +1,12 @@
 // The Disputes table: open disputes of the supervisor's sites, sortable by column, filtered by
 // site, patient, section and age, paged by the server; bulk resolution of trivially equal or
 // formatting-only ones through a preview.
-import { SECTION_COLLECTIONS } from '@fuselight/shared';
+import { SECTION_COLLECTIONS, collectionLabel } from '@fuselight/shared';
 import { keepPreviousData, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { BulkPreview, type BulkOutcome } from './BulkPreview';
 import { bulkProposals, type BulkProposal } from './bulk-resolution';
-import { fieldLabel, formatAge, formatFieldValue, sectionLabel } from './field-format';
+import { fieldLabel, formatAge, formatFieldValue } from './field-format';
 import { reviewKeys, type DisputeQuery, type DisputeSort } from './review-api';
 import { useReviewApi } from './review-context';
 
@@ -113,7 +113,7 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
             <option value="">All sections</option>
             {SECTIONS.map((section) => (
               <option key={section} value={section}>
-                {sectionLabel(section)}
+                {collectionLabel(section)}
               </option>
             ))}
           </select>
@@ -222,7 +222,7 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
                     {row.signedVisit ? <span className="fl-review-badge">Signed visit</span> : null}
                   </td>
                   <td>
-                    {sectionLabel(row.collection)}: {fieldLabel(row.collection, row.field)}
+                    {collectionLabel(row.collection)}: {fieldLabel(row.collection, row.field)}
                   </td>
                   <td>
                     {row.candidates

@@ -1,10 +1,10 @@
 // A record's history: every value each field has held, who entered it on which tablet and when
 // (in the clinic's time zone), disputes and their resolutions, signatures and Addenda; with a
 // CSV export of the same entries.
-import { COLLECTIONS } from '@fuselight/shared';
+import { COLLECTIONS, collectionLabel } from '@fuselight/shared';
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
-import { fieldLabel, formatFieldValue, formatInstant, sectionLabel } from './field-format';
+import { fieldLabel, formatFieldValue, formatInstant } from './field-format';
 import { reviewKeys, type HistoryEntry, type HistoryKind } from './review-api';
 import { useReviewApi } from './review-context';
 
@@ -27,7 +27,7 @@ function fieldWords(collection: string, field: string | null): string {
   if (!field) return '—';
   if (field.includes('.')) {
     const [owner, name] = field.split('.', 2) as [string, string];
-    return `${sectionLabel(owner)}: ${fieldLabel(owner, name)}`;
+    return `${collectionLabel(owner)}: ${fieldLabel(owner, name)}`;
   }
   return fieldLabel(collection, field);
 }
@@ -97,7 +97,7 @@ export function HistoryPanel({
           >
             {COLLECTIONS.map((c) => (
               <option key={c} value={c}>
-                {sectionLabel(c)}
+                {collectionLabel(c)}
               </option>
             ))}
           </select>
@@ -133,7 +133,8 @@ export function HistoryPanel({
       ) : (
         <>
           <p>
-            {sectionLabel(history.data.collection)} record, version {history.data.current.version}
+            {collectionLabel(history.data.collection)} record, version{' '}
+            {history.data.current.version}
             {history.data.current.deleted ? ' (deleted)' : ''}. Times in {history.data.timeZone}.
           </p>
           <div className="fl-review-actions">

@@ -1,43 +1,9 @@
 // Puts a stored field value into the words the clinician saw when entering it, for the Review
 // desk: labels and units come from the shared field registry, angles get the trade's sign words
 // and the other unit (degrees with prism dioptres), choices their option words. Never raw JSON.
-import {
-  describeDeviation,
-  fieldMeta,
-  isCollectionName,
-  type CollectionName,
-  type FieldMeta,
-} from '@fuselight/shared';
+import { describeDeviation, fieldMeta, isCollectionName, type FieldMeta } from '@fuselight/shared';
 
 export const NOT_RECORDED = 'Not recorded';
-
-const SECTION_WORDS: Record<CollectionName, string> = {
-  patient: 'Patient details',
-  visit: 'Visit',
-  amblyoscopeSetup: 'Amblyoscope setup',
-  simultaneousPerception: 'Simultaneous perception',
-  amblyoscopeAngles: 'Amblyoscope angles',
-  suppressionScotoma: 'Suppression scotoma',
-  fusion: 'Fusion',
-  fusionalRanges: 'Fusional ranges',
-  grossStereopsis: 'Gross stereopsis',
-  visualAcuity: 'Visual acuity',
-  coverTest: 'Cover test',
-  prismCoverTest: 'Prism cover test',
-  nearPointConvergence: 'Near point of convergence',
-  accommodation: 'Accommodation',
-  stereoacuity: 'Stereoacuity',
-  motility: 'Motility',
-  plan: 'Plan',
-  attachment: 'Attachment',
-  letter: 'Letter',
-  addendum: 'Addendum',
-};
-
-/** "Amblyoscope angles", "Patient details"; an unknown collection keeps its own name. */
-export function sectionLabel(collection: string): string {
-  return isCollectionName(collection) ? SECTION_WORDS[collection] : collection;
-}
 
 export function metaOf(collection: string, field: string): FieldMeta | undefined {
   if (field === 'deleted') {

@@ -13,7 +13,12 @@ import {
   IonTitle,
   IonToolbar,
 } from '@ionic/react';
-import type { SectionCollectionName } from '@fuselight/shared';
+import {
+  ageOnDate,
+  collectionLabel,
+  type SectionCollectionName,
+  type VisitSectionValues,
+} from '@fuselight/shared';
 import { useCallback, useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router-dom';
 import { AttachmentPanel } from '../../attachments/AttachmentPanel';
@@ -32,7 +37,6 @@ import {
   VisitStatusBadge,
 } from '../../components/charting/ScreenState';
 import { describeAge, formatDate, patientFullName } from '../../components/charting/format';
-import { ageOnDate, type VisitSectionValues } from '../../components/charting/interpretations';
 import type { SaveStatus } from '../../components/charting/useSectionAutosave';
 import '../../components/charting/charting.css';
 import { useEditContext } from '../../data';
@@ -53,16 +57,18 @@ interface SectionSpec {
   fields?: readonly string[];
 }
 
-const SECTIONS: readonly SectionSpec[] = [
-  { collection: 'visualAcuity', title: 'Visual acuity', fields: ['chartUsed', 'skippedReason'] },
-  { collection: 'coverTest', title: 'Cover test' },
-  { collection: 'prismCoverTest', title: 'Prism cover test' },
-  { collection: 'nearPointConvergence', title: 'Near point of convergence' },
-  { collection: 'accommodation', title: 'Accommodation' },
-  { collection: 'stereoacuity', title: 'Stereoacuity' },
-  { collection: 'motility', title: 'Ocular motility' },
-  { collection: 'plan', title: 'Plan' },
-];
+const SECTIONS: readonly SectionSpec[] = (
+  [
+    { collection: 'visualAcuity', fields: ['chartUsed', 'skippedReason'] },
+    { collection: 'coverTest' },
+    { collection: 'prismCoverTest' },
+    { collection: 'nearPointConvergence' },
+    { collection: 'accommodation' },
+    { collection: 'stereoacuity' },
+    { collection: 'motility' },
+    { collection: 'plan' },
+  ] as const satisfies readonly Omit<SectionSpec, 'title'>[]
+).map((spec) => ({ ...spec, title: collectionLabel(spec.collection) }));
 
 const JUMPS: readonly [string, string][] = [
   ['section-details', 'Visit'],

@@ -1,10 +1,14 @@
 // The subjective angle (where the patient puts the figure in the enclosure) and the objective
 // angle (the cover test on the instrument), with the correspondence result live once both
 // horizontal angles are in.
-import { CLINICAL_CAUTION, describeDeviation, fieldMeta } from '@fuselight/shared';
+import {
+  CLINICAL_CAUTION,
+  correspondenceOf,
+  describeDeviation,
+  fieldMeta,
+} from '@fuselight/shared';
 import { AngleControl } from '../../../components/controls';
 import { type BenchFields, useBenchSection } from '../../../data/bench';
-import { correspondenceOf } from '../bench-interpretations';
 import { Caution, StepFrame } from '../StepFrame';
 
 const meta = fieldMeta.amblyoscopeAngles;

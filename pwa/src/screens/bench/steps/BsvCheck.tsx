@@ -1,6 +1,7 @@
 import { useVisitBundle } from '../../../data/charting';
 import { benchFields } from '../../../data/bench';
-import { bsvInconsistencies } from '../bench-interpretations';
+import { bsvGradesOf, CLINICAL_CAUTION } from '@fuselight/shared';
+import { Caution } from '../StepFrame';
 
 /** The BSV hierarchy check at the point of entry: says so when a grade sits on an absent one. */
 export function BsvCheck({
@@ -15,7 +16,7 @@ export function BsvCheck({
   };
 }) {
   const bundle = useVisitBundle(visitId).data;
-  const problems = bsvInconsistencies({
+  const { problems } = bsvGradesOf({
     simultaneousPerception: {
       ...benchFields(bundle, 'simultaneousPerception'),
       ...overrides?.simultaneousPerception,
@@ -32,6 +33,7 @@ export function BsvCheck({
           <li key={`${p.lowerGrade}-${p.higherGrade}`}>{p.message}</li>
         ))}
       </ul>
+      <Caution text={CLINICAL_CAUTION} />
     </div>
   );
 }

@@ -1,10 +1,15 @@
 // Fusional ranges from the subjective angle: divergence first (convergence first can understate
 // divergence), then convergence, vertical and cyclo; break and recovery at each. Amplitudes and
 // the norms comparison are the shared clinical module's.
-import { CLINICAL_CAUTION, fieldMeta } from '@fuselight/shared';
+import {
+  CLINICAL_CAUTION,
+  FUSIONAL_NORMS_TABLE,
+  fieldMeta,
+  fusionalRangesOf,
+  normsTableName,
+} from '@fuselight/shared';
 import { AngleControl } from '../../../components/controls';
 import { type BenchFields, benchFields, useBenchSection } from '../../../data/bench';
-import { BENCH_NORMS_TABLE, normsTableName, rangesOf } from '../bench-interpretations';
 import { Caution, StepFrame } from '../StepFrame';
 
 const meta = fieldMeta.fusionalRanges;
@@ -75,12 +80,12 @@ export function FusionalRangesStep({ visitId }: { visitId: string }) {
   const section = useBenchSection(visitId, 'fusionalRanges');
   const { fields, save } = section;
   const angles = benchFields(section.bundle, 'amblyoscopeAngles');
-  const interpretation = rangesOf(angles, fields);
-  const tableName = normsTableName(BENCH_NORMS_TABLE);
+  const interpretation = fusionalRangesOf(angles, fields);
+  const tableName = normsTableName(FUSIONAL_NORMS_TABLE);
   const saveReading = (name: RangeField, value: number | null) =>
     void save({
       [name]: value,
-      normsTable: `${BENCH_NORMS_TABLE.id}@${BENCH_NORMS_TABLE.version}`,
+      normsTable: `${FUSIONAL_NORMS_TABLE.id}@${FUSIONAL_NORMS_TABLE.version}`,
     });
   const proximal =
     interpretation?.ok === true

@@ -1,15 +1,16 @@
 // The Bench's summary: every Section in words, the interpretations with the clinical caution,
 // the BSV grade check, and what was skipped and why.
-import { CLINICAL_CAUTION, describeDeviation } from '@fuselight/shared';
+import {
+  bsvGradesOf,
+  CLINICAL_CAUTION,
+  correspondenceOf,
+  describeDeviation,
+  fusionalRangesOf,
+  normsTableName,
+  stereoOf,
+} from '@fuselight/shared';
 import { useVisitBundle } from '../../../data/charting';
 import { type BenchCollection, benchFields } from '../../../data/bench';
-import {
-  bsvInconsistencies,
-  correspondenceOf,
-  normsTableName,
-  rangesOf,
-  stereoOf,
-} from '../bench-interpretations';
 import { BENCH_STEPS } from '../bench-steps';
 import { Caution } from '../StepFrame';
 import { missingMarkMessage } from './FusionStep';
@@ -30,9 +31,9 @@ export function SummaryStep({ visitId }: { visitId: string }) {
   const ranges = f('fusionalRanges');
   const stereo = f('grossStereopsis');
   const correspondence = correspondenceOf(angles);
-  const rangeResult = rangesOf(angles, ranges);
+  const rangeResult = fusionalRangesOf(angles, ranges);
   const verdict = stereoOf(stereo.trials);
-  const bsv = bsvInconsistencies({ simultaneousPerception: sp, fusion, grossStereopsis: stereo });
+  const bsv = bsvGradesOf({ simultaneousPerception: sp, fusion, grossStereopsis: stereo }).problems;
   const region = scotomaRegionOf(scotoma, angles).region;
 
   const deviation = (kind: 'subjective' | 'objective') => {
