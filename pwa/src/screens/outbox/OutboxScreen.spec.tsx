@@ -84,7 +84,11 @@ describe('the Outbox screen', () => {
   it('lists waiting edits with their fields in the trade’s words', async () => {
     await records.create('patient', patientFields({ familyName: 'Eze' }), ctx());
     renderScreen();
-    const waiting = await screen.findByRole('region', { name: 'Waiting to be sent (1)' });
+    const waiting = await screen.findByRole(
+      'region',
+      { name: 'Waiting to be sent (1)' },
+      { timeout: 5000 },
+    );
     const items = within(waiting).getAllByRole('listitem');
     expect(items).toHaveLength(1);
     expect(items[0]!.querySelector('h3')?.textContent).toBe('Patient details');
