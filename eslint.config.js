@@ -4,6 +4,30 @@ import tseslint from 'typescript-eslint';
 import reactHooks from 'eslint-plugin-react-hooks';
 import globals from 'globals';
 
+// `no-restricted-imports` set in a later block replaces the whole rule for its files, so every
+// block that sets it builds its options with `restrictedImports`, which always carries the ban on
+// reaching into another workspace by a relative path (pwa/src/lint-rules.spec.ts proves each ban).
+// The ban matches a path that climbs into a workspace's folder, so a deep folder may still import
+// three levels up inside its own workspace.
+const WORKSPACES = ['shared', 'pwa', 'sync-server', 'conflict-tests'];
+const CROSS_WORKSPACE_PATTERNS = [
+  {
+    regex: `^(\\.\\./)+(${WORKSPACES.join('|')})(/|$)`,
+    message: 'Import another workspace by its package name, not a relative path.',
+  },
+];
+
+/** The options of `no-restricted-imports`: the cross-workspace ban plus a block's own bans. */
+function restrictedImports({ paths = [], patterns = [] } = {}) {
+  return [
+    'error',
+    {
+      ...(paths.length > 0 ? { paths } : {}),
+      patterns: [...CROSS_WORKSPACE_PATTERNS, ...patterns],
+    },
+  ];
+}
+
 export default tseslint.config(
   {
     ignores: [
@@ -37,23 +61,7 @@ export default tseslint.config(
         'error',
         { argsIgnorePattern: '^_', varsIgnorePattern: '^_' },
       ],
-      'no-restricted-imports': [
-        'error',
-        {
-          patterns: [
-            {
-              group: [
-                '../../shared/*',
-                '../../pwa/*',
-                '../../sync-server/*',
-                '../../conflict-tests/*',
-                '../../../*',
-              ],
-              message: 'Import another workspace by its package name, not a relative path.',
-            },
-          ],
-        },
-      ],
+      'no-restricted-imports': restrictedImports(),
     },
   },
   {
@@ -63,18 +71,15 @@ export default tseslint.config(
   {
     files: ['shared/src/**/*.ts'],
     rules: {
-      'no-restricted-imports': [
-        'error',
-        {
-          paths: ['dexie', '@nestjs/common', '@nestjs/core', 'fs', 'node:fs', 'http', 'node:http'],
-          patterns: [
-            {
-              group: ['@nestjs/*', '@mikro-orm/*', 'dexie*'],
-              message: 'shared/ is pure: no I/O, no framework.',
-            },
-          ],
-        },
-      ],
+      'no-restricted-imports': restrictedImports({
+        paths: ['dexie', '@nestjs/common', '@nestjs/core', 'fs', 'node:fs', 'http', 'node:http'],
+        patterns: [
+          {
+            group: ['@nestjs/*', '@mikro-orm/*', 'dexie*'],
+            message: 'shared/ is pure: no I/O, no framework.',
+          },
+        ],
+      }),
       'no-restricted-syntax': [
         'error',
         {
@@ -93,14 +98,11 @@ export default tseslint.config(
   {
     files: ['pwa/src/**/*.tsx', 'pwa/src/screens/**', 'pwa/src/components/**'],
     rules: {
-      'no-restricted-imports': [
-        'error',
-        {
-          paths: [
-            { name: 'dexie', message: 'Components use repositories in pwa/src/data, never Dexie.' },
-          ],
-        },
-      ],
+      'no-restricted-imports': restrictedImports({
+        paths: [
+          { name: 'dexie', message: 'Components use repositories in pwa/src/data, never Dexie.' },
+        ],
+      }),
     },
   },
   {

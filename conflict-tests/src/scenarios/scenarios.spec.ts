@@ -4,6 +4,7 @@ import { SCHEMA_VERSION } from '@fuselight/shared';
 import type { TestUser } from '@server/testing/identity-factory';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startClinic, type Clinic } from '../harness/clinic-server';
+import { expectConverged } from '../harness/convergence';
 import { deskToken, listConflicts, resolveConflict, serverSnapshot } from '../harness/server-view';
 import { SimTablet } from '../harness/sim-tablet';
 import { ChartingRepository } from '@pwa/data/charting/charting-repository';
@@ -64,19 +65,6 @@ async function sharedVisit(a: SimTablet, others: SimTablet[]) {
   return { patientId, visitId };
 }
 
-/** Guarantee 1: tablets that stop editing and sync hold the server's records. */
-async function expectConverged(...all: SimTablet[]) {
-  for (const t of all) await t.syncUntilSettled();
-  for (const t of all) await t.syncUntilSettled();
-  const token = await all[0]!.auth.tokenFor(all[0]!.user.id);
-  const server = await serverSnapshot(clinic, token!);
-  for (const t of all) {
-    const mine = await t.snapshot();
-    for (const [key, record] of Object.entries(mine))
-      expect(record, `${t.name} ${key}`).toEqual(server[key]);
-  }
-}
-
 function statusesOf(t: SimTablet, recordId: string) {
   return t.acks.filter((ack) => ack.entry.recordId === recordId).map((ack) => ack.result.status);
 }
@@ -107,7 +95,7 @@ describe('two tablets edit one visit offline', () => {
         expect((await t.get('visit', visitId))?.fields).toMatchObject({ ...editA, ...editB });
         expect((await t.get('visit', visitId))?.pendingFields).toEqual([]);
       }
-      await expectConverged(a, b);
+      await expectConverged(clinic, [a, b]);
     },
   );
 });
@@ -146,7 +134,7 @@ describe('two tablets start the same Section of a visit offline', () => {
         distanceFinding: 'tropia',
       });
     }
-    await expectConverged(a, b);
+    await expectConverged(clinic, [a, b]);
   });
 });
 
@@ -205,7 +193,7 @@ describe('two tablets set the same field to different values', () => {
       expect(visit?.fields.reason).toBe('Double vision at near');
       expect(visit?.conflicts).toEqual([]);
     }
-    await expectConverged(a, b);
+    await expectConverged(clinic, [a, b]);
   });
 });
 
@@ -234,7 +222,7 @@ describe('a delete races an edit', () => {
     expect(disputes.map((d) => d.field)).toContain('deleted');
     // B's edit of the reason is kept whatever the tombstone's fate.
     expect((await a.get('visit', visitId))?.fields.reason).toBe('Follow-up');
-    await expectConverged(a, b);
+    await expectConverged(clinic, [a, b]);
   });
 });
 
@@ -275,7 +263,7 @@ describe('a tablet offline for a week', () => {
       expect(record?.fields.notes).toBe(notes);
     }
     expect((await outreach.get('patient', ids[3]!))?.fields.givenName).toBe('Clinic3');
-    await expectConverged(outreach, clinicTablet);
+    await expectConverged(clinic, [outreach, clinicTablet]);
   });
 });
 
@@ -297,7 +285,7 @@ describe('a reply lost after the server committed', () => {
     expect(results[1]?.status).toBe('applied');
     expect(await a.db.outbox.count()).toBe(0);
     expect((await a.get('patient', id))?.fields.notes).toBe('Arrived late');
-    await expectConverged(a);
+    await expectConverged(clinic, [a]);
   });
 
   it.each([
@@ -411,5 +399,37 @@ describe('authorship', () => {
     expect(await a.db.outbox.count()).toBe(1);
     await a.sync();
     expect(await a.db.outbox.count()).toBe(0);
+  });
+});
+
+describe('the convergence check', () => {
+  it.each([
+    [
+      'a server record deleted on the tablet only',
+      /: records held: /,
+      (t: SimTablet, id: string) => t.db.records.delete(['patient', id] as unknown as string),
+    ],
+    [
+      'a field changed on the tablet only',
+      /: records: /,
+      async (t: SimTablet, id: string) => {
+        const record = (await t.get('patient', id))!;
+        await t.db.records.put({ ...record, fields: { ...record.fields, notes: 'Here only' } });
+      },
+    ],
+    [
+      'a record the server does not hold',
+      /: records held: /,
+      async (t: SimTablet, id: string) => {
+        const record = (await t.get('patient', id))!;
+        await t.db.records.put({ ...record, id: crypto.randomUUID() });
+      },
+    ],
+  ])('reports a tablet with %s as not converged', async (_, message, spoil) => {
+    const a = await tablet(`check-${tablets.length}`);
+    const id = await a.create('patient', patient());
+    await expectConverged(clinic, [a]);
+    await spoil(a, id);
+    await expect(expectConverged(clinic, [a])).rejects.toThrow(message);
   });
 });

@@ -65,26 +65,32 @@ beforeEach(async () => {
 });
 afterEach(cleanup);
 
+/** Waits for `text`, then checks it is all the page shows: no other screen, no loading. */
+async function expectOnlyScreen(text: string) {
+  await screen.findByText(text);
+  expect(document.body.textContent).toBe(text);
+}
+
 describe('routing by who is signed in', () => {
   it('sends nobody-signed-in to sign-in from a clinical screen', async () => {
     await renderAt('/today');
-    expect(await screen.findByText('Sign-in screen')).toBeTruthy();
+    await expectOnlyScreen('Sign-in screen');
   });
 
   it('keeps an admin out of the clinical screens and the Review desk', async () => {
     await renderAt('/today', ROSALIND.email);
-    expect(await screen.findByText('Fleet screen')).toBeTruthy();
+    await expectOnlyScreen('Fleet screen');
     cleanup();
     await renderAt('/review', ROSALIND.email);
-    expect(await screen.findByText('Fleet screen')).toBeTruthy();
+    await expectOnlyScreen('Fleet screen');
   });
 
   it('lets a supervisor into the Review desk but not a clinician', async () => {
     await renderAt('/review', TOMASZ.email);
-    expect(await screen.findByText('Review desk screen')).toBeTruthy();
+    await expectOnlyScreen('Review desk screen');
     cleanup();
     await renderAt('/review', AMARA.email);
-    expect(await screen.findByText('Today screen')).toBeTruthy();
+    await expectOnlyScreen('Today screen');
   });
 
   it('shows why the tablet was erased instead of any screen', async () => {
@@ -94,7 +100,7 @@ describe('routing by who is signed in', () => {
       at: 0,
     });
     await renderAt('/today');
-    expect(await screen.findByText('Erased: This tablet was revoked by the clinic.')).toBeTruthy();
+    await expectOnlyScreen('Erased: This tablet was revoked by the clinic.');
     expect(screen.queryByText('Sign-in screen')).toBeNull();
   });
 });

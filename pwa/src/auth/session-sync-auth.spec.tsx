@@ -127,7 +127,9 @@ describe('the sync engine’s tokens', () => {
     expect(screen.getByRole('alert').textContent).toMatch(
       /3 of their changes are kept in the Outbox/,
     );
-    expect(screen.getByText('Sign in as Amara Lindqvist')).toBeTruthy();
+    const signInButton = screen.getByText('Sign in as Amara Lindqvist');
+    expect(signInButton.tagName).toBe('ION-BUTTON');
+    expect(screen.getByRole('alert').contains(signInButton)).toBe(true);
 
     // Signing in again clears the prompt and the entries are still there to be sent.
     server.refuseRefresh = 'no';

@@ -42,9 +42,10 @@ describe('the sync indicator', () => {
     });
     await engine.syncOnce();
     render(<SyncIndicator engine={engine} />);
-    expect(screen.getByText('Offline')).toBeTruthy();
-    expect(screen.getByText(/1 waiting/)).toBeTruthy();
-    expect(screen.getByText(/Not synced yet/)).toBeTruthy();
+    expect(screen.getByRole('status').textContent).toBe('Offline· 1 waiting· Not synced yet');
+    expect(screen.getByRole('region').getAttribute('aria-label')).toBe(
+      'Sync status: offline, 1 waiting, Not synced yet',
+    );
     const button = screen.getByRole('button', { name: 'Sync now' });
     expect(parseInt(button.style.minHeight, 10)).toBeGreaterThanOrEqual(48);
   });
@@ -64,7 +65,7 @@ describe('the sync indicator', () => {
       expect(screen.getByRole('alert').textContent).toMatch(/could not be reached/),
     );
     expect(fetch).toHaveBeenCalled();
-    expect(screen.getByText('Online')).toBeTruthy();
+    expect(screen.getByRole('status').textContent).toMatch(/^Online· 1 waiting· /);
     engine.stop();
   });
 

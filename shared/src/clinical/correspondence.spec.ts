@@ -1,37 +1,36 @@
 import { describe, expect, it } from 'vitest';
 import { CLINICAL_CAUTION } from './caution';
 import { ClinicalInputError } from './clinical-input.error';
-import { classifyCorrespondence } from './correspondence';
+import { classifyCorrespondence, type CorrespondenceResult } from './correspondence';
 
-// Classes per clinical-reference.md: angle of anomaly = objective − subjective (Millodot);
-// NRC / harmonious / unharmonious ARC (Stedman's); default tolerance 5° (one teaching source).
+// Sources of the check values:
+// - angle of anomaly = objective − subjective angle: Millodot, Dictionary of Optometry,
+//   "angle of anomaly";
+// - NRC, harmonious ARC (subjective angle about zero, angle of anomaly equal to the objective
+//   angle) and unharmonious ARC (subjective angle between zero and the objective angle):
+//   Stedman's Medical Dictionary;
+// - the tolerance of 5° ("a difference over 5° suggests ARC") has no published source the team
+//   holds: common practice, [memory]. It is Fuselight's default and a clinic setting.
 describe('classifyCorrespondence', () => {
-  it('calls matching angles NRC', () => {
-    const r = classifyCorrespondence({ objectiveDeg: 12, subjectiveDeg: 10 });
-    expect(r.result).toBe('NRC');
-    expect(r.angleOfAnomalyDeg).toBe(2);
-    expect(r.needsRemeasurement).toBe(false);
-    expect(r.caution).toBe(CLINICAL_CAUTION);
-  });
-
-  it('treats a difference of exactly the tolerance as NRC and just over it as not', () => {
-    expect(classifyCorrespondence({ objectiveDeg: 15, subjectiveDeg: 10 }).result).toBe('NRC');
-    expect(classifyCorrespondence({ objectiveDeg: 15.5, subjectiveDeg: 10 }).result).toBe(
-      'unharmonious ARC',
-    );
-  });
-
-  it('calls a zero subjective angle with a large objective angle harmonious ARC', () => {
-    const r = classifyCorrespondence({ objectiveDeg: 18, subjectiveDeg: 0 });
-    expect(r.result).toBe('harmonious ARC');
-    expect(r.angleOfAnomalyDeg).toBe(18); // equals the objective angle (Stedman's)
-  });
-
-  it('calls a subjective angle between zero and the objective unharmonious ARC', () => {
-    const r = classifyCorrespondence({ objectiveDeg: -20, subjectiveDeg: -10 });
-    expect(r.result).toBe('unharmonious ARC');
-    expect(r.angleOfAnomalyDeg).toBe(-10);
-  });
+  it.each<[number, number, CorrespondenceResult, number, string]>([
+    // objective°, subjective°, class, angle of anomaly°, source of the expectation
+    [12, 10, 'NRC', 2, 'Millodot; within 5° ([memory])'],
+    [15, 10, 'NRC', 5, 'Millodot; exactly 5° is not over 5° ([memory])'],
+    [15.5, 10, 'unharmonious ARC', 5.5, 'over 5° ([memory]); Stedman’s: below objective'],
+    [18, 0, 'harmonious ARC', 18, 'Stedman’s: angle of anomaly equals the objective angle'],
+    [-20, -10, 'unharmonious ARC', -10, 'Stedman’s: between zero and the objective angle'],
+    [-20, -2, 'harmonious ARC', -18, 'Stedman’s; subjective within 5° of zero ([memory])'],
+  ])(
+    'objective %s°, subjective %s°: %s, angle of anomaly %s° (%s)',
+    (objectiveDeg, subjectiveDeg, result, anomaly) => {
+      const r = classifyCorrespondence({ objectiveDeg, subjectiveDeg });
+      expect(r.result).toBe(result);
+      expect(r.angleOfAnomalyDeg).toBe(anomaly);
+      expect(r.toleranceDeg).toBe(5);
+      expect(r.needsRemeasurement).toBe(false);
+      expect(r.caution).toBe(CLINICAL_CAUTION);
+    },
+  );
 
   it('asks for re-measurement when the subjective angle is beyond the objective', () => {
     const r = classifyCorrespondence({ objectiveDeg: 10, subjectiveDeg: 25 });
@@ -48,6 +47,7 @@ describe('classifyCorrespondence', () => {
   });
 
   it('uses the clinic tolerance when one is set', () => {
+    // A 3° difference against tolerances of 2° and 3° (a clinic setting, no published source).
     expect(
       classifyCorrespondence({ objectiveDeg: 12, subjectiveDeg: 9, toleranceDeg: 2 }).result,
     ).toBe('unharmonious ARC');

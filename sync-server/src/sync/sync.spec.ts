@@ -511,10 +511,15 @@ describe('POST /api/sync/push: refused requests', () => {
     expect(parsePushEnvelope({ protocol: 1, schemaVersion: 2, changes: [] }, 3)).toEqual([]);
   });
 
-  it('answers 426 over HTTP with a message to update the app', async () => {
-    // SCHEMA_VERSION is 1, so a version below SCHEMA_VERSION − 1 can only be negative: 400 by shape.
-    const res = await tabA.push([], { schemaVersion: SCHEMA_VERSION - 2 });
-    expect(res.status).toBe(SCHEMA_VERSION - 2 < 0 ? 400 : 426);
+  it('answers 400 naming the field to a negative schema version over HTTP: while the schema version is 1 no device can be old enough for a 426', async () => {
+    // The server answers 426 to a schemaVersion below SCHEMA_VERSION − 1 (the test above, with a
+    // server at 3). At SCHEMA_VERSION 1 that means below 0, which the envelope's shape refuses
+    // first. When SCHEMA_VERSION goes up, this must become a push of SCHEMA_VERSION − 2 over HTTP
+    // that expects 426 and the words "Update the app".
+    expect(SCHEMA_VERSION, 'a 426 is now reachable over HTTP: test it here').toBe(1);
+    const res = await tabA.push([], { schemaVersion: -1 });
+    expect(res.status).toBe(400);
+    expect(res.body.message).toContain('body.schemaVersion: schemaVersion cannot be negative');
   });
 
   it('answers 401 without a token and 403 to a desk session', async () => {

@@ -1,4 +1,4 @@
-import { cleanup, render, screen } from '@testing-library/react';
+import { cleanup, render, screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { useState } from 'react';
 import { afterEach, describe, expect, it, vi } from 'vitest';
@@ -53,7 +53,8 @@ describe('AngleControl', () => {
     await user.click(screen.getByRole('button', { name: '+5° more eso' }));
     expect(shown()).toBe('eso 90.0°');
     // tan 90° is unbounded, so no Δ can be shown there.
-    expect(screen.getByText('no finite prism equivalent at this angle')).toBeTruthy();
+    expect(spin().textContent).toBe('eso 90.0°no finite prism equivalent at this angle');
+    expect(screen.queryByTestId('angle-other-unit')).toBeNull();
     expect(screen.getByRole('button', { name: '+0.5° more eso' })).toHaveProperty('disabled', true);
   });
 
@@ -104,9 +105,17 @@ describe('AngleControl', () => {
   it('speaks incyclo and excyclo for torsion and shows no prism equivalent', () => {
     render(<Harness axis="torsion" min={-45} max={45} initial={-3} />);
     expect(shown()).toBe('incyclo 3.0°');
-    expect(screen.getByRole('button', { name: 'excyclo' })).toBeTruthy();
+    const direction = screen.getByRole('group', { name: 'Objective horizontal angle: direction' });
+    expect(
+      within(direction)
+        .getAllByRole('button')
+        .map((b) => [b.getAttribute('aria-label'), b.getAttribute('aria-pressed')]),
+    ).toEqual([
+      ['excyclo', 'false'],
+      ['incyclo', 'true'],
+    ]);
     expect(screen.queryByTestId('angle-other-unit')).toBeNull();
-    expect(screen.getByText('no prism equivalent for torsion')).toBeTruthy();
+    expect(spin().textContent).toBe('incyclo 3.0°no prism equivalent for torsion');
   });
 
   it('shows prism dioptres by the exact definition, labelled exact', () => {
@@ -191,7 +200,8 @@ describe('AngleControl', () => {
     expect(undo()).toHaveProperty('disabled', true);
     await user.click(screen.getByRole('button', { name: '+5° more eso' }));
     await user.type(screen.getByRole('textbox'), 'exo 8{Enter}');
-    expect(screen.getByRole('button', { name: 'Undo last entry (back to eso 5.0°)' })).toBeTruthy();
+    expect(undo().getAttribute('aria-label')).toBe('Undo last entry (back to eso 5.0°)');
+    expect(undo()).toHaveProperty('disabled', false);
     await user.click(undo());
     expect(shown()).toBe('eso 5.0°');
     await user.click(undo());

@@ -1,4 +1,4 @@
-import { cleanup, render, screen } from '@testing-library/react';
+import { cleanup, render, screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { useState } from 'react';
 import { afterEach, describe, expect, it, vi } from 'vitest';
@@ -29,7 +29,16 @@ describe('TriStateChoice', () => {
     const onChange = vi.fn();
     render(<TriHarness onChange={onChange} />);
     const group = screen.getByRole('group', { name: 'Simultaneous perception' });
-    expect(group).toBeTruthy();
+    // Three choices in the group, none chosen until the clinician chooses.
+    expect(
+      within(group)
+        .getAllByRole('radio')
+        .map((r) => [r.closest('label')?.textContent, (r as HTMLInputElement).checked]),
+    ).toEqual([
+      ['Present', false],
+      ['Absent', false],
+      ['Not tested', false],
+    ]);
     await user.click(screen.getByRole('radio', { name: 'Absent' }));
     await user.click(screen.getByRole('radio', { name: 'Not tested' }));
     expect(onChange.mock.calls.map(([v]) => v)).toEqual(['absent', 'notTested']);

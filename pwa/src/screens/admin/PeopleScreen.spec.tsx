@@ -87,11 +87,18 @@ afterEach(cleanup);
 describe('People', () => {
   it('invites a person with a role and sites and shows their one-time password once', async () => {
     const { seen } = await renderPeople([]);
-    expect(await screen.findByText('Nobody has been invited yet.')).toBeTruthy();
+    await waitFor(() =>
+      expect(document.body.textContent).toContain('Nobody has been invited yet.'),
+    );
+    expect(screen.queryByRole('button', { name: 'Deactivate' })).toBeNull();
     const user = userEvent.setup();
     const form = screen.getByRole('form', { name: 'Invite a person' });
     await user.click(within(form).getByRole('button', { name: 'Invite' }));
-    expect(await within(form).findByText('Enter the person’s name')).toBeTruthy();
+    const name = within(form).getByLabelText('Name');
+    await waitFor(() => expect(name.getAttribute('aria-invalid')).toBe('true'));
+    expect(document.getElementById(name.getAttribute('aria-describedby')!)?.textContent).toBe(
+      'Enter the person’s name',
+    );
 
     await user.type(within(form).getByLabelText('Name'), 'Priya Castellano');
     await user.type(within(form).getByLabelText('E-mail address'), 'priya@harbourview.test');
@@ -119,7 +126,15 @@ describe('People', () => {
         active: false,
       }),
     );
-    expect(await screen.findByRole('button', { name: 'Reactivate' })).toBeTruthy();
+    // The row now offers Reactivate in place of Deactivate, and it does what it says.
+    const reactivate = await screen.findByRole('button', { name: 'Reactivate' });
+    expect(screen.queryByRole('button', { name: 'Deactivate' })).toBeNull();
+    await user.click(reactivate);
+    await waitFor(() =>
+      expect(
+        seen.filter((c) => c.route === `PATCH /api/admin/users/${KOFI.id}`).map((c) => c.body),
+      ).toEqual([{ active: false }, { active: true }]),
+    );
   });
 
   it('changes a person’s role', async () => {

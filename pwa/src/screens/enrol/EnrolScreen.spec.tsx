@@ -1,4 +1,4 @@
-import { cleanup, render, screen, waitFor } from '@testing-library/react';
+import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import { MemoryRouter, Route, Routes } from 'react-router-dom';
@@ -62,7 +62,7 @@ describe('enrolling a tablet', () => {
     const user = userEvent.setup();
     await user.type(screen.getByLabelText('Enrolment code'), 'k7q2m9xd');
     await user.click(screen.getByRole('button', { name: 'Enrol' }));
-    expect(await screen.findByText('Sign-in screen')).toBeTruthy();
+    await waitFor(() => expect(document.body.textContent).toBe('Sign-in screen'));
     expect(store.getSnapshot().tablet?.deviceId).toBe('0190c6a0-0000-7000-8000-0000000000d1');
   });
 
@@ -70,15 +70,22 @@ describe('enrolling a tablet', () => {
     renderEnrol('/enrol#code=WRONGCODE');
     expect((screen.getByLabelText('Enrolment code') as HTMLInputElement).value).toBe('WRONGCODE');
     await userEvent.setup().click(screen.getByRole('button', { name: 'Enrol' }));
-    expect(await screen.findByText(/not valid or has expired/)).toBeTruthy();
+    await waitFor(() =>
+      expect(screen.getByRole('alert').textContent).toMatch(/not valid or has expired/),
+    );
   });
 
   it('falls back to typing, in words, when the device has no camera', async () => {
     renderEnrol();
     await userEvent.setup().click(screen.getByRole('button', { name: 'Scan the QR code' }));
-    expect(
-      await screen.findByText(/no camera we can use\. Type the code below instead/),
-    ).toBeTruthy();
-    expect(screen.getByLabelText('Enrolment code')).toBeTruthy();
+    const scanner = screen.getByRole('region', { name: 'Scan the enrolment QR code' });
+    await waitFor(() =>
+      expect(within(scanner).getByRole('status').textContent).toBe(
+        'This device has no camera we can use. Type the code below instead.',
+      ),
+    );
+    const code = screen.getByLabelText('Enrolment code') as HTMLInputElement;
+    expect(code.disabled).toBe(false);
+    expect(code.value).toBe('');
   });
 });

@@ -94,7 +94,10 @@ afterEach(cleanup);
 describe('the Fleet', () => {
   it('says so in words when no tablet is registered', async () => {
     await renderFleet([]);
-    expect(await screen.findByText('No tablets are registered yet.')).toBeTruthy();
+    await waitFor(() =>
+      expect(document.body.textContent).toContain('No tablets are registered yet.'),
+    );
+    expect(screen.queryByRole('table')).toBeNull();
   });
 
   it('shows each tablet’s last contact, app version and Outbox size', async () => {
@@ -103,7 +106,10 @@ describe('the Fleet', () => {
     expect(row.textContent).toContain('In use');
     expect(row.textContent).toContain('Harbourview Clinic');
     expect(row.textContent).toContain('0.1.0');
-    expect(within(row).getByText('4')).toBeTruthy();
+    const headers = screen.getAllByRole('columnheader').map((h) => h.textContent);
+    const byColumn = Object.fromEntries(headers.map((h, i) => [h, row.children[i]?.textContent]));
+    expect(byColumn.Outbox).toBe('4');
+    expect(byColumn['App version']).toBe('0.1.0');
     expect(row.textContent).toContain(new Date('2026-12-01T09:30:00.000Z').toLocaleString());
   });
 
@@ -111,8 +117,16 @@ describe('the Fleet', () => {
     const { seen } = await renderFleet([]);
     const user = userEvent.setup();
     await user.click(screen.getByRole('button', { name: 'Register tablet' }));
-    expect(await screen.findByText('Give the tablet a name people will recognise')).toBeTruthy();
-    expect(screen.getByText('Choose at least one site the tablet serves')).toBeTruthy();
+    const name = screen.getByLabelText('Tablet name');
+    await waitFor(() => expect(name.getAttribute('aria-invalid')).toBe('true'));
+    expect(document.getElementById(name.getAttribute('aria-describedby')!)?.textContent).toBe(
+      'Give the tablet a name people will recognise',
+    );
+    const sitesGroup = screen.getByRole('group', { name: 'Sites it serves' });
+    expect(document.getElementById(sitesGroup.getAttribute('aria-describedby')!)?.textContent).toBe(
+      'Choose at least one site the tablet serves',
+    );
+    expect(seen.some((c) => c.route.startsWith('POST'))).toBe(false);
 
     await user.type(screen.getByLabelText('Tablet name'), 'Outreach bag 1');
     await user.click(await screen.findByLabelText('Harbourview Clinic'));

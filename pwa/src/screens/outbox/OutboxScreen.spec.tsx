@@ -65,17 +65,34 @@ afterEach(async () => {
   await db.delete();
 });
 
+/** The Outbox says in words that nothing waits, and lists no entry. */
+async function expectNothingWaiting() {
+  await waitFor(() =>
+    expect(document.body.textContent).toContain(
+      'Nothing is waiting: every edit saved on this tablet has reached the clinic server.',
+    ),
+  );
+  expect(screen.queryAllByRole('listitem')).toEqual([]);
+}
+
 describe('the Outbox screen', () => {
   it('says in words that nothing is waiting when the Outbox is empty', async () => {
     renderScreen();
-    expect(await screen.findByText(/Nothing is waiting/)).toBeTruthy();
+    await expectNothingWaiting();
   });
 
   it('lists waiting edits with their fields in the trade’s words', async () => {
     await records.create('patient', patientFields({ familyName: 'Eze' }), ctx());
     renderScreen();
-    expect(await screen.findByRole('heading', { name: 'Waiting to be sent (1)' })).toBeTruthy();
-    expect(screen.getByText(/Family name: Eze/)).toBeTruthy();
+    const waiting = await screen.findByRole(
+      'region',
+      { name: 'Waiting to be sent (1)' },
+      { timeout: 5000 },
+    );
+    const items = within(waiting).getAllByRole('listitem');
+    expect(items).toHaveLength(1);
+    expect(items[0]!.querySelector('h3')?.textContent).toBe('Patient details');
+    expect(items[0]!.querySelector('p')?.textContent).toMatch(/Family name: Eze/);
     expect(screen.queryByRole('button', { name: 'Discard' })).toBeNull();
   });
 
@@ -83,7 +100,9 @@ describe('the Outbox screen', () => {
     const { id } = await rejectedPatient();
     renderScreen();
     const section = await screen.findByRole('region', { name: 'Refused by the server (1)' });
-    expect(within(section).getByText(/already in use at this site/)).toBeTruthy();
+    expect(within(section).getByRole('note').textContent).toMatch(
+      /^The clinic server refused this edit: .*already in use at this site/,
+    );
     await userEvent.click(within(section).getByRole('button', { name: 'Discard' }));
     // Nothing is gone yet: the person must confirm.
     expect(await db.outbox.count()).toBe(1);
@@ -93,11 +112,12 @@ describe('the Outbox screen', () => {
     await userEvent.click(screen.getByRole('button', { name: 'Yes, discard' }));
     await waitFor(async () => expect(await db.outbox.count()).toBe(0));
     expect(await records.get('patient', id)).toBeUndefined();
-    expect(await screen.findByText(/Nothing is waiting/)).toBeTruthy();
+    await expectNothingWaiting();
     await userEvent.click(screen.getByRole('button', { name: 'Undo' }));
     await waitFor(async () => expect(await db.outbox.count()).toBe(1));
     expect((await records.get('patient', id))?.fields.familyName).toBe('Okafor');
-    expect(await screen.findByRole('region', { name: 'Refused by the server (1)' })).toBeTruthy();
+    const back = await screen.findByRole('region', { name: 'Refused by the server (1)' });
+    expect(within(back).getByRole('note').textContent).toMatch(/already in use at this site/);
   });
 
   it('fixes a refused edit: a still-invalid value is named, a valid one sends it again', async () => {
@@ -118,13 +138,21 @@ describe('the Outbox screen', () => {
       expect(entries).toHaveLength(1);
       expect(entries[0]).toMatchObject({ state: 'pending', fields: { clinicNumber: 'FL-777' } });
     });
-    expect(await screen.findByRole('heading', { name: 'Waiting to be sent (1)' })).toBeTruthy();
+    const waiting = await screen.findByRole('region', { name: 'Waiting to be sent (1)' });
+    expect(within(waiting).getAllByRole('listitem')).toHaveLength(1);
+    expect(screen.queryByRole('region', { name: /^Refused by the server/ })).toBeNull();
   });
 
   it('keeps another person’s refused edit visible but leaves fixing it to them', async () => {
     await rejectedPatient(OTHER_CLINICIAN_ID);
     renderScreen();
-    expect(await screen.findByText(/Only the person who made this edit/)).toBeTruthy();
+    const section = await screen.findByRole('region', { name: 'Refused by the server (1)' });
+    await waitFor(() =>
+      expect(section.textContent).toContain(
+        'Only the person who made this edit can fix or discard it.',
+      ),
+    );
+    expect(within(section).queryByRole('button', { name: 'Discard' })).toBeNull();
     expect(screen.queryByRole('button', { name: 'Fix' })).toBeNull();
   });
 

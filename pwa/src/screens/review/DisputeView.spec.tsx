@@ -1,4 +1,4 @@
-import { cleanup, render, screen, within } from '@testing-library/react';
+import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { DisputeView } from './DisputeView';
@@ -17,22 +17,37 @@ describe('DisputeView', () => {
     );
     const candidates = screen.getByRole('group', { name: 'Values entered' });
     // 12° → 100·tan(12°) = 21.26Δ (prism dioptre definition); −8° → 14.05Δ.
-    expect(within(candidates).getByText('eso 12.0° (21.3Δ)')).toBeTruthy();
-    expect(within(candidates).getByText('exo 8.0° (14.1Δ)')).toBeTruthy();
+    const textsOf = (selector: string, root: ParentNode = candidates) =>
+      [...root.querySelectorAll(selector)].map((e) => e.textContent);
+    expect(textsOf('.fl-review-candidate__value')).toEqual([
+      'eso 12.0° (21.3Δ)',
+      'exo 8.0° (14.1Δ)',
+      'Enter a corrected value',
+    ]);
     expect(within(candidates).queryByText('12')).toBeNull();
     expect(within(candidates).queryByText('-8')).toBeNull();
     // 09:30 UTC on 1 Dec is 22:30 in Auckland (UTC+13 in December).
-    expect(
-      within(candidates).getByText(/Entered by Ada Quill on Room 2 tablet, 1 Dec 2026, 22:30/),
-    ).toBeTruthy();
+    expect(textsOf('.fl-review-candidate__who')).toEqual([
+      'Entered by Ada Quill on Room 2 tablet, 1 Dec 2026, 22:30 GMT+13',
+      'Entered by Bram Osei on Outreach tablet, 1 Dec 2026, 22:32 GMT+13',
+    ]);
     const provisionalBadges = within(candidates).getAllByText('Provisional (held now)');
     expect(provisionalBadges).toHaveLength(1);
     expect(provisionalBadges[0]!.closest('label')!.textContent).toContain('exo 8.0°');
     // The rest of the visit's angles, in words, for context.
-    expect(screen.getByText('Subjective horizontal angle')).toBeTruthy();
-    expect(screen.getByText('eso 4.0° (7.0Δ)')).toBeTruthy();
-    expect(screen.getByText('R/L 2.0Δ (1.1°)')).toBeTruthy();
-    expect(screen.getByText('open for 3 h', { exact: false })).toBeTruthy();
+    expect(
+      [...document.querySelectorAll('.fl-review-context__row')].map((row) => [
+        row.querySelector('dt')?.textContent,
+        row.querySelector('dd')?.textContent,
+      ]),
+    ).toEqual([
+      ['Objective horizontal angle (disputed)', 'exo 8.0° (14.1Δ)'],
+      ['Subjective horizontal angle', 'eso 4.0° (7.0Δ)'],
+      ['Objective vertical angle', 'R/L 2.0Δ (1.1°)'],
+    ]);
+    expect(document.querySelector('header p.fl-muted')?.textContent).toBe(
+      'Mira Tenby · visit of 2026-12-01 · Harbour Street Clinic · open for 3 h (since 1 Dec 2026, 22:33 GMT+13)',
+    );
   });
 
   it('requires a note before resolving, and sends the chosen candidate with it', async () => {
@@ -71,9 +86,12 @@ describe('DisputeView', () => {
     );
     await user.type(screen.getByLabelText('Note: why this value (required)'), 'why');
     await user.click(screen.getByRole('button', { name: 'Resolve dispute' }));
-    expect(
-      await screen.findByText('Choose one of the values, or enter a corrected value.'),
-    ).toBeTruthy();
+    await waitFor(() =>
+      expect(
+        within(screen.getByRole('group', { name: 'Values entered' })).getByRole('alert')
+          .textContent,
+      ).toBe('Choose one of the values, or enter a corrected value.'),
+    );
     expect(onResolve).not.toHaveBeenCalled();
   });
 
@@ -115,7 +133,10 @@ describe('DisputeView', () => {
       />,
     );
     expect(screen.getByRole('note').textContent).toContain('recorded as an Addendum');
-    expect(screen.getByRole('button', { name: 'Resolve as Addendum' })).toBeTruthy();
+    expect(document.querySelector('.fl-review-actions button')?.textContent).toBe(
+      'Resolve as Addendum',
+    );
+    expect(screen.queryByRole('button', { name: 'Resolve dispute' })).toBeNull();
   });
 
   it('shows the server’s refusal in words', async () => {
@@ -131,6 +152,8 @@ describe('DisputeView', () => {
     await user.click(screen.getByRole('radio', { name: /exo 8\.0°/ }));
     await user.type(screen.getByLabelText('Note: why this value (required)'), 'ok');
     await user.click(screen.getByRole('button', { name: 'Resolve dispute' }));
-    expect(await screen.findByText('This dispute was already resolved.')).toBeTruthy();
+    await waitFor(() =>
+      expect(screen.getByRole('alert').textContent).toBe('This dispute was already resolved.'),
+    );
   });
 });

@@ -1,5 +1,5 @@
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
-import { cleanup, render, screen, within } from '@testing-library/react';
+import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import type { ReactNode } from 'react';
 import { afterEach, describe, expect, it } from 'vitest';
@@ -70,9 +70,25 @@ describe('the Review desk', () => {
     const { api } = fakeServer([angleDispute()]);
     render(wrap(<ReviewDesk api={api} />));
     const table = await screen.findByRole('table');
-    expect(within(table).getByText('eso 12.0° (21.3Δ) / exo 8.0° (14.1Δ)')).toBeTruthy();
-    expect(within(table).getByText('Amblyoscope angles: Objective horizontal angle')).toBeTruthy();
-    expect(await screen.findByRole('button', { name: 'Disputes (1)' })).toBeTruthy();
+    const [, row] = within(table).getAllByRole('row');
+    const cells = within(row!)
+      .getAllByRole('cell')
+      .map((cell) => cell.textContent);
+    expect(cells.slice(1, 3)).toEqual([
+      'Amblyoscope angles: Objective horizontal angle',
+      'eso 12.0° (21.3Δ) / exo 8.0° (14.1Δ)',
+    ]);
+    await waitFor(() =>
+      expect(
+        within(screen.getByRole('group', { name: 'Review desk sections' }))
+          .getAllByRole('button')
+          .map((b) => [b.textContent, b.getAttribute('aria-pressed')]),
+      ).toEqual([
+        ['Disputes (1)', 'true'],
+        ['Countersign (0)', 'false'],
+        ['Record history', 'false'],
+      ]),
+    );
   });
 
   it('offers bulk resolution only for formatting-only disputes, with a preview of each before sending', async () => {
@@ -97,7 +113,7 @@ describe('the Review desk', () => {
     // Nothing is sent before confirming.
     expect(resolved).toEqual([]);
     await user.click(within(preview).getByRole('button', { name: 'Confirm and resolve 1' }));
-    expect(await within(preview).findByText('Resolved.')).toBeTruthy();
+    await waitFor(() => expect(within(preview).getByRole('status').textContent).toBe('Resolved.'));
     expect(resolved).toEqual([
       {
         id: 'c-fmt',
@@ -121,9 +137,12 @@ describe('the Review desk', () => {
   it('says in words when there are no disputes, and when the server cannot be reached', async () => {
     const { api } = fakeServer([]);
     render(wrap(<ReviewDesk api={api} />));
-    expect(
-      await screen.findByText('No open disputes in your sites. Every tablet’s edits agree.'),
-    ).toBeTruthy();
+    await waitFor(() =>
+      expect(screen.getByRole('status').textContent).toBe(
+        'No open disputes in your sites. Every tablet’s edits agree.',
+      ),
+    );
+    expect(screen.queryByRole('table')).toBeNull();
     cleanup();
     const offline = new ReviewApi({
       fetch: () => Promise.reject(new TypeError('Failed to fetch')),
@@ -159,7 +178,9 @@ describe('the Review desk', () => {
         </SessionContext.Provider>,
       ),
     );
-    expect(screen.getByRole('heading', { name: 'For supervisors' })).toBeTruthy();
+    expect(screen.getByRole('note').textContent).toMatch(
+      /^For supervisorsThe Review desk is where supervisors resolve Disputes/,
+    );
     expect(screen.queryByRole('table')).toBeNull();
   });
 });

@@ -87,6 +87,8 @@ describe('the Review desk tab count', () => {
     state.answer = 'ok';
     state.summary = { openDisputes: 1, awaitingCountersign: 2 };
     await act(() => client.refetchQueries());
-    expect(await screen.findByText('3')).toBeTruthy();
+    expect(
+      (await screen.findByLabelText('1 open Dispute, 2 visits to countersign')).textContent,
+    ).toBe('3');
   });
 });

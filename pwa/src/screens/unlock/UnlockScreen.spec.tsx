@@ -1,4 +1,4 @@
-import { cleanup, render, screen } from '@testing-library/react';
+import { cleanup, render, screen, waitFor } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import { MemoryRouter, Route, Routes } from 'react-router-dom';
@@ -49,23 +49,33 @@ describe('the person switcher', () => {
     await store.unlock(AMARA.id, '5151');
     await store.refreshSites();
     await store.switchPerson();
-    expect(
-      await screen.findByText('Harbourview Eye Clinic, Saltmarsh School (outreach)'),
-    ).toBeTruthy();
+    const people = screen.getByRole('list', { name: 'People on this tablet' });
+    await waitFor(() =>
+      expect(
+        [...people.querySelectorAll('li')].map((li) => [
+          li.querySelector('strong')?.textContent,
+          li.querySelector('.fl-id-hint')?.textContent,
+        ]),
+      ).toContainEqual(['Amara Lindqvist', 'Harbourview Eye Clinic, Saltmarsh School (outreach)']),
+    );
   });
 
   it('lists everyone on the tablet and unlocks the chosen person with their PIN', async () => {
     const store = await tabletWithTwoPeople();
     const user = userEvent.setup();
     // Tomasz has no PIN, so he signs in with his password instead.
-    expect(await screen.findByText('Sign in as Tomasz Okonjo')).toBeTruthy();
+    expect(
+      (await screen.findByRole('link', { name: 'Sign in as Tomasz Okonjo' })).getAttribute('href'),
+    ).toBe(`/signin?email=${encodeURIComponent(TOMASZ.email)}`);
     await user.click(screen.getByRole('button', { name: 'Unlock as Amara Lindqvist' }));
     await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '9999');
     await user.click(screen.getByRole('button', { name: 'Unlock' }));
-    expect(await screen.findByText('That PIN is not right. 4 attempts left.')).toBeTruthy();
+    await waitFor(() =>
+      expect(screen.getByRole('alert').textContent).toBe('That PIN is not right. 4 attempts left.'),
+    );
     await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '5151');
     await user.click(screen.getByRole('button', { name: 'Unlock' }));
-    expect(await screen.findByText('Home')).toBeTruthy();
+    await waitFor(() => expect(document.body.textContent).toBe('Home'));
     expect(store.getSnapshot().activeUser?.id).toBe(AMARA.id);
   });
 });

@@ -20,11 +20,14 @@ describe('a panel boundary on the Visit', () => {
       </main>,
     );
     quiet.mockRestore();
-    expect(screen.getByRole('region', { name: 'Letters' })).toBeTruthy();
+    const region = screen.getByRole('region', { name: 'Letters' });
+    // The alert is inside the failed panel, and the rest of the Visit still shows.
+    expect(region.contains(screen.getByRole('alert'))).toBe(true);
     expect(screen.getByRole('alert').textContent).toContain(
       'could not be shown (the letter record could not be read)',
     );
-    expect(screen.getByText('Sign visit')).toBeTruthy();
+    expect(screen.getByRole('main').lastElementChild?.textContent).toBe('Sign visit');
+    expect(region.contains(screen.getByRole('main').lastElementChild)).toBe(false);
   });
 
   it('shows the panel itself when nothing fails', () => {
@@ -33,7 +36,7 @@ describe('a panel boundary on the Visit', () => {
         <p>Letters panel</p>
       </PanelBoundary>,
     );
-    expect(screen.getByText('Letters panel')).toBeTruthy();
+    expect(document.body.textContent).toBe('Letters panel');
     expect(screen.queryByRole('alert')).toBeNull();
   });
 });
