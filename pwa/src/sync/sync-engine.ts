@@ -65,6 +65,13 @@ export interface SyncEngineOptions {
   yieldToUi?: () => Promise<void>;
   /** Told of every push result the server sent, with the entry it answers (tests, audit). */
   onPushResult?: (entry: OutboxEntry, result: PushResult) => void;
+  /**
+   * Work that follows every sync tried online, on the same schedule (at start, on reconnect, on
+   * the timer, on "Sync now"): the app uploads attachment files here. The sync does not wait for
+   * it; it never runs twice at once (a sync ending meanwhile has it run once more after); its
+   * failures are its own and never the sync's.
+   */
+  afterSync?: () => Promise<unknown>;
 }
 
 export type SyncOutcome =
@@ -102,6 +109,8 @@ export class SyncEngine {
   private readonly schedule: SyncSchedule<SyncOutcome>;
   private readonly pusher: OutboxPusher;
   private readonly puller: PagePuller;
+  private afterSyncRun: Promise<void> | null = null;
+  private afterSyncAgain = false;
   /** Timings of the last sync. */
   lastTimings: SyncTimings | null = null;
 
@@ -257,8 +266,34 @@ export class SyncEngine {
     }
     timings.totalMs = this.clock.now() - started;
     this.lastTimings = timings;
+    this.runAfterSync();
     await this.refreshCounts();
     return outcome;
+  }
+
+  /** Starts the `afterSync` work, or has it run once more when it is running already. */
+  private runAfterSync(): void {
+    const work = this.options.afterSync;
+    if (!work) return;
+    if (this.afterSyncRun) {
+      this.afterSyncAgain = true;
+      return;
+    }
+    this.afterSyncRun = (async () => {
+      do {
+        this.afterSyncAgain = false;
+        await Promise.resolve()
+          .then(work)
+          .catch(() => undefined);
+      } while (this.afterSyncAgain);
+    })().finally(() => {
+      this.afterSyncRun = null;
+    });
+  }
+
+  /** Resolves when the `afterSync` work under way (if any) is done (tests, sign-out). */
+  async afterSyncSettled(): Promise<void> {
+    await this.afterSyncRun;
   }
 
   /** A copy of the status (for tests and logs). */
