@@ -14,6 +14,7 @@ import {
   renderScreen,
 } from '../components/charting/test-support';
 import { getAttachmentDb } from './attachment-db';
+import { uploadWaitingFiles } from './attachment-transfer';
 import { AttachmentPanel } from './AttachmentPanel';
 
 type Repos = ReturnType<typeof freshRepositories>;
@@ -104,7 +105,9 @@ describe('the Photos and files panel', () => {
 
     const thumbnail = await within(files).findByRole('img', { name: 'Head posture, chin up' });
     expect(thumbnail.getAttribute('src')).toMatch(/^blob:test\//);
-    // The thumbnail is the button that opens the photo.
+    // The panel uploads nothing itself (the sync runtime does, on any screen); it shows what an
+    // upload round elsewhere made of the file. The thumbnail is the button that opens the photo.
+    await uploadWaitingFiles(getAttachmentDb(), { baseUrl: '', tokenFor: async () => null });
     expect(
       within(files).getByRole('button', { name: 'Open Head posture, chin up' }).contains(thumbnail),
     ).toBe(true);

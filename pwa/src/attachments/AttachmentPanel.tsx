@@ -1,6 +1,7 @@
 // The Attachments panel of a Visit: take a photo with the tablet camera or choose a file (photos
 // and PDFs), give it a caption, see thumbnails, and open one full screen. Files stay on the tablet
-// until the server has them; files attached on another tablet are fetched only when opened.
+// until the server has them (uploaded by the sync runtime, on any screen; this panel only shows
+// where each file is); files attached on another tablet are fetched only when opened.
 // Plain controls in the Visit screen's own style (charting.css), like the Sections around it.
 //
 // Mount on the Visit screen: <AttachmentPanel visitId={visit.id} />
@@ -16,9 +17,15 @@ import {
   useRepositories,
   type LocalRecord,
 } from '../data';
-import { blobOf, getAttachmentDb, type AttachmentTransfer } from './attachment-db';
+import { requestSyncNow } from '../sync/sync-runtime';
+import {
+  getAttachmentDb,
+  localFileBlob,
+  transferStates,
+  type AttachmentTransfer,
+} from './attachment-db';
 import { attachFile } from './attachment-intake';
-import { attachmentBlob, transferStates, uploadWaitingFiles } from './attachment-transfer';
+import { attachmentBlob, subscribeTransfers } from './attachment-transfer';
 import './AttachmentPanel.css';
 
 export interface AttachmentPanelProps {
@@ -26,8 +33,6 @@ export interface AttachmentPanelProps {
   /** The server's limit (config attachmentMaxBytes) when known. */
   maxBytes?: number;
 }
-
-const UPLOAD_EVERY_MS = 30_000;
 
 /** Where a file is, in words. */
 function whereWords(transfer: AttachmentTransfer | undefined): string {
@@ -64,13 +69,11 @@ function Thumbnail({
   useEffect(() => {
     let made: string | null = null;
     let gone = false;
-    void getAttachmentDb()
-      .files.get(attachment.id)
-      .then((file) => {
-        if (gone || !file || !attachment.fields.mimeType.startsWith('image/')) return;
-        made = URL.createObjectURL(blobOf(file));
-        setUrl(made);
-      });
+    void localFileBlob(getAttachmentDb(), attachment.id).then((blob) => {
+      if (gone || !blob || !attachment.fields.mimeType.startsWith('image/')) return;
+      made = URL.createObjectURL(blob);
+      setUrl(made);
+    });
     return () => {
       gone = true;
       if (made) URL.revokeObjectURL(made);
@@ -129,26 +132,17 @@ export function AttachmentPanel({
     [ids],
   );
 
-  const upload = useCallback(async () => {
-    await uploadWaitingFiles(getAttachmentDb(), {
-      baseUrl: '',
-      tokenFor: (authorId) => store.tokenFor(authorId),
-    });
-    await refreshStates();
-  }, [store, refreshStates]);
-
   useEffect(() => {
-    // Read upload states (and try any waiting file) once the panel is on screen, then every 30 s.
-    const first = setTimeout(() => void upload().catch(() => undefined), 0);
-    const timer = setInterval(() => void upload().catch(() => undefined), UPLOAD_EVERY_MS);
-    const online = () => void upload().catch(() => undefined);
-    window.addEventListener('online', online);
+    // Uploads run on the sync schedule (sync-runtime.ts); the panel reads where each file is
+    // when it opens and whenever an upload round or a fetch changed something.
+    const refresh = () => void refreshStates().catch(() => undefined);
+    const first = setTimeout(refresh, 0);
+    const unsubscribe = subscribeTransfers(refresh);
     return () => {
       clearTimeout(first);
-      clearInterval(timer);
-      window.removeEventListener('online', online);
+      unsubscribe();
     };
-  }, [upload]);
+  }, [refreshStates]);
 
   useEffect(
     () => () => {
@@ -177,7 +171,8 @@ export function AttachmentPanel({
         refused: false,
       });
       await refreshStates([attachmentId]);
-      void upload().catch(() => undefined);
+      // Sends the attachment record now; its file is uploaded right after, by the sync.
+      void requestSyncNow().catch(() => undefined);
     } catch (error) {
       setMessage({ text: refusalWords(error), refused: true });
     } finally {

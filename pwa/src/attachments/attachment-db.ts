@@ -2,7 +2,7 @@
 // database: a file's bytes stay here until the server holds them, and a file fetched from the
 // server on demand is kept here as a cache. The attachment record itself syncs like any record.
 // A file's bytes are written once; its upload progress lives in its own small table, so a retry
-// never rewrites megabytes.
+// never rewrites megabytes. Screens read the store through the functions here, never its tables.
 import Dexie, { type EntityTable } from 'dexie';
 
 export type AttachmentFileState = 'waiting' | 'uploaded' | 'cached';
@@ -46,6 +46,26 @@ export class AttachmentDb extends Dexie {
 /** The stored file as a Blob of its media type, for thumbnails and the viewer. */
 export function blobOf(file: Pick<AttachmentFile, 'bytes' | 'mimeType'>): Blob {
   return new Blob([file.bytes], { type: file.mimeType });
+}
+
+/** Upload progress of the given files, by attachment id (files with no row are left out). */
+export async function transferStates(
+  files: AttachmentDb,
+  attachmentIds: readonly string[],
+): Promise<Map<string, AttachmentTransfer>> {
+  const rows = await files.transfers.bulkGet([...attachmentIds]);
+  return new Map(
+    rows.filter((r): r is NonNullable<typeof r> => !!r).map((r) => [r.attachmentId, r]),
+  );
+}
+
+/** The file of an attachment as a Blob when this tablet holds it, else null. */
+export async function localFileBlob(
+  files: AttachmentDb,
+  attachmentId: string,
+): Promise<Blob | null> {
+  const file = await files.files.get(attachmentId);
+  return file ? blobOf(file) : null;
 }
 
 let defaultDb: AttachmentDb | null = null;

@@ -1,8 +1,26 @@
 // Moves attachment files between the tablet and the server. Upload: HEAD asks how much the server
 // holds, then the rest goes up in parts with Content-Range, so a lost connection costs at most
 // one part; the file stays on the tablet until the server says it is complete. Download: on
-// demand only (never in the first sync), cached in the attachment store.
+// demand only (never in the first sync), cached in the attachment store. Uploads run on the sync
+// runtime's schedule (sync-runtime.ts: after each sync, so on any screen, after a reconnect and
+// after a reload), not in a screen.
 import { blobOf, type AttachmentDb, type AttachmentFile } from './attachment-db';
+
+export { transferStates } from './attachment-db';
+
+const transferListeners = new Set<() => void>();
+
+/** Told whenever an upload round or a fetch changed what the store holds (panels re-read). */
+export function subscribeTransfers(listener: () => void): () => void {
+  transferListeners.add(listener);
+  return () => {
+    transferListeners.delete(listener);
+  };
+}
+
+function notifyTransfers(): void {
+  for (const listener of [...transferListeners]) listener();
+}
 
 export const UPLOAD_PART_BYTES = 512 * 1024;
 const FIRST_RETRY_MS = 15_000;
@@ -142,15 +160,8 @@ export async function uploadWaitingFiles(
       });
     }
   }
+  if (outcomes.length > 0) notifyTransfers();
   return outcomes;
-}
-
-/** Upload progress of the visit's files, for the panel's badges. */
-export async function transferStates(files: AttachmentDb, attachmentIds: readonly string[]) {
-  const rows = await files.transfers.bulkGet([...attachmentIds]);
-  return new Map(
-    rows.filter((r): r is NonNullable<typeof r> => !!r).map((r) => [r.attachmentId, r]),
-  );
 }
 
 export class AttachmentFetchError extends Error {
@@ -191,5 +202,6 @@ export async function attachmentBlob(
       nextAttemptAt: 0,
     });
   });
+  notifyTransfers();
   return blobOf({ bytes, mimeType: attachment.fields.mimeType });
 }

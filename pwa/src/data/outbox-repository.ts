@@ -1,18 +1,12 @@
 // The Outbox as people see it: entries waiting to be sent, and rejected ones their author fixes
 // (resubmits with corrected values) or discards (after confirming, with undo). Nothing here
-// removes an entry without the person asking for it.
+// removes an entry without the person asking for it. The transitions themselves (and the record's
+// pending marks they keep) are outbox-transitions.ts.
 import { validateFields, type CollectionName } from '@fuselight/shared';
-import { v7 as uuidv7 } from 'uuid';
-import {
-  TOMBSTONE,
-  getDefaultDb,
-  newStoredRecord,
-  type FuselightDb,
-  type OutboxEntry,
-  type StoredRecord,
-} from './db';
+import { getDefaultDb, type FuselightDb, type OutboxEntry } from './db';
 import { notifyDataChange } from './data-events';
 import { tickDeviceClock } from './device-clock';
+import { discardRejected, resubmitRejected, restoreDiscarded } from './outbox-transitions';
 import { RecordValidationError, type EditContext } from './records-repository';
 
 export interface OutboxCounts {
@@ -24,16 +18,6 @@ export interface OutboxCounts {
 /** What a discard took away, so that it can be undone. */
 export interface DiscardReceipt {
   entry: OutboxEntry;
-}
-
-function hasOwn(object: object, key: string): boolean {
-  return Object.prototype.hasOwnProperty.call(object, key);
-}
-
-function entryFieldNames(entry: OutboxEntry): string[] {
-  const names = Object.keys(entry.fields);
-  if (entry.deleted !== undefined) names.push(TOMBSTONE);
-  return names;
 }
 
 export class OutboxRepository {
@@ -66,91 +50,19 @@ export class OutboxRepository {
    * entry still changes). A record made here that never reached the server goes with it.
    */
   async discard(changeId: string): Promise<DiscardReceipt> {
-    const db = this.db;
-    const receipt = await db.transaction('rw', [db.records, db.outbox], async () => {
-      const entry = await db.outbox.get(changeId);
-      if (!entry) throw new Error('This Outbox entry is no longer there');
-      if (entry.state !== 'rejected') {
-        throw new Error(
-          'Only an edit the server refused can be discarded; this one is still waiting to be sent',
-        );
-      }
-      await db.outbox.delete(changeId);
-      const key = [entry.collection, entry.recordId] as unknown as string;
-      const record = await db.records.get(key);
-      if (record) {
-        const others = await db.outbox
-          .where('[collection+recordId]')
-          .equals([entry.collection, entry.recordId])
-          .toArray();
-        const stillHeld = new Set(others.flatMap(entryFieldNames));
-        const fields = { ...record.fields };
-        const serverFields = { ...record.serverFields };
-        const pending = new Set(record.pendingFields);
-        let deleted = record.deleted;
-        for (const name of entryFieldNames(entry)) {
-          if (stillHeld.has(name)) continue;
-          if (name === TOMBSTONE) {
-            deleted = serverFields[TOMBSTONE] === true;
-          } else if (hasOwn(serverFields, name)) {
-            fields[name] = serverFields[name];
-          } else {
-            delete fields[name];
-          }
-          delete serverFields[name];
-          pending.delete(name);
-        }
-        if (record.version === 0 && others.length === 0) {
-          await db.records.delete(key);
-        } else {
-          const next: StoredRecord = {
-            ...record,
-            fields,
-            serverFields,
-            deleted,
-            pendingFields: [...pending],
-          };
-          await db.records.put(next);
-        }
-      }
-      return { entry };
-    });
+    const entry = await discardRejected(this.db, changeId);
     notifyDataChange({
-      collections: [receipt.entry.collection],
-      recordIds: [receipt.entry.recordId],
+      collections: [entry.collection],
+      recordIds: [entry.recordId],
       outbox: true,
     });
-    return receipt;
+    return { entry };
   }
 
   /** Undoes a discard: the entry is back, and its values are on the record again. */
   async undoDiscard(receipt: DiscardReceipt): Promise<void> {
-    const db = this.db;
     const { entry } = receipt;
-    await db.transaction('rw', [db.records, db.outbox], async () => {
-      await db.outbox.put(entry);
-      const key = [entry.collection, entry.recordId] as unknown as string;
-      const record: StoredRecord =
-        (await db.records.get(key)) ??
-        newStoredRecord(entry.collection, entry.recordId, entry.updatedAt);
-      const fields = { ...record.fields };
-      const serverFields = { ...record.serverFields };
-      const pending = new Set(record.pendingFields);
-      for (const [name, value] of Object.entries(entry.fields)) {
-        if (!pending.has(name) && hasOwn(record.fields, name))
-          serverFields[name] = record.fields[name];
-        pending.add(name);
-        fields[name] = value;
-      }
-      let deleted = record.deleted;
-      if (entry.deleted !== undefined) {
-        if (!pending.has(TOMBSTONE)) serverFields[TOMBSTONE] = record.deleted;
-        pending.add(TOMBSTONE);
-        deleted = entry.deleted;
-      }
-      const next = { ...record, fields, serverFields, deleted, pendingFields: [...pending] };
-      await db.records.put(next);
-    });
+    await restoreDiscarded(this.db, entry);
     notifyDataChange({
       collections: [entry.collection],
       recordIds: [entry.recordId],
@@ -174,53 +86,15 @@ export class OutboxRepository {
     const fields = { ...existing.fields, ...corrections };
     const validation = validateFields(collection, fields);
     if (!validation.ok) throw new RecordValidationError(collection, validation.errors);
-    const newId = uuidv7();
-    await db.transaction('rw', [db.records, db.outbox, db.meta], async () => {
-      const entry = await db.outbox.get(changeId);
-      if (!entry || entry.state !== 'rejected') {
-        throw new Error('Only an edit the server refused can be fixed and sent again');
-      }
+    const newId = await db.transaction('rw', [db.records, db.outbox, db.meta], async () => {
       const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
-      const seqNow = Number((await db.meta.get('outboxSeq'))?.value ?? 0);
-      const last = await db.outbox.orderBy('seq').last();
-      const seq = Math.max(seqNow, last?.seq ?? 0) + 1;
-      await db.meta.put({ key: 'outboxSeq', value: seq });
-      await db.outbox.delete(changeId);
-      const replacement: OutboxEntry = {
-        ...entry,
-        changeId: newId,
-        seq,
-        hlc,
+      return resubmitRejected(db, changeId, {
         fields: validation.fields,
+        hlc,
         authorId: ctx.authorId,
         deviceId: ctx.deviceId,
-        updatedAt: ctx.nowMs,
-        state: 'pending',
-        error: null,
-        attempts: 0,
-      };
-      await db.outbox.add(replacement);
-      const key = [entry.collection, entry.recordId] as unknown as string;
-      const record = await db.records.get(key);
-      if (record) {
-        const pending = new Set(record.pendingFields);
-        const serverFields = { ...record.serverFields };
-        const nextFields = { ...record.fields };
-        for (const [name, value] of Object.entries(validation.fields)) {
-          if (!pending.has(name) && hasOwn(record.fields, name))
-            serverFields[name] = record.fields[name];
-          pending.add(name);
-          nextFields[name] = value;
-        }
-        const next = {
-          ...record,
-          fields: nextFields,
-          serverFields,
-          pendingFields: [...pending],
-          updatedAt: ctx.nowMs,
-        };
-        await db.records.put(next);
-      }
+        nowMs: ctx.nowMs,
+      });
     });
     notifyDataChange({ collections: [collection], recordIds: [existing.recordId], outbox: true });
     return newId;

@@ -1,6 +1,7 @@
 // Every local edit goes through here: it is validated with the shared schemas, then the record,
 // its Outbox entry and the device clock are written in ONE Dexie transaction, so an edit is never
-// on screen without its entry (sync-protocol.md guarantee 5). The patient search reads the
+// on screen without its entry (sync-protocol.md guarantee 5); the entry and the record's pending
+// marks are written by outbox-transitions.ts. The patient search reads the
 // database's in-memory patient directory, which follows every committed write by itself.
 import {
   jsonEqual,
@@ -13,16 +14,15 @@ import {
 } from '@fuselight/shared';
 import { v7 as uuidv7 } from 'uuid';
 import {
-  TOMBSTONE,
   collectionRange,
   getDefaultDb,
   newStoredRecord,
   type FuselightDb,
-  type OutboxEntry,
   type StoredRecord,
 } from './db';
 import { notifyDataChange } from './data-events';
 import { tickDeviceClock } from './device-clock';
+import { recordLocalEdit } from './outbox-transitions';
 import { searchWords } from './patient-terms';
 
 /** Who made an edit, on which tablet, and when (the caller's clock, so tests can control it). */
@@ -81,57 +81,8 @@ interface Edit {
   deleted?: boolean;
 }
 
-const SEQ_KEY = 'outboxSeq';
-
-async function nextSeq(db: FuselightDb): Promise<number> {
-  const current = Number((await db.meta.get(SEQ_KEY))?.value ?? 0);
-  // The index is unique; a counter lost to a bug must never collide with an existing entry.
-  const last = await db.outbox.orderBy('seq').last();
-  const next = Math.max(current, last?.seq ?? 0) + 1;
-  await db.meta.put({ key: SEQ_KEY, value: next });
-  return next;
-}
-
 function hasOwn(object: object, key: string): boolean {
   return Object.prototype.hasOwnProperty.call(object, key);
-}
-
-/**
- * Applies an edit to the stored record: changed fields become pending, and the value the server
- * held for a field is remembered the first time it becomes pending.
- */
-function applyEditToRecord(
-  record: StoredRecord,
-  changed: Record<string, unknown>,
-  deleted: boolean | undefined,
-  nowMs: number,
-): StoredRecord {
-  const pending = new Set(record.pendingFields);
-  const serverFields = { ...record.serverFields };
-  const fields = { ...record.fields };
-  for (const [field, value] of Object.entries(changed)) {
-    if (!pending.has(field)) {
-      if (hasOwn(record.fields, field)) serverFields[field] = record.fields[field];
-      pending.add(field);
-    }
-    fields[field] = value;
-  }
-  let nextDeleted = record.deleted;
-  if (deleted !== undefined) {
-    if (!pending.has(TOMBSTONE)) {
-      serverFields[TOMBSTONE] = record.deleted;
-      pending.add(TOMBSTONE);
-    }
-    nextDeleted = deleted;
-  }
-  return {
-    ...record,
-    fields,
-    deleted: nextDeleted,
-    pendingFields: [...pending],
-    serverFields,
-    updatedAt: nowMs,
-  };
 }
 
 export class RecordsRepository {
@@ -272,50 +223,17 @@ export class RecordsRepository {
       if (!creating && Object.keys(changed).length === 0 && deleted === undefined) return false;
 
       const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
-      const record = applyEditToRecord(base, changed, deleted, ctx.nowMs);
-      await db.records.put(record);
-
-      const latest = await db.outbox
-        .where('[collection+recordId]')
-        .equals([collection, id])
-        .sortBy('seq')
-        .then((entries) => entries.at(-1));
-      const canCoalesce =
-        latest !== undefined &&
-        latest.state === 'pending' &&
-        latest.attempts === 0 &&
-        latest.authorId === ctx.authorId &&
-        latest.deviceId === ctx.deviceId &&
-        latest.baseVersion === base.version;
-      if (canCoalesce) {
-        const merged: OutboxEntry = {
-          ...latest,
-          fields: { ...latest.fields, ...changed },
-          hlc,
-          updatedAt: ctx.nowMs,
-        };
-        if (deleted !== undefined) merged.deleted = deleted;
-        await db.outbox.put(merged);
-      } else {
-        const entry: OutboxEntry = {
-          changeId: uuidv7(),
-          seq: await nextSeq(db),
-          collection,
-          recordId: id,
-          baseVersion: base.version,
-          hlc,
-          fields: changed,
-          authorId: ctx.authorId,
-          deviceId: ctx.deviceId,
-          createdAt: ctx.nowMs,
-          updatedAt: ctx.nowMs,
-          state: 'pending',
-          error: null,
-          attempts: 0,
-        };
-        if (deleted !== undefined) entry.deleted = deleted;
-        await db.outbox.add(entry);
-      }
+      await recordLocalEdit(db, {
+        collection,
+        id,
+        base,
+        changed,
+        deleted,
+        hlc,
+        authorId: ctx.authorId,
+        deviceId: ctx.deviceId,
+        nowMs: ctx.nowMs,
+      });
       return true;
     });
     if (written) notifyDataChange({ collections: [collection], recordIds: [id], outbox: true });

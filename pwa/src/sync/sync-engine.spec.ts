@@ -149,6 +149,32 @@ describe('the sync schedule', () => {
     expect(fetch).toHaveBeenCalledTimes(2);
   });
 
+  it('runs the after-sync work after each sync tried online, never offline, one at a time, its failures its own', async () => {
+    let release: () => void = () => undefined;
+    const gate = new Promise<void>((resolve) => (release = resolve));
+    let runs = 0;
+    const afterSync = vi.fn(async () => {
+      runs += 1;
+      if (runs === 1) await gate;
+      throw new Error('upload failed');
+    });
+    const { engine, setOnline } = makeEngine({ afterSync, pullAs: () => null });
+    setOnline(false);
+    expect(await engine.syncOnce()).toEqual({ kind: 'offline' });
+    expect(afterSync).not.toHaveBeenCalled();
+    setOnline(true);
+    expect((await engine.syncOnce()).kind).toBe('synced');
+    expect(afterSync).toHaveBeenCalledTimes(1);
+    // Two more syncs while the first run is under way: one more run after it, not two at once.
+    await engine.syncOnce();
+    await engine.syncOnce();
+    expect(afterSync).toHaveBeenCalledTimes(1);
+    release();
+    await engine.afterSyncSettled();
+    expect(afterSync).toHaveBeenCalledTimes(2);
+    expect(engine.snapshot()).toMatchObject({ phase: 'idle', error: null });
+  });
+
   it('sends a push with the protocol envelope, the author’s token and the entry as a change', async () => {
     const { engine, fetch, edit, db } = makeEngine();
     const id = await edit();

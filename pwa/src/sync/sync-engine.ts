@@ -3,52 +3,41 @@
 // off exponentially with jitter. Nothing here ever deletes an Outbox entry except on the
 // server's acknowledgement: a 401 asks the author to sign in again, a 426/409 stops and says
 // which side must be updated, a 5xx or a lost network waits and tries again.
+//
+// The engine is the public face; its parts can be read one at a time:
+// - sync-schedule.ts: when a sync runs (timers, back-off, online/offline, "Sync now" joining);
+// - sync-transport.ts: requests, time-outs and the words of a failure;
+// - push-batches.ts: sending the Outbox in batches, each under its author's session;
+// - pull-pages.ts: receiving pages after the cursor, with the full re-pull bookkeeping;
+// - data/outbox-transitions.ts and local-apply.ts: what the answers do to the database.
 import {
   MAX_CHANGES_PER_PUSH,
   MAX_PULL_LIMIT,
-  PROTOCOL_VERSION,
   SCHEMA_VERSION,
-  pushResponseSchema,
-  type CollectionName,
-  type PushChange,
-  type PushResponse,
   type PushResult,
 } from '@fuselight/shared';
 import type { FuselightDb, OutboxEntry } from '../data/db';
-import { notifyDataChange, subscribeDataChanges } from '../data/data-events';
-import { DEFAULT_BACKOFF, backoffDelay, type BackoffPolicy } from './backoff';
-import {
-  LAST_SYNCED_KEY,
-  applyPullPage,
-  applyPushResults,
-  claimForSending,
-  readCursor,
-  type PullApplyTimings,
-} from './local-apply';
-import {
-  beginFullRepull,
-  finishFullRepull,
-  noteFullRepullPage,
-  readFullRepull,
-} from './full-repull';
-import { PullPageError, isReadPullReset, readPullResponse } from './pull-page';
+import { subscribeDataChanges } from '../data/data-events';
+import type { BackoffPolicy } from './backoff';
+import { readFullRepull } from './full-repull';
+import { LAST_SYNCED_KEY } from './local-apply';
+import { PagePuller } from './pull-pages';
+import { OutboxPusher } from './push-batches';
 import type { SyncAuth } from './sync-auth';
+import { SyncSchedule, browserNetwork, type NetworkMonitor } from './sync-schedule';
 import { SyncStatusStore, type SyncStatus } from './sync-status';
+import { emptyTimings, type SyncTimings } from './sync-timings';
+import {
+  BlockedSyncError,
+  SyncTransport,
+  defaultTimers,
+  type SyncClock,
+  type SyncTimers,
+} from './sync-transport';
 
-export interface SyncClock {
-  now(): number;
-}
-
-export interface SyncTimers {
-  setTimeout(callback: () => void, ms: number): unknown;
-  clearTimeout(handle: unknown): void;
-}
-
-/** Whether the tablet has a network, and news when that changes. */
-export interface NetworkMonitor {
-  isOnline(): boolean;
-  subscribe(listener: (online: boolean) => void): () => void;
-}
+export type { NetworkMonitor } from './sync-schedule';
+export type { SyncTimings } from './sync-timings';
+export type { SyncClock, SyncTimers } from './sync-transport';
 
 export interface SyncEngineOptions {
   db: FuselightDb;
@@ -76,6 +65,13 @@ export interface SyncEngineOptions {
   yieldToUi?: () => Promise<void>;
   /** Told of every push result the server sent, with the entry it answers (tests, audit). */
   onPushResult?: (entry: OutboxEntry, result: PushResult) => void;
+  /**
+   * Work that follows every sync tried online, on the same schedule (at start, on reconnect, on
+   * the timer, on "Sync now"): the app uploads attachment files here. The sync does not wait for
+   * it; it never runs twice at once (a sync ending meanwhile has it run once more after); its
+   * failures are its own and never the sync's.
+   */
+  afterSync?: () => Promise<unknown>;
 }
 
 export type SyncOutcome =
@@ -83,53 +79,6 @@ export type SyncOutcome =
   | { kind: 'offline' }
   | { kind: 'blocked'; message: string }
   | { kind: 'failed'; message: string };
-
-/** Where the time of the last sync went (for the first-sync benchmark). */
-export interface SyncTimings extends PullApplyTimings {
-  /**
-   * Time spent waiting for answers: the wire, and the JSON parse of a pull page that had not
-   * arrived before its turn (the next page is fetched while the current one is written).
-   */
-  fetchMs: number;
-  /** JSON parsing of answers, all of it (for prefetched pages, overlapped with writing). */
-  parseMs: number;
-  /** Checking pull pages (readPullResponse). */
-  validateMs: number;
-  pushMs: number;
-  totalMs: number;
-  pages: number;
-  records: number;
-}
-
-/** A failure worth retrying later (network, timeout, 5xx, an answer that is not the protocol). */
-class TransientSyncError extends Error {}
-/** The app or the server must be updated first (426, 409): retrying now will not help. */
-class BlockedSyncError extends Error {}
-
-/** A pull request's answer: a session to renew, or the page's parsed JSON. */
-type PullAnswer = { kind: 'unauthorized' } | { kind: 'page'; json: unknown; parseMs: number };
-
-const defaultTimers: SyncTimers = {
-  setTimeout: (callback, ms) => globalThis.setTimeout(callback, ms),
-  clearTimeout: (handle) => globalThis.clearTimeout(handle as ReturnType<typeof setTimeout>),
-};
-
-function browserNetwork(): NetworkMonitor {
-  return {
-    isOnline: () => (typeof navigator === 'undefined' ? true : navigator.onLine !== false),
-    subscribe(listener) {
-      if (typeof window === 'undefined') return () => undefined;
-      const online = () => listener(true);
-      const offline = () => listener(false);
-      window.addEventListener('online', online);
-      window.addEventListener('offline', offline);
-      return () => {
-        window.removeEventListener('online', online);
-        window.removeEventListener('offline', offline);
-      };
-    },
-  };
-}
 
 /**
  * Lets the screen handle input and paint between chunks: scheduler.yield() where the browser has
@@ -153,76 +102,66 @@ export function yieldToScreen(): Promise<void> {
   return new Promise<void>((resolve) => setTimeout(resolve, 0));
 }
 
-function toChange(entry: OutboxEntry): PushChange {
-  const change: PushChange = {
-    changeId: entry.changeId,
-    collection: entry.collection,
-    recordId: entry.recordId,
-    baseVersion: entry.baseVersion,
-    hlc: entry.hlc,
-    fields: entry.fields as PushChange['fields'],
-  };
-  if (entry.deleted !== undefined) change.deleted = entry.deleted;
-  return change;
-}
-
-async function messageOf(response: Response, fallback: string): Promise<string> {
-  try {
-    const body = (await response.clone().json()) as { message?: unknown; error?: unknown };
-    const message = Array.isArray(body.message) ? body.message.join('; ') : body.message;
-    if (typeof message === 'string' && message.length > 0) return message;
-    if (typeof body.error === 'string' && body.error.length > 0) return body.error;
-  } catch {
-    // Not JSON: the fallback says what happened.
-  }
-  return fallback;
-}
-
 export class SyncEngine {
   readonly status: SyncStatusStore;
-  private readonly fetchFn: typeof fetch;
   private readonly clock: SyncClock;
-  private readonly random: () => number;
-  private readonly timers: SyncTimers;
   private readonly network: NetworkMonitor;
-  private readonly intervalMs: number;
-  private readonly backoff: BackoffPolicy;
-  private readonly pageLimit: number;
-  private readonly chunkSize: number;
-  private readonly maxChanges: number;
-  private readonly maxPushBytes: number;
-  private readonly requestTimeoutMs: number;
-  private readonly schemaVersion: number;
-  private readonly yieldToUi: () => Promise<void>;
-
-  private running: Promise<SyncOutcome> | null = null;
-  private again = false;
-  private timer: unknown = null;
-  private started = false;
-  private unsubscribers: Array<() => void> = [];
-  private failures = 0;
+  private readonly schedule: SyncSchedule<SyncOutcome>;
+  private readonly pusher: OutboxPusher;
+  private readonly puller: PagePuller;
+  private afterSyncRun: Promise<void> | null = null;
+  private afterSyncAgain = false;
   /** Timings of the last sync. */
   lastTimings: SyncTimings | null = null;
 
   constructor(private readonly options: SyncEngineOptions) {
-    this.fetchFn = options.fetch ?? ((input, init) => globalThis.fetch(input, init));
-    this.clock = options.clock ?? { now: () => Date.now() };
-    this.random = options.random ?? Math.random;
-    this.timers = options.timers ?? defaultTimers;
+    const fetchFn = options.fetch ?? ((input, init) => globalThis.fetch(input, init));
+    const clock = options.clock ?? { now: () => Date.now() };
+    const timers = options.timers ?? defaultTimers;
+    this.clock = clock;
     this.network = options.network ?? browserNetwork();
-    this.intervalMs = options.intervalMs ?? 30_000;
-    this.backoff = options.backoff ?? DEFAULT_BACKOFF;
-    this.pageLimit = Math.min(options.pageLimit ?? MAX_PULL_LIMIT, MAX_PULL_LIMIT);
-    this.chunkSize = options.chunkSize ?? 500;
-    this.maxChanges = Math.min(
-      options.maxChangesPerPush ?? MAX_CHANGES_PER_PUSH,
-      MAX_CHANGES_PER_PUSH,
-    );
-    this.maxPushBytes = options.maxPushBytes ?? 4 * 1024 * 1024;
-    this.requestTimeoutMs = options.requestTimeoutMs ?? 60_000;
-    this.schemaVersion = options.schemaVersion ?? SCHEMA_VERSION;
-    this.yieldToUi = options.yieldToUi ?? yieldToScreen;
     this.status = new SyncStatusStore({ configured: true, online: this.network.isOnline() });
+    const status = this.status;
+    const transport = new SyncTransport({
+      baseUrl: options.baseUrl,
+      fetch: fetchFn,
+      clock,
+      timers,
+      requestTimeoutMs: options.requestTimeoutMs ?? 60_000,
+    });
+    this.schedule = new SyncSchedule({
+      run: () => this.syncOnce(),
+      status,
+      clock,
+      timers,
+      network: this.network,
+      random: options.random ?? Math.random,
+      intervalMs: options.intervalMs ?? 30_000,
+      ...(options.backoff ? { backoff: options.backoff } : {}),
+    });
+    this.pusher = new OutboxPusher({
+      db: options.db,
+      auth: options.auth,
+      transport,
+      status,
+      clock,
+      schemaVersion: options.schemaVersion ?? SCHEMA_VERSION,
+      maxChanges: Math.min(options.maxChangesPerPush ?? MAX_CHANGES_PER_PUSH, MAX_CHANGES_PER_PUSH),
+      maxPushBytes: options.maxPushBytes ?? 4 * 1024 * 1024,
+      ...(options.onPushResult ? { onPushResult: options.onPushResult } : {}),
+    });
+    this.puller = new PagePuller({
+      db: options.db,
+      auth: options.auth,
+      transport,
+      status,
+      clock,
+      deviceId: options.deviceId,
+      pullAs: options.pullAs,
+      pageLimit: Math.min(options.pageLimit ?? MAX_PULL_LIMIT, MAX_PULL_LIMIT),
+      chunkSize: options.chunkSize ?? 500,
+      yieldToUi: options.yieldToUi ?? yieldToScreen,
+    });
   }
 
   get db(): FuselightDb {
@@ -231,71 +170,23 @@ export class SyncEngine {
 
   /** Starts the background schedule: a sync now, on reconnect, and every interval while online. */
   start(): void {
-    if (this.started) return;
-    this.started = true;
-    this.unsubscribers.push(
-      this.network.subscribe((online) => {
-        this.status.update({ online });
-        if (online) this.requestSync();
-        else this.clearTimer();
-      }),
-      subscribeDataChanges((change) => {
-        if (change.outbox) void this.refreshCounts();
-      }),
+    this.schedule.start(
+      [
+        subscribeDataChanges((change) => {
+          if (change.outbox) void this.refreshCounts();
+        }),
+      ],
+      () => void this.loadPersistedStatus(),
     );
-    void this.loadPersistedStatus();
-    this.requestSync();
   }
 
   stop(): void {
-    this.started = false;
-    this.clearTimer();
-    for (const unsubscribe of this.unsubscribers.splice(0)) unsubscribe();
+    this.schedule.stop();
   }
 
   /** "Sync now": runs a sync (or joins the one running and runs once more after it). */
   syncNow(): Promise<SyncOutcome> {
-    return this.runSync();
-  }
-
-  /** For the background schedule: failures are already in the status. */
-  private requestSync(): void {
-    this.runSync().catch(() => undefined);
-  }
-
-  private runSync(): Promise<SyncOutcome> {
-    if (this.running) {
-      this.again = true;
-      return this.running;
-    }
-    const run = (async () => {
-      let outcome = await this.syncOnce();
-      while (this.again) {
-        this.again = false;
-        outcome = await this.syncOnce();
-      }
-      return outcome;
-    })().finally(() => {
-      this.running = null;
-    });
-    this.running = run;
-    return run;
-  }
-
-  private clearTimer(): void {
-    if (this.timer !== null) this.timers.clearTimeout(this.timer);
-    this.timer = null;
-    this.status.update({ nextAttemptAt: null });
-  }
-
-  private schedule(delayMs: number): void {
-    this.clearTimer();
-    if (!this.started) return;
-    this.timer = this.timers.setTimeout(() => {
-      this.timer = null;
-      this.requestSync();
-    }, delayMs);
-    this.status.update({ nextAttemptAt: this.clock.now() + delayMs });
+    return this.schedule.syncNow();
   }
 
   /** Reads what the status keeps across reloads (last sync, a full re-pull) and the counts. */
@@ -328,29 +219,15 @@ export class SyncEngine {
       return { kind: 'offline' };
     }
     const started = this.clock.now();
-    const timings: SyncTimings = {
-      fetchMs: 0,
-      parseMs: 0,
-      validateMs: 0,
-      pushMs: 0,
-      readMs: 0,
-      mergeMs: 0,
-      writeMs: 0,
-      cursorMs: 0,
-      yieldMs: 0,
-      totalMs: 0,
-      pages: 0,
-      records: 0,
-    };
+    const timings = emptyTimings();
     this.status.update({ online: true });
     let outcome: SyncOutcome;
     try {
       const needsSignIn = new Set<string>();
-      const pushed = await this.push(needsSignIn, timings);
-      const pulled = await this.pull(needsSignIn, timings);
+      const pushed = await this.pusher.push(needsSignIn, timings);
+      const pulled = await this.puller.pull(needsSignIn, timings);
       const now = this.clock.now();
       await this.db.meta.put({ key: LAST_SYNCED_KEY, value: now });
-      this.failures = 0;
       const signInWords =
         needsSignIn.size > 0
           ? 'Some edits wait until their author signs in again on this tablet'
@@ -364,16 +241,15 @@ export class SyncEngine {
         consecutiveFailures: 0,
       });
       outcome = { kind: 'synced', pushed: pushed.accepted, rejected: pushed.rejected, pulled };
-      this.schedule(this.intervalMs);
+      this.schedule.succeeded();
     } catch (error) {
       const message = error instanceof Error ? error.message : String(error);
       if (error instanceof BlockedSyncError) {
         this.status.update({ phase: 'blocked', progress: null, error: message });
         outcome = { kind: 'blocked', message };
-        this.schedule(this.intervalMs);
+        this.schedule.blocked();
       } else {
-        this.failures += 1;
-        const delay = backoffDelay(this.failures, this.random, this.backoff);
+        const failures = this.schedule.failed();
         const online = this.network.isOnline();
         this.status.update({
           phase: online ? 'waiting-to-retry' : 'idle',
@@ -382,362 +258,42 @@ export class SyncEngine {
           error: online
             ? message
             : 'Offline: edits are kept on this tablet and sent when the network returns',
-          consecutiveFailures: this.failures,
+          consecutiveFailures: failures,
         });
         outcome = online ? { kind: 'failed', message } : { kind: 'offline' };
-        if (online) this.schedule(delay);
+        if (online) this.schedule.retry();
       }
     }
     timings.totalMs = this.clock.now() - started;
     this.lastTimings = timings;
+    this.runAfterSync();
     await this.refreshCounts();
     return outcome;
   }
 
-  private async request(
-    path: string,
-    init: RequestInit,
-    token: string,
-    timings: Pick<SyncTimings, 'fetchMs'>,
-  ): Promise<Response> {
-    const controller = new AbortController();
-    const timeout = this.timers.setTimeout(() => controller.abort(), this.requestTimeoutMs);
-    const started = this.clock.now();
-    try {
-      return await this.fetchFn(`${this.options.baseUrl}${path}`, {
-        ...init,
-        signal: controller.signal,
-        headers: {
-          ...(init.headers as Record<string, string> | undefined),
-          Authorization: `Bearer ${token}`,
-          Accept: 'application/json',
-        },
-      });
-    } catch (error) {
-      const why =
-        error instanceof Error && error.name === 'AbortError'
-          ? 'did not answer in time'
-          : 'could not be reached';
-      throw new TransientSyncError(
-        `The clinic server ${why}; edits are kept on this tablet and sent later`,
-      );
-    } finally {
-      this.timers.clearTimeout(timeout);
-      timings.fetchMs += this.clock.now() - started;
+  /** Starts the `afterSync` work, or has it run once more when it is running already. */
+  private runAfterSync(): void {
+    const work = this.options.afterSync;
+    if (!work) return;
+    if (this.afterSyncRun) {
+      this.afterSyncAgain = true;
+      return;
     }
-  }
-
-  private async readJson(
-    response: Response,
-    timings: Pick<SyncTimings, 'parseMs'>,
-  ): Promise<unknown> {
-    const started = this.clock.now();
-    try {
-      return await response.json();
-    } catch {
-      throw new TransientSyncError(
-        'The clinic server sent an answer this app cannot read; it will try again',
-      );
-    } finally {
-      timings.parseMs += this.clock.now() - started;
-    }
-  }
-
-  private async failureOf(response: Response, step: 'send' | 'receive'): Promise<Error> {
-    if (response.status === 426) {
-      return new BlockedSyncError(
-        await messageOf(
-          response,
-          'This app is older than the clinic server accepts: update the app. Your edits stay on this tablet.',
-        ),
-      );
-    }
-    if (response.status === 409) {
-      return new BlockedSyncError(
-        await messageOf(
-          response,
-          'The clinic server is older than this app: the server must be updated first. Your edits stay on this tablet.',
-        ),
-      );
-    }
-    const message = await messageOf(response, `the server answered ${response.status}`);
-    return new TransientSyncError(
-      step === 'send'
-        ? `Could not send edits (${response.status}): ${message}. They stay in the Outbox and are sent again later`
-        : `Could not receive updates (${response.status}): ${message}. It will try again`,
-    );
-  }
-
-  /** Pushes every sendable entry in creation order, each batch under its author's session. */
-  private async push(
-    needsSignIn: Set<string>,
-    timings: SyncTimings,
-  ): Promise<{ accepted: number; rejected: number }> {
-    const started = this.clock.now();
-    const pending = await this.db.outbox.where('state').equals('pending').sortBy('seq');
-    const total = pending.length;
-    let done = 0;
-    let accepted = 0;
-    let rejected = 0;
-    if (total === 0) return { accepted, rejected };
-    this.status.update({ phase: 'pushing', progress: { step: 'push', done, total } });
-    const tokens = new Map<string, string | null>();
-    // A record whose earlier entry cannot go now holds back its later entries too, so the server
-    // always sees one record's changes in the order they were made.
-    const heldBack = new Set<string>();
-    const queue = [...pending];
-    const recordKeyOf = (entry: OutboxEntry) => `${entry.collection}/${entry.recordId}`;
-    const tokenOf = async (authorId: string) => {
-      if (!tokens.has(authorId)) tokens.set(authorId, await this.options.auth.tokenFor(authorId));
-      return tokens.get(authorId) ?? null;
-    };
-    const holdBack = (entries: OutboxEntry[]) => {
-      for (const entry of entries) heldBack.add(recordKeyOf(entry));
-    };
-
-    while (queue.length > 0) {
-      // The next batch: consecutive sendable entries of one author.
-      let author: string | null = null;
-      const batch: OutboxEntry[] = [];
-      let bytes = 200;
-      for (let index = 0; index < queue.length;) {
-        const entry = queue[index] as OutboxEntry;
-        if (heldBack.has(recordKeyOf(entry))) {
-          queue.splice(index, 1);
-          continue;
-        }
-        if (author === null) {
-          const token = await tokenOf(entry.authorId);
-          if (token === null) {
-            needsSignIn.add(entry.authorId);
-            holdBack([entry]);
-            queue.splice(index, 1);
-            continue;
-          }
-          author = entry.authorId;
-        }
-        if (entry.authorId !== author) break;
-        const size = JSON.stringify(toChange(entry)).length + 1;
-        if (
-          batch.length > 0 &&
-          (batch.length >= this.maxChanges || bytes + size > this.maxPushBytes)
-        )
-          break;
-        batch.push(entry);
-        bytes += size;
-        queue.splice(index, 1);
-      }
-      if (author === null || batch.length === 0) break;
-      const outcome = await this.pushBatch(author, batch, await tokenOf(author), timings);
-      if (outcome.kind === 'unauthorized') {
-        needsSignIn.add(author);
-        tokens.set(author, null);
-        holdBack(batch);
-        // The author's other entries wait as well.
-        holdBack(queue.filter((entry) => entry.authorId === author));
-        continue;
-      }
-      accepted += outcome.accepted;
-      rejected += outcome.rejected;
-      done += batch.length;
-      this.status.update({ progress: { step: 'push', done, total } });
-    }
-    timings.pushMs += this.clock.now() - started;
-    return { accepted, rejected };
-  }
-
-  private async pushBatch(
-    authorId: string,
-    batch: OutboxEntry[],
-    token: string | null,
-    timings: SyncTimings,
-  ): Promise<{ kind: 'done'; accepted: number; rejected: number } | { kind: 'unauthorized' }> {
-    if (token === null) return { kind: 'unauthorized' };
-    const claimed = await claimForSending(
-      this.db,
-      batch.map((entry) => entry.changeId),
-    );
-    if (claimed.length === 0) return { kind: 'done', accepted: 0, rejected: 0 };
-    const body = JSON.stringify({
-      protocol: PROTOCOL_VERSION,
-      schemaVersion: this.schemaVersion,
-      changes: claimed.map(toChange),
+    this.afterSyncRun = (async () => {
+      do {
+        this.afterSyncAgain = false;
+        await Promise.resolve()
+          .then(work)
+          .catch(() => undefined);
+      } while (this.afterSyncAgain);
+    })().finally(() => {
+      this.afterSyncRun = null;
     });
-    const response = await this.request(
-      '/api/sync/push',
-      { method: 'POST', body, headers: { 'Content-Type': 'application/json' } },
-      token,
-      timings,
-    );
-    if (response.status === 401) {
-      await this.options.auth.onUnauthorized(authorId);
-      return { kind: 'unauthorized' };
-    }
-    if ((response.status === 413 || response.status === 400) && claimed.length > 1) {
-      // Split until the change the server cannot take is on its own.
-      const half = Math.ceil(claimed.length / 2);
-      const first = await this.pushBatch(authorId, claimed.slice(0, half), token, timings);
-      if (first.kind === 'unauthorized') return first;
-      const second = await this.pushBatch(authorId, claimed.slice(half), token, timings);
-      if (second.kind === 'unauthorized') return second;
-      return {
-        kind: 'done',
-        accepted: first.accepted + second.accepted,
-        rejected: first.rejected + second.rejected,
-      };
-    }
-    if (response.status === 413 || response.status === 400) {
-      // One change the server refuses as a request: it stays in the Outbox, marked for its
-      // author, with the server's words.
-      const entry = claimed[0] as OutboxEntry;
-      const reason =
-        response.status === 413
-          ? 'This edit is too large to send (the server takes at most 5 MB)'
-          : await messageOf(response, 'The server could not read this edit');
-      await applyPushResults(
-        this.db,
-        claimed,
-        [{ changeId: entry.changeId, status: 'rejected', error: reason }],
-        this.clock.now(),
-      );
-      notifyDataChange({
-        collections: [entry.collection],
-        recordIds: [entry.recordId],
-        outbox: true,
-      });
-      return { kind: 'done', accepted: 0, rejected: 1 };
-    }
-    if (!response.ok) throw await this.failureOf(response, 'send');
-    const json = await this.readJson(response, timings);
-    const parsed = pushResponseSchema.safeParse(json);
-    if (!parsed.success) {
-      throw new TransientSyncError(
-        'The clinic server answered a push in a form this app does not know; it will try again',
-      );
-    }
-    const answer: PushResponse = parsed.data;
-    if (this.options.onPushResult) {
-      const sent = new Map(claimed.map((entry) => [entry.changeId, entry]));
-      for (const result of answer.results) {
-        const entry = sent.get(result.changeId);
-        if (entry) this.options.onPushResult(entry, result);
-      }
-    }
-    const summary = await applyPushResults(this.db, claimed, answer.results, this.clock.now());
-    notifyDataChange({
-      collections: summary.collections,
-      recordIds: claimed.map((entry) => entry.recordId),
-      outbox: true,
-    });
-    return { kind: 'done', accepted: summary.accepted, rejected: summary.rejected };
   }
 
-  /** Pulls every page after the cursor. Returns how many records were stored. */
-  private async pull(needsSignIn: Set<string>, timings: SyncTimings): Promise<number> {
-    const userId = this.options.pullAs();
-    if (userId === null || needsSignIn.has(userId)) return 0;
-    const token = await this.options.auth.tokenFor(userId);
-    if (token === null) {
-      needsSignIn.add(userId);
-      return 0;
-    }
-    let cursor = await readCursor(this.db);
-    const freshDevice = cursor === 0 && (await this.db.records.count()) === 0;
-    let received = 0;
-    let resets = 0;
-    // The page after the one being written, asked for as soon as its cursor is known. It is only
-    // read once the page before it is stored with its cursor; if that fails, it is dropped.
-    let next: Promise<PullAnswer> | null = null;
-    this.status.update({ phase: 'pulling', progress: { step: 'pull', done: 0, total: null } });
-    for (;;) {
-      const waitStarted = this.clock.now();
-      const answer = await (next ?? this.fetchPullPage(cursor, token));
-      next = null;
-      timings.fetchMs += this.clock.now() - waitStarted;
-      timings.parseMs += answer.kind === 'page' ? answer.parseMs : 0;
-      if (answer.kind === 'unauthorized') {
-        await this.options.auth.onUnauthorized(userId);
-        needsSignIn.add(userId);
-        return received;
-      }
-      const validateStarted = this.clock.now();
-      let page;
-      try {
-        // The whole page is checked before any of it is written.
-        page = readPullResponse(answer.json);
-      } catch (error) {
-        if (!(error instanceof PullPageError)) throw error;
-        throw new TransientSyncError(
-          `The clinic server sent updates in a form this app does not know (${error.message}); it will try again`,
-        );
-      } finally {
-        timings.validateMs += this.clock.now() - validateStarted;
-      }
-      if (isReadPullReset(page)) {
-        resets += 1;
-        if (resets > 1 && cursor === 0) {
-          throw new TransientSyncError(
-            'The clinic server keeps asking this tablet to start over; it will try again',
-          );
-        }
-        cursor = 0;
-        // Keeps the Outbox and pending edits; what arrives merges as in any pull.
-        const repull = await beginFullRepull(this.db, page.reason, this.clock.now());
-        this.status.update({ fullRepull: repull });
-        continue;
-      }
-      if (page.more) {
-        next = this.fetchPullPage(page.cursor, token);
-        // Read (and its failure reported) on its turn; never an unhandled rejection meanwhile.
-        next.catch(() => undefined);
-      }
-      const applied = await applyPullPage(this.db, page.records, page.cursor, {
-        greatestStamp: page.greatestStamp,
-        deviceId: this.options.deviceId,
-        nowMs: this.clock.now(),
-        chunkSize: this.chunkSize,
-        freshDevice,
-        yieldToUi: this.yieldToUi,
-        now: () => this.clock.now(),
-        onChunk: (stored) => {
-          received += stored;
-          this.status.update({ progress: { step: 'pull', done: received, total: null } });
-        },
-      });
-      timings.readMs += applied.timings.readMs;
-      timings.mergeMs += applied.timings.mergeMs;
-      timings.writeMs += applied.timings.writeMs;
-      timings.cursorMs += applied.timings.cursorMs;
-      timings.yieldMs += applied.timings.yieldMs;
-      timings.pages += 1;
-      timings.records += page.records.length;
-      if (applied.collections.length > 0) {
-        notifyDataChange({ collections: applied.collections as CollectionName[], outbox: false });
-      }
-      cursor = page.cursor;
-      if (this.status.getSnapshot().fullRepull?.finishedAt === null) {
-        let repull = await noteFullRepullPage(this.db, page.records.length);
-        if (!page.more) repull = await finishFullRepull(this.db, this.clock.now());
-        this.status.update({ fullRepull: repull });
-      }
-      if (!page.more) return received;
-      await this.yieldToUi();
-    }
-  }
-
-  /** Asks for the page after `cursor`; a refusal other than 401 is thrown as the sync's failure. */
-  private async fetchPullPage(cursor: number, token: string): Promise<PullAnswer> {
-    const spent = { fetchMs: 0, parseMs: 0 };
-    const response = await this.request(
-      `/api/sync/pull?after=${cursor}&limit=${this.pageLimit}`,
-      { method: 'GET' },
-      token,
-      spent,
-    );
-    if (response.status === 401) return { kind: 'unauthorized' };
-    if (!response.ok) throw await this.failureOf(response, 'receive');
-    const json = await this.readJson(response, spent);
-    return { kind: 'page', json, parseMs: spent.parseMs };
+  /** Resolves when the `afterSync` work under way (if any) is done (tests, sign-out). */
+  async afterSyncSettled(): Promise<void> {
+    await this.afterSyncRun;
   }
 
   /** A copy of the status (for tests and logs). */

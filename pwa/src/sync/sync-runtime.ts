@@ -1,6 +1,10 @@
 // The app's one sync engine. The identity work configures it once the tablet is enrolled and a
 // person is signed in (configureSync), and may call it again when that changes; screens read its
-// state with useSyncStatus() and ask for a sync with requestSyncNow().
+// state with useSyncStatus() and ask for a sync with requestSyncNow(). Attachment files waiting on
+// this tablet are uploaded after every sync (on any screen, after a reconnect, after a reload):
+// after the push, so the server already has the attachment record a file belongs to.
+import { getAttachmentDb } from '../attachments/attachment-db';
+import { uploadWaitingFiles } from '../attachments/attachment-transfer';
 import { getDefaultDb } from '../data/db';
 import { SyncEngine, type SyncEngineOptions, type SyncOutcome } from './sync-engine';
 import { SyncStatusStore } from './sync-status';
@@ -15,10 +19,26 @@ export const unconfiguredStatus = new SyncStatusStore({
 
 export type AppSyncOptions = Omit<SyncEngineOptions, 'db'> & Partial<Pick<SyncEngineOptions, 'db'>>;
 
+/** Uploads the attachment files that are due, each under its author's session. */
+function attachmentUploads(options: AppSyncOptions): () => Promise<unknown> {
+  const { auth, baseUrl, clock, fetch } = options;
+  return () =>
+    uploadWaitingFiles(getAttachmentDb(), {
+      baseUrl,
+      tokenFor: (authorId) => auth.tokenFor(authorId),
+      ...(fetch ? { fetch } : {}),
+      ...(clock ? { now: () => clock.now() } : {}),
+    });
+}
+
 /** Creates (or replaces) and starts the app's sync engine. */
 export function configureSync(options: AppSyncOptions): SyncEngine {
   engine?.stop();
-  engine = new SyncEngine({ db: getDefaultDb(), ...options });
+  engine = new SyncEngine({
+    db: getDefaultDb(),
+    afterSync: attachmentUploads(options),
+    ...options,
+  });
   engine.start();
   for (const listener of [...listeners]) listener();
   return engine;
