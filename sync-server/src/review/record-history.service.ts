@@ -10,7 +10,7 @@ import { assertSiteAccess } from '../auth/scope';
 import {
   NameBook,
   addendaOf,
-  conflictsOfRecord,
+  disputesOfRecord,
   fieldValuesOf,
   isoOf,
   recordById,
@@ -31,7 +31,7 @@ export class RecordHistoryService {
     }
     assertSiteAccess(user, record.siteId);
     const values = await fieldValuesOf(em, recordId);
-    const conflicts = await conflictsOfRecord(em, recordId);
+    const conflicts = await disputesOfRecord(em, recordId);
     const addenda: AddendumRow[] =
       record.collection === 'visit'
         ? await addendaOf(em, { visitId: recordId })
