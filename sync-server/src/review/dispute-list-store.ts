@@ -73,6 +73,8 @@ const cursorSchema = z.object({
   page: z.number().int().min(2),
 });
 type DisputeCursor = z.infer<typeof cursorSchema>;
+/** The age sort's key as SORTS.age.keyText renders it. */
+const AGE_KEY = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z$/;
 
 function filtersOf(query: DisputeQuery): string {
   return JSON.stringify([
@@ -101,6 +103,11 @@ function decodeCursor(text: string, query: DisputeQuery): DisputeCursor {
     );
   }
   const cursor = result.data;
+  if (cursor.sort === 'age' && !AGE_KEY.test(cursor.key)) {
+    throw new BadRequestException(
+      'query.cursor: not a cursor this server gave out; start again without it.',
+    );
+  }
   if (
     cursor.sort !== query.sort ||
     cursor.direction !== query.direction ||
