@@ -3,6 +3,7 @@
 // filtered, sorted, paged and counted in SQL (dispute-list-store.ts); and one dispute with its record and the visit's related records
 // for context. Resolution itself goes through the conflicts module's resolve route; the
 // review_addendum trigger makes it an Addendum on a Signed visit.
+import { IsolationLevel } from '@mikro-orm/core';
 import { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable, NotFoundException } from '@nestjs/common';
 import {
@@ -58,36 +59,41 @@ export class DisputeDeskService {
   }
 
   async list(user: AuthUser, query: DisputeQuery): Promise<DisputePageView> {
-    const em = this.em.fork();
     const sites = sitesOf(user);
     const openedBy =
       query.minAgeHours === undefined
         ? null
         : new Date(this.clock.now().getTime() - query.minAgeHours * 3_600_000);
-    const page = await pageOfOpenDisputes(em, query, { siteIds: sites, openedBy });
-    const found = new Map((await disputesByIds(em, page.ids)).map((row) => [row.id, row]));
-    const items = await this.describe(
-      em,
-      page.ids
-        .map((id) => found.get(id))
-        .filter((row): row is StoredDisputeRow => row !== undefined),
-    );
-    const open = await tallyOpenDisputes(em, sites);
-    const siteNames = await sitesByIds(em, open.siteIds);
-    return {
-      items,
-      total: page.total,
-      page: page.page,
-      pageSize: query.pageSize,
-      next: page.next,
-      openTotal: open.total,
-      facets: {
-        sites: open.siteIds
-          .map((id) => ({ id, name: siteNames.get(id)?.name ?? '' }))
-          .sort((a, b) => a.name.localeCompare(b.name)),
-        sections: open.collections,
+    // One snapshot for the page and its counts, so they agree while disputes open and close.
+    return this.em.fork().transactional(
+      async (em) => {
+        const page = await pageOfOpenDisputes(em, query, { siteIds: sites, openedBy });
+        const found = new Map((await disputesByIds(em, page.ids)).map((row) => [row.id, row]));
+        const items = await this.describe(
+          em,
+          page.ids
+            .map((id) => found.get(id))
+            .filter((row): row is StoredDisputeRow => row !== undefined),
+        );
+        const open = await tallyOpenDisputes(em, sites);
+        const siteNames = await sitesByIds(em, open.siteIds);
+        return {
+          items,
+          total: page.total,
+          page: page.page,
+          pageSize: query.pageSize,
+          next: page.next,
+          openTotal: open.total,
+          facets: {
+            sites: open.siteIds
+              .map((id) => ({ id, name: siteNames.get(id)?.name ?? '' }))
+              .sort((a, b) => a.name.localeCompare(b.name)),
+            sections: open.collections,
+          },
+        };
       },
-    };
+      { isolationLevel: IsolationLevel.REPEATABLE_READ, readOnly: true },
+    );
   }
 
   async detail(user: AuthUser, id: string): Promise<DisputeDetailView> {
