@@ -1,8 +1,9 @@
 // The Disputes table of the Review desk: the open disputes of the supervisor's sites, each with
 // the patient, visit and site it belongs to and its candidates named (people, tablets, times),
-// filtered, sorted, paged and counted in SQL (dispute-list-store.ts); and one dispute with its record and the visit's related records
-// for context. Resolution itself goes through the conflicts module's resolve route; the
-// review_addendum trigger makes it an Addendum on a Signed visit.
+// filtered, sorted, paged and counted in SQL (dispute-list-store.ts); and one dispute with its
+// record and the visit's related records for context. Resolution itself goes through the
+// conflicts module's resolve route; on a Signed visit the review_addendum trigger records an
+// Addendum, which that route then publishes.
 import { IsolationLevel } from '@mikro-orm/core';
 import { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable, NotFoundException } from '@nestjs/common';
