@@ -14,7 +14,7 @@ import { ConflictsService } from './conflicts.service';
 class ConflictListQueryDto extends zodDto(conflictListQuerySchema) {}
 class ResolveConflictDto extends zodDto(resolveConflictRequestSchema) {}
 class ConflictParamsDto extends zodDto(
-  z.object({ id: z.uuid({ error: 'id must be a conflict id (a UUID)' }) }),
+  z.object({ id: z.uuid({ error: 'id must be a dispute id (a UUID)' }) }),
 ) {}
 
 @Controller('conflicts')

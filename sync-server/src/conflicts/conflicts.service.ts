@@ -1,6 +1,9 @@
-// Conflicts opened by the merge rule, for supervisors of the record's site: the list (paged by
-// conflict id, which sorts by opening time) and the resolution, which writes the chosen value as a
-// new version of the field, stamped by the supervisor, so every device gets it on its next pull.
+// Disputes (sync_conflict rows, "conflicts" on the wire) opened by the merge rule, for
+// supervisors of the record's site: the list (paged by dispute id, which sorts by opening time)
+// and the resolution, which writes the chosen value as a new version of the field, stamped by
+// the supervisor, so every device gets it on its next pull. A resolution on a Signed visit also
+// records an Addendum (the review_addendum trigger, in the same transaction); once the
+// transaction has committed, the resolution publishes it for tablets (AddendumPublisher).
 import { EntityManager } from '@mikro-orm/postgresql';
 import {
   BadRequestException,
@@ -32,13 +35,15 @@ import { lockRecords, upsertRecords } from '../records/record-store';
 import { BEGIN_VERSIONED_WRITE_SQL, VersionAllocator } from '../records/record-version';
 import { jsonParam, sqlRows } from '../records/sql';
 import type { StoredCandidate, StoredStamp } from '../records/stored-record';
+import { AddendumPublisher } from '../review/addendum-publisher.service';
 
-export const CONFLICT_PAGE_SIZE = 50;
+export const DISPUTE_PAGE_SIZE = 50;
 
 /** Device name of a resolution made from a desk session (no tablet). */
 export const DESK_DEVICE = 'server';
 
-interface ConflictRow {
+/** A dispute as the list and the resolution read it, with the field's value on the record. */
+interface DisputeListRow {
   id: string;
   collection: CollectionName;
   record_id: string;
@@ -54,11 +59,11 @@ interface ConflictRow {
   provisional: JsonValue | null;
 }
 
-const CONFLICT_COLUMNS = `c."id", c."collection", c."record_id", c."site_id", c."field", c."status", c."opened_at",
+const DISPUTE_COLUMNS = `c."id", c."collection", c."record_id", c."site_id", c."field", c."status", c."opened_at",
   c."candidates", c."resolved_at", c."resolved_by", c."resolved_value", c."note",
   case when c."field" = '${TOMBSTONE_FIELD}' then to_jsonb(r."deleted") else r."fields" -> c."field" end as "provisional"`;
 
-function itemOf(row: ConflictRow): ConflictItem {
+function itemOf(row: DisputeListRow): ConflictItem {
   const resolved = row.status === 'resolved';
   return {
     id: row.id,
@@ -100,14 +105,15 @@ export class ConflictsService {
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(CLOCK) private readonly clock: Clock,
     @Optional() @Inject(AuditService) private readonly audit: AuditService | null,
+    @Inject(AddendumPublisher) private readonly addenda: AddendumPublisher,
   ) {}
 
   async list(user: AuthUser, query: ConflictListQuery): Promise<ConflictListResponse> {
     const sites = sitesOf(user);
     const after = query.cursor ? decodeCursor(query.cursor) : null;
-    const rows = await sqlRows<ConflictRow>(
+    const rows = await sqlRows<DisputeListRow>(
       this.em.fork(),
-      `select ${CONFLICT_COLUMNS}
+      `select ${DISPUTE_COLUMNS}
          from "sync_conflict" c join "sync_record" r on r."id" = c."record_id"
         where c."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
           and (?::text is null or c."status" = ?::text)
@@ -122,14 +128,14 @@ export class ConflictsService {
         query.recordId ?? null,
         after,
         after,
-        CONFLICT_PAGE_SIZE + 1,
+        DISPUTE_PAGE_SIZE + 1,
       ],
     );
-    const page = rows.slice(0, CONFLICT_PAGE_SIZE);
+    const page = rows.slice(0, DISPUTE_PAGE_SIZE);
     const last = page.at(-1);
     return {
       items: page.map(itemOf),
-      next: rows.length > CONFLICT_PAGE_SIZE && last ? encodeCursor(last.id) : null,
+      next: rows.length > DISPUTE_PAGE_SIZE && last ? encodeCursor(last.id) : null,
     };
   }
 
@@ -139,7 +145,7 @@ export class ConflictsService {
     body: ResolveConflictRequest,
   ): Promise<ConflictItem> {
     const now = this.clock.now();
-    return this.em.fork().transactional(async (em) => {
+    const resolved = await this.em.fork().transactional(async (em) => {
       const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
       const versions = VersionAllocator.fromRow(begin);
       const [found] = await sqlRows<{ record_id: string }>(
@@ -147,24 +153,24 @@ export class ConflictsService {
         `select "record_id" from "sync_conflict" where "id" = ?`,
         [conflictId],
       );
-      if (!found) throw new NotFoundException(`No conflict ${conflictId}.`);
-      // Same lock order as a push: the record first, then its conflict.
+      if (!found) throw new NotFoundException(`No dispute has the id ${conflictId}.`);
+      // Same lock order as a push: the record first, then its dispute.
       const record = (await lockRecords(em, [found.record_id])).get(found.record_id);
-      const [row] = await sqlRows<ConflictRow>(
+      const [row] = await sqlRows<DisputeListRow>(
         em,
-        `select ${CONFLICT_COLUMNS} from "sync_conflict" c join "sync_record" r on r."id" = c."record_id"
+        `select ${DISPUTE_COLUMNS} from "sync_conflict" c join "sync_record" r on r."id" = c."record_id"
           where c."id" = ? for update of c`,
         [conflictId],
       );
-      if (!record || !row) throw new NotFoundException(`No conflict ${conflictId}.`);
+      if (!record || !row) throw new NotFoundException(`No dispute has the id ${conflictId}.`);
       if (!hasSiteAccess(user, row.site_id) || !hasSiteAccess(user, record.siteId)) {
         throw new ForbiddenException(
-          `This conflict belongs to site ${record.siteId}, which is not one of your sites.`,
+          `This dispute belongs to site ${record.siteId}, which is not one of your sites.`,
         );
       }
       if (row.status !== 'open') {
         throw new ConflictException(
-          `This conflict was already resolved at ${new Date(row.resolved_at ?? now).toISOString()}.`,
+          `This dispute was already resolved at ${new Date(row.resolved_at ?? now).toISOString()}.`,
         );
       }
       const value = validateResolution(row.collection, row.field, body.value);
@@ -221,6 +227,9 @@ export class ConflictsService {
         note: body.note,
       });
     });
+    // Committed: the Addendum a Signed visit's dispute recorded reaches tablets with the value.
+    await this.addenda.publishAfterResolution(conflictId);
+    return resolved;
   }
 }
 
@@ -233,7 +242,7 @@ function validateResolution(
   if (field === TOMBSTONE_FIELD) {
     if (typeof value !== 'boolean') {
       throw new BadRequestException(
-        'body.value: the conflict is about deletion; choose true (deleted) or false (kept).',
+        'body.value: the dispute is about deletion; choose true (deleted) or false (kept).',
       );
     }
     return value;

@@ -10,6 +10,7 @@ import { Migration20261201050100FinalLetterGuard } from './Migration202612010501
 import { Migration20261201060000AddendumRecords } from './Migration20261201060000AddendumRecords';
 import { Migration20261202000000SupersededHistory } from './Migration20261202000000SupersededHistory';
 import { Migration20261204000000VersionOffsetAndCursorEpoch } from './Migration20261204000000VersionOffsetAndCursorEpoch';
+import { Migration20261204100000OpenDisputeOrder } from './Migration20261204100000OpenDisputeOrder';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -29,5 +30,9 @@ export const migrationsList: MigrationObject[] = [
   {
     name: 'Migration20261204000000VersionOffsetAndCursorEpoch',
     class: Migration20261204000000VersionOffsetAndCursorEpoch,
+  },
+  {
+    name: 'Migration20261204100000OpenDisputeOrder',
+    class: Migration20261204100000OpenDisputeOrder,
   },
 ];

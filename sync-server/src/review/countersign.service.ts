@@ -19,7 +19,7 @@ import { CLOCK, type Clock } from '../common/clock.provider';
 import type { StoredRecord } from '../records/stored-record';
 import {
   NameBook,
-  openConflictCounts,
+  openDisputeCounts,
   patientName,
   recordById,
   recordsByIds,
@@ -55,7 +55,7 @@ export class CountersignService {
       em,
       visits.map((v) => v.siteId),
     );
-    const disputes = await openConflictCounts(em, [...visitIds, ...sections.map((s) => s.id)]);
+    const disputes = await openDisputeCounts(em, [...visitIds, ...sections.map((s) => s.id)]);
     const people = visits.flatMap((v) => [str(v.fields.clinicianId), str(v.fields.signedBy)]);
     const names = await NameBook.load(
       em,
@@ -103,7 +103,7 @@ export class CountersignService {
       await this.assertVisitInScope(em, user, visitId);
       // Open disputes anywhere in the visit must be resolved before its content is vouched for.
       const sections = await sectionsOfVisits(em, [visitId]);
-      const counts = await openConflictCounts(em, [visitId, ...sections.map((s) => s.id)]);
+      const counts = await openDisputeCounts(em, [visitId, ...sections.map((s) => s.id)]);
       const open = [...counts.values()].reduce((a, b) => a + b, 0);
       if (open > 0) {
         throw new ConflictException(

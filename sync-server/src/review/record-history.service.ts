@@ -10,7 +10,7 @@ import { assertSiteAccess } from '../auth/scope';
 import {
   NameBook,
   addendaOf,
-  conflictsOfRecord,
+  disputesOfRecord,
   fieldValuesOf,
   isoOf,
   recordById,
@@ -31,7 +31,7 @@ export class RecordHistoryService {
     }
     assertSiteAccess(user, record.siteId);
     const values = await fieldValuesOf(em, recordId);
-    const conflicts = await conflictsOfRecord(em, recordId);
+    const disputes = await disputesOfRecord(em, recordId);
     const addenda: AddendumRow[] =
       record.collection === 'visit'
         ? await addendaOf(em, { visitId: recordId })
@@ -41,10 +41,10 @@ export class RecordHistoryService {
       em,
       [
         ...values.map((v) => v.by_user),
-        ...conflicts.map((c) => c.resolved_by ?? ''),
+        ...disputes.map((c) => c.resolved_by ?? ''),
         ...addenda.map((a) => a.by_user ?? ''),
       ],
-      [...values.map((v) => v.device), ...conflicts.map((c) => c.resolved_device ?? '')],
+      [...values.map((v) => v.device), ...disputes.map((c) => c.resolved_device ?? '')],
     );
 
     const entries: HistoryEntryView[] = [];
@@ -87,7 +87,7 @@ export class RecordHistoryService {
         lastStatus = v.value;
       }
     }
-    for (const c of conflicts) {
+    for (const c of disputes) {
       entries.push({
         ...base,
         kind: 'dispute-opened',

@@ -54,6 +54,15 @@ export async function sectionsOfVisits(
   return rows.map(recordFromRow);
 }
 
+/** Signed visits of the sites whose author's visits need countersigning (or flagged so). */
+const AWAITING_COUNTERSIGN_FROM_WHERE = `from "sync_record" r
+       left join "app_user" u
+         on u."id"::text = coalesce(r."fields" ->> 'signedBy', r."fields" ->> 'clinicianId')
+      where r."collection" = 'visit' and not r."deleted"
+        and r."fields" ->> 'status' = 'signed'
+        and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
+        and (coalesce((r."fields" ->> 'needsCountersign')::boolean, false) or coalesce(u."needs_countersign", false))`;
+
 /**
  * Visits signed by a clinician whose visits need countersigning (the visit's own flag, or the
  * author's setting), in the given sites, oldest signature first.
@@ -68,20 +77,29 @@ export async function visitsAwaitingCountersign(
     `select ${RECORD_COLUMNS.split(', ')
       .map((c) => `r.${c}`)
       .join(', ')}
-       from "sync_record" r
-       left join "app_user" u
-         on u."id"::text = coalesce(r."fields" ->> 'signedBy', r."fields" ->> 'clinicianId')
-      where r."collection" = 'visit' and not r."deleted"
-        and r."fields" ->> 'status' = 'signed'
-        and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
-        and (coalesce((r."fields" ->> 'needsCountersign')::boolean, false) or coalesce(u."needs_countersign", false))
+       ${AWAITING_COUNTERSIGN_FROM_WHERE}
       order by r."fields" ->> 'signedAt' nulls last, r."id"`,
     [jsonParam(siteIds)],
   );
   return rows.map(recordFromRow);
 }
 
-export interface ConflictRow {
+/** How many visits visitsAwaitingCountersign would list, counted in SQL. */
+export async function countVisitsAwaitingCountersign(
+  em: EntityManager,
+  siteIds: readonly string[],
+): Promise<number> {
+  if (siteIds.length === 0) return 0;
+  const [row] = await sqlRows<{ n: string }>(
+    em,
+    `select count(*)::text as "n" ${AWAITING_COUNTERSIGN_FROM_WHERE}`,
+    [jsonParam(siteIds)],
+  );
+  return Number(row?.n ?? 0);
+}
+
+/** A row of sync_conflict, the table of disputes. */
+export interface StoredDisputeRow {
   id: string;
   collection: string;
   record_id: string;
@@ -98,46 +116,45 @@ export interface ConflictRow {
   note: string | null;
 }
 
-const CONFLICT_COLUMNS = `"id", "collection", "record_id", "site_id", "field", "status", "opened_at", "candidates", "resolved_at", "resolved_by", "resolved_device", "resolved_value", "resolution_version"::text as "resolution_version", "note"`;
+const DISPUTE_COLUMNS = `"id", "collection", "record_id", "site_id", "field", "status", "opened_at", "candidates", "resolved_at", "resolved_by", "resolved_device", "resolved_value", "resolution_version"::text as "resolution_version", "note"`;
 
-/** Open disputes in the given sites, oldest first (bounded: the desk pages over at most this many). */
-export async function openConflictsInSites(
+/** The disputes with the given ids (in no particular order; unknown ids are left out). */
+export async function disputesByIds(
   em: EntityManager,
-  siteIds: readonly string[],
-  limit = 5000,
-): Promise<ConflictRow[]> {
-  if (siteIds.length === 0) return [];
-  return sqlRows<ConflictRow>(
+  ids: readonly string[],
+): Promise<StoredDisputeRow[]> {
+  const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
+  if (wanted.length === 0) return [];
+  return sqlRows<StoredDisputeRow>(
     em,
-    `select ${CONFLICT_COLUMNS} from "sync_conflict"
-      where "status" = 'open' and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
-      order by "opened_at", "id" limit ?`,
-    [jsonParam(siteIds), limit],
+    `select ${DISPUTE_COLUMNS} from "sync_conflict"
+      where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
+    [jsonParam(wanted)],
   );
 }
 
-export async function conflictById(em: EntityManager, id: string): Promise<ConflictRow | null> {
+export async function disputeById(em: EntityManager, id: string): Promise<StoredDisputeRow | null> {
   if (!UUID.test(id)) return null;
-  const [row] = await sqlRows<ConflictRow>(
+  const [row] = await sqlRows<StoredDisputeRow>(
     em,
-    `select ${CONFLICT_COLUMNS} from "sync_conflict" where "id" = ?`,
+    `select ${DISPUTE_COLUMNS} from "sync_conflict" where "id" = ?`,
     [id],
   );
   return row ?? null;
 }
 
-export async function conflictsOfRecord(
+export async function disputesOfRecord(
   em: EntityManager,
   recordId: string,
-): Promise<ConflictRow[]> {
-  return sqlRows<ConflictRow>(
+): Promise<StoredDisputeRow[]> {
+  return sqlRows<StoredDisputeRow>(
     em,
-    `select ${CONFLICT_COLUMNS} from "sync_conflict" where "record_id" = ? order by "opened_at", "id"`,
+    `select ${DISPUTE_COLUMNS} from "sync_conflict" where "record_id" = ? order by "opened_at", "id"`,
     [recordId],
   );
 }
 
-export async function openConflictCounts(
+export async function openDisputeCounts(
   em: EntityManager,
   recordIds: readonly string[],
 ): Promise<Map<string, number>> {

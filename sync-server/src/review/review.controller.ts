@@ -23,17 +23,17 @@ import {
   collectionParamSchema,
   countersignVisitSchema,
   disputeIdParamSchema,
-  disputeQuerySchema,
   recordIdParamSchema,
   returnVisitSchema,
   visitIdParamSchema,
 } from './review.schemas';
-import type {
-  CountersignItemView,
-  DisputeDetailView,
-  DisputePageView,
-  RecordHistoryView,
-  VisitReviewResult,
+import {
+  disputeQuerySchema,
+  type CountersignItemView,
+  type DisputeDetailView,
+  type DisputePageView,
+  type RecordHistoryView,
+  type VisitReviewResult,
 } from '@fuselight/shared';
 
 class ReturnVisitBody extends zodDto(returnVisitSchema) {}

@@ -1,7 +1,5 @@
 import { Module } from '@nestjs/common';
-import { APP_INTERCEPTOR } from '@nestjs/core';
-import { AddendumOnResolveInterceptor } from './addendum-on-resolve.interceptor';
-import { AddendumPublisher } from './addendum-publisher.service';
+import { AddendumModule } from './addendum.module';
 import { CountersignService } from './countersign.service';
 import { DisputeDeskService } from './dispute-desk.service';
 import { RecordHistoryService } from './record-history.service';
@@ -12,16 +10,12 @@ import { ReviewController } from './review.controller';
  * record histories. Its migrations add the field-value history and the Addendum trigger on the
  * sync storage (Migration20261201040000ReviewDesk), and the link from each trigger-written
  * Addendum to the synced `addendum` record the AddendumPublisher writes for tablets
- * (Migration20261201060000AddendumRecords).
+ * (Migration20261201060000AddendumRecords), published by the resolve route once its transaction
+ * commits (AddendumModule).
  */
 @Module({
+  imports: [AddendumModule],
   controllers: [ReviewController],
-  providers: [
-    CountersignService,
-    DisputeDeskService,
-    RecordHistoryService,
-    AddendumPublisher,
-    { provide: APP_INTERCEPTOR, useClass: AddendumOnResolveInterceptor },
-  ],
+  providers: [CountersignService, DisputeDeskService, RecordHistoryService],
 })
 export class ReviewModule {}

@@ -3,7 +3,7 @@
 // record histories and their CSV; a dispute on a Signed visit becoming an Addendum.
 import request from 'supertest';
 import { v7 as uuidv7 } from 'uuid';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import {
   PROTOCOL_VERSION,
   SCHEMA_VERSION,
@@ -708,6 +708,41 @@ describe('a dispute on a Signed visit', () => {
     expect(rows).toEqual([]);
     const synced = await pullCollection(studentTablet, 'addendum');
     expect(synced.filter((r) => r.fields.conflictId === conflictId)).toEqual([]);
+  });
+
+  it('keeps the resolution when publishing its Addendum fails, and the recovery sweep publishes it', async () => {
+    const ids = await chartVisit();
+    await signVisit(ids.visitId);
+    const conflictId = await openAngleDispute(ids.anglesId, ids.anglesVersion, [40, 41]);
+    const publisher = t.app.get(AddendumPublisher);
+    const failing = vi
+      .spyOn(publisher as unknown as { publish: () => Promise<string | null> }, 'publish')
+      .mockRejectedValueOnce(new Error('connection lost while publishing'));
+    try {
+      await http()
+        .post(`/api/conflicts/${conflictId}/resolve`)
+        .set(bearer(supervisorA.accessToken))
+        .send({ value: 41, note: 'Re-measured: 41°' })
+        .expect(200);
+      expect(failing).toHaveBeenCalledTimes(1);
+    } finally {
+      failing.mockRestore();
+    }
+    expect((await pullRecord(studentTablet, ids.anglesId)).fields.objectiveHorizontalDeg).toBe(41);
+    const unpublished = await sqlRows(
+      t.em(),
+      `select 1 from "review_addendum" where "conflict_id" = ? and "addendum_record_id" is null`,
+      [conflictId],
+    );
+    expect(unpublished).toHaveLength(1);
+    const written = await publisher.publishPending();
+    expect(written).toHaveLength(1);
+    const synced = await pullCollection(studentTablet, 'addendum');
+    expect(synced.find((r) => r.id === written[0])?.fields).toMatchObject({
+      conflictId,
+      previousValue: 12,
+      newValue: 41,
+    });
   });
 
   it('publishes an Addendum the resolving request left unpublished on the next run', async () => {

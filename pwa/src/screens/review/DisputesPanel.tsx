@@ -1,5 +1,6 @@
 // The Disputes table: open disputes of the supervisor's sites, sortable by column, filtered by
-// site, patient, section and age, paged by the server; bulk resolution of trivially equal or
+// site, patient, section and age, paged by the server (each page's `next` cursor asks for the
+// one after it; the panel keeps the cursors of the pages before, for Previous page); bulk resolution of trivially equal or
 // formatting-only ones through a preview.
 import { SECTION_COLLECTIONS, collectionLabel } from '@fuselight/shared';
 import { keepPreviousData, useQuery, useQueryClient } from '@tanstack/react-query';
@@ -22,12 +23,15 @@ const SECTIONS = ['patient', 'visit', ...SECTION_COLLECTIONS] as const;
 export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; now: Date }) {
   const api = useReviewApi();
   const queryClient = useQueryClient();
-  const [query, setQuery] = useState<DisputeQuery>({
+  const [filters, setFilters] = useState<Omit<DisputeQuery, 'cursor'>>({
     sort: 'age',
     direction: 'asc',
-    page: 1,
     pageSize: 25,
   });
+  // The cursors of page 2 up to the page shown (empty on the first page).
+  const [cursors, setCursors] = useState<string[]>([]);
+  const cursor = cursors.at(-1);
+  const query: DisputeQuery = cursor ? { ...filters, cursor } : filters;
   const [bulk, setBulk] = useState<BulkProposal[] | null>(null);
   const disputes = useQuery({
     queryKey: reviewKeys.disputes(query),
@@ -35,14 +39,15 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
     placeholderData: keepPreviousData,
   });
 
-  const change = (patch: Partial<DisputeQuery>) => setQuery((q) => ({ ...q, page: 1, ...patch }));
+  const change = (patch: Partial<Omit<DisputeQuery, 'cursor'>>) => {
+    setCursors([]);
+    setFilters((q) => ({ ...q, ...patch }));
+  };
   const sortBy = (sort: DisputeSort) =>
-    setQuery((q) => ({
-      ...q,
-      page: 1,
+    change({
       sort,
-      direction: q.sort === sort && q.direction === 'asc' ? 'desc' : 'asc',
-    }));
+      direction: filters.sort === sort && filters.direction === 'asc' ? 'desc' : 'asc',
+    });
   const ariaSort = (sort: DisputeSort) =>
     query.sort === sort ? (query.direction === 'desc' ? 'descending' : 'ascending') : 'none';
 
@@ -108,7 +113,9 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
           <select
             className="fl-touch fl-input"
             value={query.section ?? ''}
-            onChange={(e) => change({ section: e.target.value || undefined })}
+            onChange={(e) =>
+              change({ section: (e.target.value || undefined) as DisputeQuery['section'] })
+            }
           >
             <option value="">All sections</option>
             {SECTIONS.map((section) => (
@@ -253,8 +260,8 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
             <button
               type="button"
               className="fl-touch fl-button fl-button--quiet"
-              disabled={query.page === 1}
-              onClick={() => setQuery((q) => ({ ...q, page: Math.max(1, (q.page ?? 1) - 1) }))}
+              disabled={cursors.length === 0}
+              onClick={() => setCursors((c) => c.slice(0, -1))}
             >
               Previous page
             </button>
@@ -264,8 +271,12 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
             <button
               type="button"
               className="fl-touch fl-button fl-button--quiet"
-              disabled={page.page >= pages}
-              onClick={() => setQuery((q) => ({ ...q, page: (q.page ?? 1) + 1 }))}
+              disabled={!page.next}
+              onClick={() => {
+                const next = page.next;
+                // While the next page loads the shown page stays; a second tap adds nothing.
+                if (next) setCursors((c) => (c.at(-1) === next ? c : [...c, next]));
+              }}
             >
               Next page
             </button>

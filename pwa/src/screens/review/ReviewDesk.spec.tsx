@@ -26,6 +26,7 @@ function textDispute(id: string, values: [string, string]): DisputeRow {
 /** A stand-in clinic server: answers the desk's routes and records what was resolved. */
 function fakeServer(items: DisputeRow[]) {
   const resolved: { id: string; body: unknown }[] = [];
+  const requests: URLSearchParams[] = [];
   const fetch = async (input: string, init?: RequestInit): Promise<Response> => {
     const url = new URL(input, 'http://clinic.test');
     const json = (body: unknown, status = 200) =>
@@ -36,12 +37,18 @@ function fakeServer(items: DisputeRow[]) {
     if (url.pathname === '/api/review/summary')
       return json({ openDisputes: items.length - resolved.length, awaitingCountersign: 0 });
     if (url.pathname === '/api/review/disputes') {
+      requests.push(url.searchParams);
       const open = items.filter((i) => !resolved.some((r) => r.id === i.id));
+      // Pages like the server: `next` is an opaque cursor (here the start of the next page).
+      const pageSize = Number(url.searchParams.get('pageSize') ?? 25);
+      const cursor = url.searchParams.get('cursor');
+      const start = cursor ? Number(cursor.replace('after:', '')) : 0;
       const page: DisputePage = {
-        items: open,
+        items: open.slice(start, start + pageSize),
         total: open.length,
-        page: 1,
-        pageSize: 25,
+        page: start / pageSize + 1,
+        pageSize,
+        next: start + pageSize < open.length ? `after:${start + pageSize}` : null,
         openTotal: open.length,
         facets: {
           sites: [{ id: open[0]?.siteId ?? 's', name: 'Harbour Street Clinic' }],
@@ -57,7 +64,7 @@ function fakeServer(items: DisputeRow[]) {
     }
     return json({ message: 'not found' }, 404);
   };
-  return { api: new ReviewApi({ fetch, accessToken: () => 'token' }), resolved };
+  return { api: new ReviewApi({ fetch, accessToken: () => 'token' }), resolved, requests };
 }
 
 function wrap(node: ReactNode) {
@@ -123,6 +130,31 @@ describe('the Review desk', () => {
         },
       },
     ]);
+  });
+
+  it('pages through the server’s cursor: Next page asks with `next`, Previous page goes back', async () => {
+    const user = userEvent.setup();
+    const many = Array.from({ length: 30 }, (_, i) => ({
+      ...angleDispute(),
+      id: `c-${String(i).padStart(2, '0')}`,
+    }));
+    const { api, requests } = fakeServer(many);
+    render(wrap(<ReviewDesk api={api} />));
+    const pager = await screen.findByRole('navigation', { name: 'Pages of disputes' });
+    expect(pager.textContent).toContain('Page 1 of 2 (30 disputes)');
+    expect(within(screen.getByRole('table')).getAllByRole('row')).toHaveLength(1 + 25);
+    const previous = within(pager).getByRole('button', { name: 'Previous page' });
+    const next = within(pager).getByRole('button', { name: 'Next page' });
+    expect((previous as HTMLButtonElement).disabled).toBe(true);
+    await user.click(next);
+    expect(await within(pager).findByText(/Page 2 of 2/)).toBeTruthy();
+    expect(within(screen.getByRole('table')).getAllByRole('row')).toHaveLength(1 + 5);
+    expect((next as HTMLButtonElement).disabled).toBe(true);
+    expect(requests.at(-1)?.get('cursor')).toBe('after:25');
+    expect(requests.every((q) => !q.has('page'))).toBe(true);
+    await user.click(previous);
+    expect(await within(pager).findByText(/Page 1 of 2/)).toBeTruthy();
+    expect(requests.at(-1)?.has('cursor')).toBe(false);
   });
 
   it('never offers a Signed visit’s dispute for bulk resolution', async () => {

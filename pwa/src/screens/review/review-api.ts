@@ -1,7 +1,7 @@
 // The Review desk's calls to the clinic server: the disputes list and resolve route of the
 // conflicts module, and the review module's countersign, return and record history routes.
 // The fetch and the access token are injected so component tests can stand in for the network.
-import type { ResolveConflictRequest } from '@fuselight/shared';
+import type { DisputeQuery, DisputeSort, ResolveConflictRequest } from '@fuselight/shared';
 
 // The desk's answers are declared once, in @fuselight/shared (schemas/review-views.ts).
 import type {
@@ -33,21 +33,10 @@ export type {
   RecordHistory,
 };
 
+/** The Disputes list's query (its schema, disputeQuerySchema, is shared with the server). */
+export type { DisputeQuery, DisputeSort };
+
 export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
-
-export type DisputeSort = 'age' | 'patient' | 'section' | 'site';
-
-export interface DisputeQuery {
-  siteId?: string;
-  patient?: string;
-  section?: string;
-  /** Only disputes open at least this many hours. */
-  minAgeHours?: number;
-  sort?: DisputeSort;
-  direction?: 'asc' | 'desc';
-  page?: number;
-  pageSize?: number;
-}
 
 export class ReviewApiError extends Error {
   constructor(
