@@ -165,14 +165,3 @@ export class ReviewApi {
     return response.text();
   }
 }
-
-/** One query-key factory for the desk (style.md, boundary 3). */
-export const reviewKeys = {
-  all: ['review'] as const,
-  summary: () => [...reviewKeys.all, 'summary'] as const,
-  disputes: (query: DisputeQuery) => [...reviewKeys.all, 'disputes', query] as const,
-  dispute: (id: string) => [...reviewKeys.all, 'dispute', id] as const,
-  countersign: () => [...reviewKeys.all, 'countersign'] as const,
-  history: (collection: string, recordId: string) =>
-    [...reviewKeys.all, 'history', collection, recordId] as const,
-};
