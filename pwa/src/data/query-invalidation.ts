@@ -49,6 +49,7 @@ function readsOf(query: Query): QueryRead[] {
 export function staleQueries(change: DataChange, queries: readonly Query[]): Query[] {
   const changed = new Set<string>(change.collections);
   const ids = change.recordIds;
+  const idSet = new Set(ids ?? []);
   const stale = new Set<Query>();
   // Each query that reads a changed collection, with the records it holds.
   const candidates: { query: Query; reads: QueryRead[]; holds: Map<string, SeenRecord> }[] = [];
@@ -68,7 +69,7 @@ export function staleQueries(change: DataChange, queries: readonly Query[]): Que
       reads.some((read) => {
         if (!read.where) return true;
         const { field, value } = read.where;
-        if (field === 'id') return ids.includes(value);
+        if (field === 'id') return idSet.has(value);
         return ids.some((id) => {
           if (holds.has(id)) return true;
           const known = seen.get(id);
