@@ -1,6 +1,6 @@
-// The identity routes of the clinic server (auth, devices, admin), over an injectable fetch so
-// tests can stand in for the network. Errors carry the server's words and its `erase` flag
-// (a revoked tablet); nothing here logs a token or a secret.
+// The identity routes of the clinic server (auth, devices, admin), over the tablet's one API
+// client (net/api-client.ts: an injectable fetch, one error wording). Errors carry the server's
+// words and its `erase` flag (a revoked tablet); nothing here logs a token or a secret.
 import {
   sessionUserSchema,
   type LoginRequest,
@@ -8,6 +8,7 @@ import {
   type SessionUser,
 } from '@fuselight/shared';
 import { z } from 'zod';
+import { ApiClient, type ApiClientOptions } from '../net/api-client';
 
 /** One site of GET /api/me/sites; checked, so a bad answer never reaches the site picker. */
 export const mySiteSchema = z.object({
@@ -28,28 +29,7 @@ export const colleagueSchema = z.object({
 });
 export type Colleague = z.infer<typeof colleagueSchema>;
 
-export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
-
-export class ApiError extends Error {
-  constructor(
-    readonly status: number,
-    message: string,
-    /** The server told this tablet to erase its data (it was revoked). */
-    readonly erase: boolean,
-    readonly body: unknown,
-  ) {
-    super(message);
-    this.name = 'ApiError';
-  }
-}
-
-/** No answer at all (offline, DNS, server down): distinct from a refusal. */
-export class NetworkError extends Error {
-  constructor(cause: unknown) {
-    super('The clinic server could not be reached; check the network and try again.', { cause });
-    this.name = 'NetworkError';
-  }
-}
+export { ApiError, NetworkError, type FetchLike } from '../net/api-client';
 
 export interface SignInResponse {
   accessToken: string;
@@ -129,26 +109,6 @@ export interface RegisteredDevice {
   qrPayload: string;
 }
 
-async function readBody(response: Response): Promise<unknown> {
-  const text = await response.text();
-  if (!text) return null;
-  try {
-    return JSON.parse(text) as unknown;
-  } catch {
-    return text;
-  }
-}
-
-function messageOf(body: unknown, status: number): string {
-  if (body && typeof body === 'object' && 'message' in body) {
-    const { message } = body as { message: unknown };
-    if (typeof message === 'string' && message) return message;
-    if (Array.isArray(message)) return message.join('; ');
-  }
-  if (status === 0 || status >= 500) return 'The clinic server had a problem; try again shortly.';
-  return `The server refused the request (${status}).`;
-}
-
 /** Turns a list from the server into an array whether it came bare or as { items }. */
 function itemsOf<T>(body: unknown): T[] {
   if (Array.isArray(body)) return body as T[];
@@ -156,50 +116,22 @@ function itemsOf<T>(body: unknown): T[] {
   return [];
 }
 
-export interface IdentityApiOptions {
-  fetch?: FetchLike;
-  /** Prefix of every route; '' means the page's own origin. */
-  baseUrl?: string;
-}
+export type IdentityApiOptions = ApiClientOptions;
 
 export class IdentityApi {
-  private readonly fetcher: FetchLike;
-  private readonly baseUrl: string;
+  private readonly client: ApiClient;
 
   constructor(options: IdentityApiOptions = {}) {
-    this.fetcher = options.fetch ?? ((input, init) => globalThis.fetch(input, init));
-    this.baseUrl = options.baseUrl ?? '';
+    this.client = new ApiClient(options);
   }
 
-  async request<T>(
+  /** One route of the clinic server; refusals and no answer are thrown in words (net/api-client). */
+  request<T>(
     method: string,
     path: string,
     options: { body?: unknown; token?: string | null } = {},
   ): Promise<T> {
-    const headers: Record<string, string> = { accept: 'application/json' };
-    if (options.body !== undefined) headers['content-type'] = 'application/json';
-    if (options.token) headers.authorization = `Bearer ${options.token}`;
-    let response: Response;
-    try {
-      response = await this.fetcher(`${this.baseUrl}${path}`, {
-        method,
-        headers,
-        body: options.body === undefined ? undefined : JSON.stringify(options.body),
-        cache: 'no-store',
-      });
-    } catch (error) {
-      throw new NetworkError(error);
-    }
-    const body = await readBody(response);
-    if (!response.ok) {
-      const erase =
-        response.status === 401 &&
-        !!body &&
-        typeof body === 'object' &&
-        (body as { erase?: unknown }).erase === true;
-      throw new ApiError(response.status, messageOf(body, response.status), erase, body);
-    }
-    return body as T;
+    return this.client.request<T>(method, path, options);
   }
 
   async signIn(request: LoginRequest): Promise<SignInResponse> {

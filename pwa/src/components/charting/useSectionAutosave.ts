@@ -10,7 +10,8 @@ import { validateFields, type SectionCollectionName } from '@fuselight/shared';
 import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { useEditContext } from '../../data';
-import { chartingKeys, useCharting } from '../../data/charting';
+import { useCharting } from '../../data/charting';
+import { refreshAfterWrite } from '../../data/query-invalidation';
 
 export type SaveStatus = 'idle' | 'waiting' | 'saving' | 'saved' | 'invalid' | 'error';
 
@@ -118,11 +119,13 @@ export function useSectionAutosave(
     };
     charting
       .saveSection(visitId, collection, fields, ctx)
-      .then(async () => {
-        // Re-read the visit before showing its stored values in place of what was typed.
-        await queryClient
-          .invalidateQueries({ queryKey: chartingKeys.visit(visitId) })
-          .catch(() => undefined);
+      .then(async (recordId) => {
+        // Re-read this Section before showing its stored values in place of what was typed.
+        await refreshAfterWrite(queryClient, {
+          collections: [collection],
+          recordIds: [recordId],
+          outbox: true,
+        }).catch(() => undefined);
         landed();
         inFlight.current -= 1;
         setSaveError(null);

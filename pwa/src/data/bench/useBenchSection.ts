@@ -3,8 +3,9 @@
 // save state the screen shows ("Saving…", "Saved", or what went wrong, keeping the entry).
 import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useRef, useState } from 'react';
-import { type VisitBundle, chartingKeys, useCharting, useVisitBundle } from '../charting';
+import { type VisitBundle, useCharting, useVisitBundle } from '../charting';
 import { useEditContext } from '../hooks/useRecordMutations';
+import { refreshAfterWrite } from '../query-invalidation';
 import { RecordValidationError } from '../records-repository';
 import { type BenchCollection, type BenchFields, benchFields } from './bench-sections';
 
@@ -54,8 +55,14 @@ export function useBenchSection<C extends BenchCollection>(
       setSaveState({ state: 'saving' });
       inFlight.current += 1;
       try {
-        await charting.saveSection(visitId, collection, changes, editContext());
-        await queryClient.invalidateQueries({ queryKey: chartingKeys.visit(visitId) });
+        const recordId = await charting.saveSection(visitId, collection, changes, editContext());
+        // Wait for this Section's query to read the record again (only it: the other Sections
+        // of the visit did not change).
+        await refreshAfterWrite(queryClient, {
+          collections: [collection],
+          recordIds: [recordId],
+          outbox: true,
+        });
         // The stored record now holds these values; drop them from the overlay unless a later
         // edit of the same field is still on its way.
         setOverlay((current) => {

@@ -1,26 +1,30 @@
-// TanStack Query hooks for the charting screens. Keys come from chartingKeys (built on the
-// data layer's queryKeys root); any committed write to a collection the charting queries read
-// refreshes them, because a visit's bundle spans many collections.
+// TanStack Query hooks for the charting screens. Keys come from queryKeys.charting; a committed
+// write re-runs only the queries that could see what it wrote (data/query-invalidation.ts). A
+// visit's bundle is put together from one query per collection it reads, so a Section's write
+// re-reads that Section alone.
 import type { SectionCollectionName } from '@fuselight/shared';
-import { keepPreviousData, queryOptions, useQuery, useQueryClient } from '@tanstack/react-query';
+import {
+  type QueryObserverResult,
+  keepPreviousData,
+  queryOptions,
+  useQueries,
+  useQuery,
+  useQueryClient,
+} from '@tanstack/react-query';
 import { useCallback, useEffect, useMemo } from 'react';
 import { useRepositories } from '../data-context';
-import { subscribeDataChanges } from '../data-events';
+import { useDataInvalidation } from '../hooks/useDataInvalidation';
 import { queryKeys } from '../query-keys';
 import type { LocalRecord, RecordsRepository } from '../records-repository';
-import { ChartingRepository } from './charting-repository';
+import {
+  ChartingRepository,
+  VISIT_PART_COLLECTIONS,
+  type VisitBundle,
+  type VisitParts,
+  assembleVisitBundle,
+} from './charting-repository';
 
-export const chartingKeys = {
-  all: () => [...queryKeys.all, 'charting'] as const,
-  today: (siteId: string, date: string) => [...chartingKeys.all(), 'today', siteId, date] as const,
-  search: (query: string) => [...chartingKeys.all(), 'search', query] as const,
-  patient: (patientId: string) => [...chartingKeys.all(), 'patient', patientId] as const,
-  patientVisits: (patientId: string) =>
-    [...chartingKeys.all(), 'patientVisits', patientId] as const,
-  patientSections: (patientId: string, collections: readonly string[]) =>
-    [...chartingKeys.all(), 'patientSections', patientId, collections.join(',')] as const,
-  visit: (visitId: string) => [...chartingKeys.all(), 'visit', visitId] as const,
-} as const;
+const chartingKeys = queryKeys.charting;
 
 const repositories = new WeakMap<RecordsRepository, ChartingRepository>();
 
@@ -37,21 +41,9 @@ export function useCharting(): ChartingRepository {
   }, [records]);
 }
 
-function useChartingInvalidation(): void {
-  const queryClient = useQueryClient();
-  useEffect(
-    () =>
-      subscribeDataChanges((change) => {
-        if (change.collections.length === 0) return;
-        void queryClient.invalidateQueries({ queryKey: chartingKeys.all() });
-      }),
-    [queryClient],
-  );
-}
-
 export function useTodaysVisits(siteId: string | null, date: string) {
   const charting = useCharting();
-  useChartingInvalidation();
+  useDataInvalidation();
   return useQuery({
     queryKey: chartingKeys.today(siteId ?? '', date),
     queryFn: () => charting.todaysVisits(siteId as string, date),
@@ -73,7 +65,7 @@ const NO_PATIENTS: LocalRecord<'patient'>[] = [];
 
 export function usePatientLookup(query: string) {
   const charting = useCharting();
-  useChartingInvalidation();
+  useDataInvalidation();
   const trimmed = query.trim();
   return useQuery({
     ...patientLookupOptions(charting, trimmed),
@@ -124,7 +116,7 @@ export function usePatientLookupWarmup(ready: boolean): void {
 
 export function usePatient(patientId: string | undefined) {
   const charting = useCharting();
-  useChartingInvalidation();
+  useDataInvalidation();
   return useQuery({
     queryKey: chartingKeys.patient(patientId ?? ''),
     queryFn: () => charting.patient(patientId as string),
@@ -135,7 +127,7 @@ export function usePatient(patientId: string | undefined) {
 
 export function usePatientVisits(patientId: string | undefined) {
   const charting = useCharting();
-  useChartingInvalidation();
+  useDataInvalidation();
   return useQuery({
     queryKey: chartingKeys.patientVisits(patientId ?? ''),
     queryFn: () => charting.patientVisits(patientId as string),
@@ -149,7 +141,7 @@ export function usePatientSections(
   collections: readonly SectionCollectionName[],
 ) {
   const charting = useCharting();
-  useChartingInvalidation();
+  useDataInvalidation();
   return useQuery({
     queryKey: chartingKeys.patientSections(patientId ?? '', collections),
     queryFn: () => charting.patientSections(patientId as string, collections),
@@ -158,13 +150,69 @@ export function usePatientSections(
   });
 }
 
-export function useVisitBundle(visitId: string | undefined) {
+/** What useVisitBundle gives a screen: the bundle once read, and how the reading went. */
+export type VisitBundleResult =
+  | { isPending: true; isError: false; data: undefined; error: null }
+  | { isPending: false; isError: true; data: VisitBundle | null | undefined; error: Error }
+  /** data is null when the tablet does not hold the visit. */
+  | { isPending: false; isError: false; data: VisitBundle | null; error: null };
+
+interface PartsResult {
+  parts: VisitParts;
+  isPending: boolean;
+  error: Error | null;
+}
+
+function combineParts(results: QueryObserverResult<LocalRecord[]>[]): PartsResult {
+  const parts: Record<string, LocalRecord[] | undefined> = {};
+  VISIT_PART_COLLECTIONS.forEach((collection, index) => {
+    parts[collection] = results[index]?.data;
+  });
+  return {
+    parts: parts as VisitParts,
+    isPending: results.some((result) => result.isPending),
+    error: results.find((result) => result.error)?.error ?? null,
+  };
+}
+
+/**
+ * A visit with its patient, Sections and Addenda, read as one query per collection (the visit,
+ * its patient, each Section collection, the Addenda), so that a write re-reads only its part.
+ */
+export function useVisitBundle(visitId: string | undefined): VisitBundleResult {
   const charting = useCharting();
-  useChartingInvalidation();
-  return useQuery({
-    queryKey: chartingKeys.visit(visitId ?? ''),
-    queryFn: () => charting.visitBundle(visitId as string),
+  useDataInvalidation();
+  const id = visitId ?? '';
+  const visit = useQuery({
+    queryKey: chartingKeys.visitRecord(id),
+    queryFn: () => charting.visit(id),
     enabled: Boolean(visitId),
     networkMode: 'always',
   });
+  const patientId = visit.data?.fields.patientId;
+  const patient = useQuery({
+    queryKey: chartingKeys.patient(patientId ?? ''),
+    queryFn: () => charting.patient(patientId as string),
+    enabled: Boolean(patientId),
+    networkMode: 'always',
+  });
+  const parts = useQueries({
+    queries: VISIT_PART_COLLECTIONS.map((collection) => ({
+      queryKey: chartingKeys.visitPart(id, collection),
+      queryFn: (): Promise<LocalRecord[]> => charting.visitPart(id, collection),
+      enabled: Boolean(visitId),
+      networkMode: 'always' as const,
+    })),
+    combine: combineParts,
+  });
+  const data = useMemo(() => {
+    if (visit.data === undefined) return undefined;
+    if (visit.data === null) return null;
+    if (patient.isPending || parts.isPending) return undefined;
+    return assembleVisitBundle(visit.data, patient.data ?? null, parts.parts);
+  }, [visit.data, patient.data, patient.isPending, parts]);
+  const error = visit.error ?? patient.error ?? parts.error;
+  if (error !== null) return { isPending: false, isError: true, data, error };
+  if (data === undefined) return { isPending: true, isError: false, data, error: null };
+  return { isPending: false, isError: false, data, error: null };
 }

@@ -10,6 +10,7 @@ import {
   type SessionUser,
 } from '@fuselight/shared';
 import { type EditContext, type LocalRecord, type RecordsRepository } from '../records-repository';
+import type { VisitPartCollection } from '../query-keys';
 import { sectionRecordId } from '../record-ids';
 import {
   addendumFromRecord,
@@ -36,6 +37,48 @@ export interface VisitBundle {
   patient: LocalRecord<'patient'> | null;
   sections: VisitSectionRecords;
   addenda: Addendum[];
+}
+
+/** The collections a visit bundle is read from besides the visit and patient. */
+export const VISIT_PART_COLLECTIONS: readonly VisitPartCollection[] = [
+  ...SECTION_COLLECTIONS,
+  'addendum',
+];
+
+/** A visit's records by collection, each list sorted by id (as `visitPart` reads them). */
+export type VisitParts = { [C in VisitPartCollection]?: LocalRecord<C>[] };
+
+/**
+ * A visit bundle from its parts: the earliest-made record of each Section collection is the
+ * Section (a second one made elsewhere offline is shown by the sync's Disputes), and the Addenda
+ * are the `addendum` records with any kept as plan records by earlier app versions.
+ */
+export function assembleVisitBundle(
+  visit: LocalRecord<'visit'>,
+  patient: LocalRecord<'patient'> | null,
+  parts: VisitParts,
+): VisitBundle {
+  const sections: VisitSectionRecords = {};
+  const addenda: Addendum[] = [];
+  for (const collection of SECTION_COLLECTIONS) {
+    const records = parts[collection] ?? [];
+    if (collection === 'plan') {
+      for (const record of [...records].sort(byIdAscending)) {
+        const legacy = parseLegacyAddendum(record as LocalRecord<'plan'>);
+        if (legacy) addenda.push(legacy);
+      }
+    }
+    // The shared rule: the Section record with the visit's derived id, else the lowest id.
+    const chosen = pickSectionRecord(
+      visit.id,
+      collection,
+      records as readonly LocalRecord<typeof collection>[],
+    );
+    if (chosen) (sections as Record<string, unknown>)[collection] = chosen;
+  }
+  for (const record of parts.addendum ?? []) addenda.push(addendumFromRecord(record));
+  addenda.sort(byWrittenAt);
+  return { visit, patient, sections, addenda };
 }
 
 /** Thrown when an edit would change a signed visit's content. */
@@ -143,29 +186,30 @@ export class ChartingRepository {
    * first (its `addendum` records, and any kept as plan records by earlier app versions).
    */
   async visitBundle(visitId: string): Promise<VisitBundle | null> {
+    const visit = await this.visit(visitId);
+    if (!visit) return null;
+    const patient = await this.patient(visit.fields.patientId);
+    const parts: VisitParts = {};
+    await Promise.all(
+      VISIT_PART_COLLECTIONS.map(async (collection) => {
+        (parts as Record<string, unknown>)[collection] = await this.visitPart(visitId, collection);
+      }),
+    );
+    return assembleVisitBundle(visit, patient, parts);
+  }
+
+  /** The visit record, or null when the tablet does not hold it or it was deleted. */
+  async visit(visitId: string): Promise<LocalRecord<'visit'> | null> {
     const visit = await this.records.get('visit', visitId);
-    if (!visit || visit.deleted) return null;
-    const patient = (await this.records.get('patient', visit.fields.patientId)) ?? null;
-    const sections: VisitSectionRecords = {};
-    const addenda: Addendum[] = [];
-    await Promise.all([
-      ...SECTION_COLLECTIONS.map(async (collection) => {
-        const records = await this.records.listByField(collection, 'visitId', visitId);
-        if (collection === 'plan') {
-          for (const record of [...records].sort(byIdAscending)) {
-            const legacy = parseLegacyAddendum(record as LocalRecord<'plan'>);
-            if (legacy) addenda.push(legacy);
-          }
-        }
-        const chosen = pickSectionRecord(visitId, collection, records);
-        if (chosen) (sections as Record<string, unknown>)[collection] = chosen;
-      }),
-      this.records.listByField('addendum', 'visitId', visitId).then((records) => {
-        for (const record of records) addenda.push(addendumFromRecord(record));
-      }),
-    ]);
-    addenda.sort(byWrittenAt);
-    return { visit, patient, sections, addenda };
+    return visit && !visit.deleted ? visit : null;
+  }
+
+  /** One collection's records placed on a visit (a Section's, or the Addenda), by id. */
+  async visitPart<C extends VisitPartCollection>(
+    visitId: string,
+    collection: C,
+  ): Promise<LocalRecord<C>[]> {
+    return (await this.records.listByField(collection, 'visitId', visitId)).sort(byIdAscending);
   }
 
   async createPatient(fields: RecordFieldsInput<'patient'>, ctx: EditContext): Promise<string> {

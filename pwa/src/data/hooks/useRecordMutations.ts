@@ -1,11 +1,12 @@
 // Saving from a screen: the edit is in IndexedDB with its Outbox entry when the mutation
-// resolves, so a screen shows "Saved" only after onSuccess.
+// resolves, so a screen shows "Saved" only after onSuccess (by then the queries that could see
+// the record have been read again).
 import type { CollectionName, RecordFieldsInput } from '@fuselight/shared';
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { useCallback } from 'react';
 import { useSession } from '../../auth/session-context';
 import { useRepositories } from '../data-context';
-import { queryKeys } from '../query-keys';
+import { refreshAfterWrite } from '../query-invalidation';
 import type { EditContext } from '../records-repository';
 
 /** Device id used for stamps in a browser that is not an enrolled tablet (development, desk). */
@@ -27,8 +28,8 @@ export function useCreateRecord<C extends CollectionName>(collection: C) {
   return useMutation({
     networkMode: 'always',
     mutationFn: (fields: RecordFieldsInput<C>) => records.create(collection, fields, editContext()),
-    onSuccess: () =>
-      queryClient.invalidateQueries({ queryKey: queryKeys.records.collection(collection) }),
+    onSuccess: (id) =>
+      refreshAfterWrite(queryClient, { collections: [collection], recordIds: [id], outbox: true }),
   });
 }
 
@@ -40,8 +41,12 @@ export function useUpdateRecord<C extends CollectionName>(collection: C) {
     networkMode: 'always',
     mutationFn: (input: { id: string; fields: Partial<RecordFieldsInput<C>> }) =>
       records.update(collection, input.id, input.fields, editContext()),
-    onSuccess: () =>
-      queryClient.invalidateQueries({ queryKey: queryKeys.records.collection(collection) }),
+    onSuccess: (_result, input) =>
+      refreshAfterWrite(queryClient, {
+        collections: [collection],
+        recordIds: [input.id],
+        outbox: true,
+      }),
   });
 }
 
@@ -52,7 +57,7 @@ export function useRemoveRecord(collection: CollectionName) {
   return useMutation({
     networkMode: 'always',
     mutationFn: (id: string) => records.remove(collection, id, editContext()),
-    onSuccess: () =>
-      queryClient.invalidateQueries({ queryKey: queryKeys.records.collection(collection) }),
+    onSuccess: (_result, id) =>
+      refreshAfterWrite(queryClient, { collections: [collection], recordIds: [id], outbox: true }),
   });
 }

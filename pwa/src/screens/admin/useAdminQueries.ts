@@ -2,12 +2,12 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { NewPerson, NewSite, PersonChange } from '../../auth/identity-api';
 import { useAuthActions } from '../../auth/useAuthActions';
-import { identityKeys } from './identity-query-keys';
+import { queryKeys } from '../../data/query-keys';
 
 export function useSites() {
   const { api, asActivePerson } = useAuthActions();
   return useQuery({
-    queryKey: identityKeys.sites(),
+    queryKey: queryKeys.identity.sites(),
     queryFn: () => asActivePerson((t) => api.listSites(t)),
   });
 }
@@ -15,7 +15,7 @@ export function useSites() {
 export function usePeople() {
   const { api, asActivePerson } = useAuthActions();
   return useQuery({
-    queryKey: identityKeys.people(),
+    queryKey: queryKeys.identity.people(),
     queryFn: () => asActivePerson((t) => api.listPeople(t)),
   });
 }
@@ -23,7 +23,7 @@ export function usePeople() {
 export function useFleet() {
   const { api, asActivePerson } = useAuthActions();
   return useQuery({
-    queryKey: identityKeys.fleet(),
+    queryKey: queryKeys.identity.fleet(),
     queryFn: () => asActivePerson((t) => api.listDevices(t)),
     refetchInterval: 30_000,
   });
@@ -34,7 +34,7 @@ export function useInvitePerson() {
   const client = useQueryClient();
   return useMutation({
     mutationFn: (person: NewPerson) => asActivePerson((t) => api.invitePerson(t, person)),
-    onSuccess: () => client.invalidateQueries({ queryKey: identityKeys.people() }),
+    onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.people() }),
   });
 }
 
@@ -44,7 +44,7 @@ export function useChangePerson() {
   return useMutation({
     mutationFn: ({ id, change }: { id: string; change: PersonChange }) =>
       asActivePerson((t) => api.changePerson(t, id, change)),
-    onSuccess: () => client.invalidateQueries({ queryKey: identityKeys.people() }),
+    onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.people() }),
   });
 }
 
@@ -53,7 +53,7 @@ export function useAddSite() {
   const client = useQueryClient();
   return useMutation({
     mutationFn: (site: NewSite) => asActivePerson((t) => api.addSite(t, site)),
-    onSuccess: () => client.invalidateQueries({ queryKey: identityKeys.sites() }),
+    onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.sites() }),
   });
 }
 
@@ -63,7 +63,7 @@ export function useChangeSite() {
   return useMutation({
     mutationFn: ({ id, change }: { id: string; change: Partial<NewSite> }) =>
       asActivePerson((t) => api.changeSite(t, id, change)),
-    onSuccess: () => client.invalidateQueries({ queryKey: identityKeys.sites() }),
+    onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.sites() }),
   });
 }
 
@@ -73,7 +73,7 @@ export function useRegisterTablet() {
   return useMutation({
     mutationFn: (tablet: { label: string; siteIds: string[] }) =>
       asActivePerson((t) => api.registerDevice(t, tablet)),
-    onSuccess: () => client.invalidateQueries({ queryKey: identityKeys.fleet() }),
+    onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.fleet() }),
   });
 }
 
@@ -85,6 +85,6 @@ export function useTabletAction() {
       asActivePerson((t) =>
         action === 'revoke' ? api.revokeDevice(t, id) : api.retireDevice(t, id),
       ),
-    onSuccess: () => client.invalidateQueries({ queryKey: identityKeys.fleet() }),
+    onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.fleet() }),
   });
 }

@@ -2,6 +2,7 @@ import { cleanup, screen, waitFor } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { CLINICAL_CAUTION } from '@fuselight/shared';
+import { queryKeys } from '../../data/query-keys';
 import { benchFixture } from './bench-harness.fixture';
 
 let bench: Awaited<ReturnType<typeof benchFixture>>;
@@ -223,5 +224,51 @@ describe('the Bench', () => {
     const summary = await screen.findByRole('heading', { name: 'Summary', level: 2 });
     expect(summary.closest('section')?.textContent).toContain(CLINICAL_CAUTION);
     expect(summary.closest('section')?.textContent).toContain('4 more right answers in a row');
+  });
+
+  describe('re-reads only the Section a stepper tap wrote', () => {
+    /** The keys of the queries that run from now on. */
+    const recordFetches = () => {
+      const fetched: string[] = [];
+      const stop = bench.queryClient.getQueryCache().subscribe((event) => {
+        if (event.type === 'updated' && event.action.type === 'fetch') {
+          fetched.push(JSON.stringify(event.query.queryKey));
+        }
+      });
+      return { fetched, stop };
+    };
+    const ownQuery = () =>
+      JSON.stringify(queryKeys.charting.visitPart(bench.visitId, 'amblyoscopeAngles'));
+
+    it('when the Section is already on the tablet', async () => {
+      const user = userEvent.setup();
+      await bench.seed('amblyoscopeAngles', { subjectiveHorizontalDeg: 4 });
+      bench.renderBench('subjective-angle');
+      const more = (await screen.findAllByRole('button', { name: /^\+1° more/ }))[0]!;
+      await waitFor(() => expect(bench.queryClient.isFetching()).toBe(0));
+      const { fetched, stop } = recordFetches();
+      await user.click(more);
+      await saved();
+      await waitFor(() => expect(bench.queryClient.isFetching()).toBe(0));
+      stop();
+      expect((await bench.section('amblyoscopeAngles'))?.subjectiveHorizontalDeg).toBe(5);
+      // Before, the tap re-read the whole visit (visit, patient, 15 Section collections and the
+      // Addenda) twice over: once for the save and once for the data listener.
+      expect(fetched).toEqual([ownQuery()]);
+    });
+
+    it('when the tap makes the Section', async () => {
+      const user = userEvent.setup();
+      bench.renderBench('subjective-angle');
+      const more = (await screen.findAllByRole('button', { name: /^\+1° more/ }))[0]!;
+      await waitFor(() => expect(bench.queryClient.isFetching()).toBe(0));
+      const { fetched, stop } = recordFetches();
+      await user.click(more);
+      await saved();
+      await waitFor(() => expect(bench.queryClient.isFetching()).toBe(0));
+      stop();
+      expect((await bench.section('amblyoscopeAngles'))?.subjectiveHorizontalDeg).toBe(1);
+      expect(fetched).toEqual([ownQuery()]);
+    });
   });
 });

@@ -45,10 +45,10 @@ export async function benchFixture() {
   const section = async (collection: CollectionName) =>
     (await records.listByField(collection, 'visitId', visitId))[0]?.fields as
       Record<string, unknown> | undefined;
+  const queryClient = new QueryClient({
+    defaultOptions: { queries: { retry: false, networkMode: 'always' } },
+  });
   const renderBench = (step: string, random?: () => number) => {
-    const queryClient = new QueryClient({
-      defaultOptions: { queries: { retry: false, networkMode: 'always' } },
-    });
     return render(
       <QueryClientProvider client={queryClient}>
         <RepositoriesProvider value={{ records, outbox }}>
@@ -72,7 +72,18 @@ export async function benchFixture() {
     db.close();
     await db.delete();
   };
-  return { db, records, outbox, patientId, visitId, seed, section, renderBench, close };
+  return {
+    db,
+    records,
+    outbox,
+    patientId,
+    visitId,
+    seed,
+    section,
+    renderBench,
+    queryClient,
+    close,
+  };
 }
 
 /** Replays a fixed list of draws in [0, 1) as the trial order's randomness. */

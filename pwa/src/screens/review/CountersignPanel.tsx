@@ -13,8 +13,9 @@ import { z } from 'zod';
 import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
 import { ageOnDate, type VisitSectionValues } from '@fuselight/shared';
 import { fieldLabel, formatFieldValue, formatInstant } from './field-format';
-import { reviewKeys, type CountersignItem } from './review-api';
+import { type CountersignItem } from './review-api';
 import { useReviewApi } from './review-context';
+import { queryKeys } from '../../data/query-keys';
 
 const HIDDEN: ReadonlySet<string> = new Set([...SECTION_PLACEMENT_KEYS]);
 
@@ -80,7 +81,7 @@ function CountersignCard({
   const [returning, setReturning] = useState(false);
   const [comment, setComment] = useState('');
   const [commentError, setCommentError] = useState<string | null>(null);
-  const done = async () => queryClient.invalidateQueries({ queryKey: reviewKeys.all });
+  const done = async () => queryClient.invalidateQueries({ queryKey: queryKeys.review.all() });
   const countersign = useMutation({
     mutationFn: () => api.countersign(item.visitId),
     onSuccess: done,
@@ -208,7 +209,7 @@ function CountersignCard({
 export function CountersignPanel({ onHistory }: { onHistory: (visitId: string) => void }) {
   const api = useReviewApi();
   const queue = useQuery({
-    queryKey: reviewKeys.countersign(),
+    queryKey: queryKeys.review.countersign(),
     queryFn: () => api.countersignQueue(),
   });
   return (

@@ -8,8 +8,9 @@ import { useState } from 'react';
 import { BulkPreview, type BulkOutcome } from './BulkPreview';
 import { bulkProposals, type BulkProposal } from './bulk-resolution';
 import { fieldLabel, formatAge, formatFieldValue } from './field-format';
-import { reviewKeys, type DisputeQuery, type DisputeSort } from './review-api';
+import { type DisputeQuery, type DisputeSort } from './review-api';
 import { useReviewApi } from './review-context';
+import { queryKeys } from '../../data/query-keys';
 
 const AGE_CHOICES = [
   { label: 'Any age', hours: undefined },
@@ -34,7 +35,7 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
   const query: DisputeQuery = cursor ? { ...filters, cursor } : filters;
   const [bulk, setBulk] = useState<BulkProposal[] | null>(null);
   const disputes = useQuery({
-    queryKey: reviewKeys.disputes(query),
+    queryKey: queryKeys.review.disputes(query),
     queryFn: () => api.disputes(query),
     placeholderData: keepPreviousData,
   });
@@ -69,7 +70,7 @@ export function DisputesPanel({ onOpen, now }: { onOpen: (id: string) => void; n
           });
         }
       }
-      await queryClient.invalidateQueries({ queryKey: reviewKeys.all });
+      await queryClient.invalidateQueries({ queryKey: queryKeys.review.all() });
       return outcomes;
     };
     return <BulkPreview proposals={bulk} onConfirm={confirm} onCancel={() => setBulk(null)} />;

@@ -5,8 +5,9 @@ import { COLLECTIONS, collectionLabel } from '@fuselight/shared';
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { fieldLabel, formatFieldValue, formatInstant } from './field-format';
-import { reviewKeys, type HistoryEntry, type HistoryKind } from './review-api';
+import { type HistoryEntry, type HistoryKind } from './review-api';
 import { useReviewApi } from './review-context';
+import { queryKeys } from '../../data/query-keys';
 
 const KIND_WORDS: Record<HistoryKind, string> = {
   value: 'Value entered',
@@ -57,7 +58,7 @@ export function HistoryPanel({
   const [recordId, setRecordId] = useState(target?.recordId ?? '');
   const [csvError, setCsvError] = useState<string | null>(null);
   const history = useQuery({
-    queryKey: reviewKeys.history(target?.collection ?? '', target?.recordId ?? ''),
+    queryKey: queryKeys.review.history(target?.collection ?? '', target?.recordId ?? ''),
     queryFn: () => api.history(target!.collection, target!.recordId),
     enabled: target !== null,
   });

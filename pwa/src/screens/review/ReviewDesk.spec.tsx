@@ -187,7 +187,7 @@ describe('the Review desk', () => {
           /The disputes could not be loaded: The clinic server could not be reached/,
         )
       ).textContent,
-    ).toContain('needs the network');
+    ).toContain('check the network and try again');
   });
 
   it('tells anyone but a supervisor that the desk is for supervisors', () => {

@@ -9,9 +9,10 @@ import { CountersignPanel } from './CountersignPanel';
 import { DisputeView } from './DisputeView';
 import { DisputesPanel } from './DisputesPanel';
 import { HistoryPanel, type HistoryTarget } from './HistoryPanel';
-import { reviewKeys, type ReviewApi } from './review-api';
+import { type ReviewApi } from './review-api';
 import { ReviewApiProvider, useReviewApi, useSessionReviewApi } from './review-context';
 import './review.css';
+import { queryKeys } from '../../data/query-keys';
 
 type Tab = 'disputes' | 'countersign' | 'history';
 
@@ -26,7 +27,10 @@ function OneDispute({
 }) {
   const api = useReviewApi();
   const queryClient = useQueryClient();
-  const dispute = useQuery({ queryKey: reviewKeys.dispute(id), queryFn: () => api.dispute(id) });
+  const dispute = useQuery({
+    queryKey: queryKeys.review.dispute(id),
+    queryFn: () => api.dispute(id),
+  });
   if (dispute.isPending) return <p role="status">Loading the dispute…</p>;
   if (dispute.isError) {
     return (
@@ -46,7 +50,7 @@ function OneDispute({
       onOpenHistory={(collection, recordId) => onHistory({ collection, recordId })}
       onResolve={async (request) => {
         await api.resolve(id, request as never);
-        await queryClient.invalidateQueries({ queryKey: reviewKeys.all });
+        await queryClient.invalidateQueries({ queryKey: queryKeys.review.all() });
         onDone(
           dispute.data.signedVisit
             ? 'Resolved as an Addendum to the Signed visit.'
@@ -63,7 +67,7 @@ export function ReviewDesk({ api }: { api: ReviewApi }) {
   const [historyTarget, setHistoryTarget] = useState<HistoryTarget | null>(null);
   const [message, setMessage] = useState<string | null>(null);
   const summary = useQuery({
-    queryKey: reviewKeys.summary(),
+    queryKey: queryKeys.review.summary(),
     queryFn: () => api.summary(),
     refetchInterval: 30_000,
   });

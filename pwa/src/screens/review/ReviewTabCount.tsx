@@ -5,8 +5,9 @@
 import { IonBadge } from '@ionic/react';
 import { useQuery } from '@tanstack/react-query';
 import { useSyncExternalStore } from 'react';
-import { reviewKeys, type ReviewApi, type ReviewSummary } from './review-api';
+import { type ReviewApi, type ReviewSummary } from './review-api';
 import { useSessionReviewApi } from './review-context';
+import { queryKeys } from '../../data/query-keys';
 
 const REFRESH_EVERY_MS = 60_000;
 
@@ -32,7 +33,7 @@ export function tabCount(
 export function ReviewTabCount({ api }: { api: ReviewApi }) {
   const online = useSyncExternalStore(subscribeOnline, () => navigator.onLine);
   const summary = useQuery({
-    queryKey: reviewKeys.summary(),
+    queryKey: queryKeys.review.summary(),
     queryFn: () => api.summary(),
     enabled: online,
     refetchInterval: online ? REFRESH_EVERY_MS : false,

@@ -1,7 +1,9 @@
 // The Review desk's calls to the clinic server: the disputes list and resolve route of the
 // conflicts module, and the review module's countersign, return and record history routes.
-// The fetch and the access token are injected so component tests can stand in for the network.
+// Sent through the tablet's one API client (net/api-client.ts), so refusals read as everywhere
+// else; the fetch and the access token are injected so component tests can stand in for the network.
 import type { DisputeQuery, DisputeSort, ResolveConflictRequest } from '@fuselight/shared';
+import { ApiClient, type FetchLike } from '../../net/api-client';
 
 // The desk's answers are declared once, in @fuselight/shared (schemas/review-views.ts).
 import type {
@@ -36,31 +38,10 @@ export type {
 /** The Disputes list's query (its schema, disputeQuerySchema, is shared with the server). */
 export type { DisputeQuery, DisputeSort };
 
-export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
+export type { FetchLike } from '../../net/api-client';
 
-export class ReviewApiError extends Error {
-  constructor(
-    readonly status: number,
-    message: string,
-  ) {
-    super(message);
-    this.name = 'ReviewApiError';
-  }
-}
-
-async function messageOf(response: Response): Promise<string> {
-  const text = await response.text();
-  try {
-    const body = JSON.parse(text) as { message?: unknown };
-    if (typeof body.message === 'string' && body.message) return body.message;
-  } catch {
-    // not JSON: fall through to the status words
-  }
-  if (response.status === 401) return 'Your session has ended; sign in again.';
-  if (response.status === 403) return 'The Review desk is for supervisors.';
-  if (response.status >= 500) return 'The clinic server had a problem; try again shortly.';
-  return `The server refused the request (${response.status}).`;
-}
+/** A refusal or no answer from the clinic server, in words (the tablet's one wording). */
+export { ApiError as ReviewApiError } from '../../net/api-client';
 
 function queryString(query: object): string {
   const params = new URLSearchParams();
@@ -79,28 +60,18 @@ export interface ReviewApiOptions {
 }
 
 export class ReviewApi {
-  constructor(private readonly options: ReviewApiOptions) {}
+  private readonly client: ApiClient;
+
+  constructor(private readonly options: ReviewApiOptions) {
+    this.client = new ApiClient({
+      fetch: options.fetch,
+      ...(options.baseUrl === undefined ? {} : { baseUrl: options.baseUrl }),
+    });
+  }
 
   private async send(method: string, path: string, body?: unknown): Promise<Response> {
     const token = await this.options.accessToken();
-    const headers: Record<string, string> = { accept: 'application/json' };
-    if (token) headers.authorization = `Bearer ${token}`;
-    if (body !== undefined) headers['content-type'] = 'application/json';
-    let response: Response;
-    try {
-      response = await this.options.fetch(`${this.options.baseUrl ?? ''}${path}`, {
-        method,
-        headers,
-        ...(body === undefined ? {} : { body: JSON.stringify(body) }),
-      });
-    } catch {
-      throw new ReviewApiError(
-        0,
-        'The clinic server could not be reached; the Review desk needs the network.',
-      );
-    }
-    if (!response.ok) throw new ReviewApiError(response.status, await messageOf(response));
-    return response;
+    return this.client.send(method, path, { token, ...(body === undefined ? {} : { body }) });
   }
 
   private async json<T>(method: string, path: string, body?: unknown): Promise<T> {
@@ -154,14 +125,3 @@ export class ReviewApi {
     return response.text();
   }
 }
-
-/** One query-key factory for the desk (style.md, boundary 3). */
-export const reviewKeys = {
-  all: ['review'] as const,
-  summary: () => [...reviewKeys.all, 'summary'] as const,
-  disputes: (query: DisputeQuery) => [...reviewKeys.all, 'disputes', query] as const,
-  dispute: (id: string) => [...reviewKeys.all, 'dispute', id] as const,
-  countersign: () => [...reviewKeys.all, 'countersign'] as const,
-  history: (collection: string, recordId: string) =>
-    [...reviewKeys.all, 'history', collection, recordId] as const,
-};

@@ -10,7 +10,7 @@ import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Confirmation, SelectField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
 import { describeFullRepull, useSyncStatus, type FullRepull } from '../../sync';
-import { identityKeys } from '../admin/identity-query-keys';
+import { queryKeys } from '../../data/query-keys';
 
 /** The tablet's full re-syncs in words: under way, the last one done, or none needed yet. */
 export function FullRepullNote(props: { repull: FullRepull | null }) {
@@ -33,7 +33,7 @@ export default function PersonScreen() {
   const sync = useSyncStatus();
   const [confirmingSignOut, setConfirmingSignOut] = useState(false);
   const waiting = useQuery({
-    queryKey: identityKeys.waitingChanges(user?.id ?? ''),
+    queryKey: queryKeys.identity.waitingChanges(user?.id ?? ''),
     queryFn: () => countOutboxEntries(user!.id),
     enabled: !!user,
   });

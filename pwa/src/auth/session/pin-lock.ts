@@ -1,0 +1,190 @@
+// The PIN lock: each person's PIN (hashed, never stored as typed), their wrong attempts, and the
+// clinic's unlock policy (how long after the server last saw someone their PIN still unlocks
+// the tablet offline, and how many wrong PINs are allowed). It keeps its own state and its own
+// rows of the auth database (the pins table and the policy setting); the session store asks it
+// whether a PIN unlocks and makes the person active itself.
+import type { AuthDb, PersonSession, PinRecord } from '../auth-db';
+import { PIN_HASH_ITERATIONS, hashPin, pinSchema, verifyPin } from '../pin-hash';
+import {
+  DEFAULT_UNLOCK_POLICY,
+  type KnownPerson,
+  type UnlockPolicy,
+  type UnlockResult,
+} from './types';
+
+const POLICY_KEY = 'unlockPolicy';
+const HOUR_MS = 3_600_000;
+
+export interface PinLockOptions {
+  /** The auth database now in use (it is opened again after an erasure). */
+  db: () => AuthDb;
+  now: () => number;
+  /** Rebuilds the session snapshot and tells its listeners. */
+  publish: () => void;
+  iterations?: number;
+}
+
+export type PinStatus = Pick<
+  KnownPerson,
+  'hasPin' | 'pinAttemptsLeft' | 'canUnlockWithPin' | 'unlockWindowEndsAt'
+>;
+
+export class PinLock {
+  private pins = new Map<string, PinRecord>();
+  private current: UnlockPolicy = DEFAULT_UNLOCK_POLICY;
+  private readonly iterations: number;
+
+  constructor(private readonly options: PinLockOptions) {
+    this.iterations = options.iterations ?? PIN_HASH_ITERATIONS;
+  }
+
+  get policy(): UnlockPolicy {
+    return this.current;
+  }
+
+  /** Reads the PINs and the policy kept on the tablet. */
+  async load(): Promise<void> {
+    const db = this.options.db();
+    const [pins, policy] = await Promise.all([db.pins.toArray(), db.settings.get(POLICY_KEY)]);
+    this.pins = new Map(pins.map((p) => [p.userId, p]));
+    if (policy?.value)
+      this.current = { ...DEFAULT_UNLOCK_POLICY, ...(policy.value as UnlockPolicy) };
+  }
+
+  hasPin(userId: string): boolean {
+    return this.pins.has(userId);
+  }
+
+  /** What the unlock screen shows of a person's PIN. */
+  status(person: PersonSession, tabletEnrolled: boolean): PinStatus {
+    const pin = this.pins.get(person.userId);
+    const attemptsLeft = pin ? Math.max(0, this.current.maxPinAttempts - pin.failedAttempts) : 0;
+    const windowEnds = person.confirmedAt + this.current.offlineUnlockHours * HOUR_MS;
+    return {
+      hasPin: !!pin,
+      pinAttemptsLeft: attemptsLeft,
+      canUnlockWithPin:
+        !!pin &&
+        attemptsLeft > 0 &&
+        this.options.now() <= windowEnds &&
+        !person.signInRequired &&
+        tabletEnrolled,
+      unlockWindowEndsAt: windowEnds,
+    };
+  }
+
+  /** Sets a person's PIN, with no wrong attempts. */
+  async setPin(userId: string, pin: string): Promise<void> {
+    pinSchema.parse(pin);
+    const hashed = await hashPin(pin, this.iterations);
+    const record: PinRecord = { userId, ...hashed, failedAttempts: 0, setAt: this.options.now() };
+    await this.options.db().pins.put(record);
+    this.pins.set(userId, record);
+  }
+
+  /**
+   * Whether `pin` unlocks the tablet for `person`; counts a wrong one, and clears the count on
+   * the right one. The caller makes the person active when it does.
+   */
+  async check(
+    userId: string,
+    person: PersonSession | undefined,
+    pin: string,
+    tabletEnrolled: boolean,
+  ): Promise<UnlockResult> {
+    const record = this.pins.get(userId);
+    const { maxPinAttempts, offlineUnlockHours } = this.current;
+    if (!tabletEnrolled) {
+      return fail(
+        'not-enrolled',
+        'PIN unlock needs an enrolled tablet; sign in with your password.',
+        0,
+      );
+    }
+    if (!person || !record) {
+      return fail('no-pin', 'No PIN is set for this person here; sign in with your password.', 0);
+    }
+    if (person.signInRequired || record.failedAttempts >= maxPinAttempts) {
+      return fail(
+        'locked-out',
+        person.signInRequired
+          ? `${person.signInRequired.reason} Sign in with your password.`
+          : `Too many wrong PINs. Sign in with your password while online.`,
+        0,
+      );
+    }
+    if (this.options.now() > person.confirmedAt + offlineUnlockHours * HOUR_MS) {
+      this.options.publish();
+      return fail(
+        'window-closed',
+        `Your PIN unlocks this tablet for ${offlineUnlockHours} hours after the clinic server last saw you. Sign in with your password while online.`,
+        maxPinAttempts - record.failedAttempts,
+      );
+    }
+    if (!(await verifyPin(pin, record))) {
+      const failedAttempts = record.failedAttempts + 1;
+      await this.options.db().pins.update(userId, { failedAttempts });
+      this.pins.set(userId, { ...record, failedAttempts });
+      this.options.publish();
+      const left = Math.max(0, maxPinAttempts - failedAttempts);
+      return left === 0
+        ? fail('locked-out', 'Too many wrong PINs. Sign in with your password while online.', 0)
+        : fail(
+            'wrong-pin',
+            `That PIN is not right. ${left} attempt${left === 1 ? '' : 's'} left.`,
+            left,
+          );
+    }
+    await this.options.db().pins.update(userId, { failedAttempts: 0 });
+    this.pins.set(userId, { ...record, failedAttempts: 0 });
+    return { ok: true };
+  }
+
+  /** Clears a person's wrong attempts in the database (inside the caller's transaction). */
+  async writeAttemptsCleared(userId: string): Promise<void> {
+    await this.options.db().pins.update(userId, { failedAttempts: 0 });
+  }
+
+  /** Clears a person's wrong attempts in memory, once the database write has committed. */
+  noteAttemptsCleared(userId: string): void {
+    const pin = this.pins.get(userId);
+    if (pin) this.pins.set(userId, { ...pin, failedAttempts: 0 });
+  }
+
+  /** Deletes a person's PIN from the database (inside the caller's transaction). */
+  async writeRemoved(userId: string): Promise<void> {
+    await this.options.db().pins.delete(userId);
+  }
+
+  /** Forgets a person's PIN in memory, once the database write has committed. */
+  noteRemoved(userId: string): void {
+    this.pins.delete(userId);
+  }
+
+  /** Takes the clinic's policy; values out of range are ignored. */
+  async setPolicy(policy: Partial<UnlockPolicy>): Promise<void> {
+    const next = { ...this.current };
+    if (policy.offlineUnlockHours !== undefined && policy.offlineUnlockHours > 0) {
+      next.offlineUnlockHours = policy.offlineUnlockHours;
+    }
+    if (policy.maxPinAttempts !== undefined && policy.maxPinAttempts >= 1) {
+      next.maxPinAttempts = Math.floor(policy.maxPinAttempts);
+    }
+    this.current = next;
+    await this.options.db().settings.put({ key: POLICY_KEY, value: next });
+  }
+
+  /** Forgets every PIN and the policy (the tablet's databases were erased). */
+  clear(): void {
+    this.pins.clear();
+    this.current = DEFAULT_UNLOCK_POLICY;
+  }
+}
+
+function fail(
+  reason: Exclude<UnlockResult, { ok: true }>['reason'],
+  message: string,
+  attemptsLeft: number,
+): UnlockResult {
+  return { ok: false, reason, message, attemptsLeft };
+}

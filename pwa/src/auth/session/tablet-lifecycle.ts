@@ -1,0 +1,139 @@
+// The enrolled tablet's standing with the clinic: enrolment, the server's word on it (its
+// unlock policy; retired: send what is left, then erase), the heartbeat, and erasure when the
+// clinic revokes or retires it (every database erased, a note kept to say why).
+import type { TabletCredentials } from '../auth-db';
+import { ApiError, NetworkError, type IdentityApi } from '../identity-api';
+import {
+  clearErasureNote,
+  writeErasureNote,
+  type ErasureCause,
+  type ErasureNote,
+} from '../tablet-erasure';
+import type { PinLock } from './pin-lock';
+import type { SessionState } from './session-state';
+import type { SessionTokens } from './tokens';
+
+export class TabletLifecycle {
+  private erasing: Promise<void> | null = null;
+
+  constructor(
+    private readonly state: SessionState,
+    private readonly api: IdentityApi,
+    private readonly pinLock: PinLock,
+    private readonly tokens: () => SessionTokens,
+    private readonly eraseDatabases: () => Promise<unknown>,
+  ) {}
+
+  async enrol(code: string): Promise<void> {
+    const answer = await this.api.enrol(code.trim().toUpperCase());
+    const tablet: TabletCredentials = {
+      key: 'tablet',
+      deviceId: answer.deviceId,
+      deviceSecret: answer.deviceSecret,
+      enrolledAt: this.state.now(),
+      state: 'active',
+    };
+    await this.state.db.tablet.put(tablet);
+    this.state.tablet = tablet;
+    this.state.erasure = null;
+    clearErasureNote();
+    this.state.publish();
+  }
+
+  /** Asks the server about this tablet; a retired tablet starts emptying its Outbox. */
+  async checkTablet(): Promise<void> {
+    if (!this.state.tablet) return;
+    const token = await this.tokens().anyToken();
+    if (!token) return;
+    try {
+      const status = await this.api.deviceStatus(token);
+      if (status.offlineUnlockHours !== undefined || status.maxPinAttempts !== undefined) {
+        await this.pinLock.setPolicy({
+          offlineUnlockHours: status.offlineUnlockHours,
+          maxPinAttempts: status.maxPinAttempts,
+        });
+        this.state.publish();
+      }
+      if (status.state === 'retired' && this.state.tablet.state !== 'retired') {
+        const tablet = { ...this.state.tablet, state: 'retired' as const };
+        await this.state.db.tablet.put(tablet);
+        this.state.tablet = tablet;
+        this.state.publish();
+      }
+    } catch (error) {
+      await this.eraseIfTold(error);
+      return;
+    }
+    if (this.state.tablet?.state === 'retired') await this.continueRetirement();
+  }
+
+  /** A retired tablet erases itself once nothing is left to send. */
+  async continueRetirement(): Promise<void> {
+    if (this.state.tablet?.state !== 'retired') return;
+    const waitingChanges = await this.state.countOutbox();
+    if (waitingChanges === 0) {
+      await this.erase(
+        'retired',
+        'This tablet was retired by the clinic. Every change had been sent, and its data was then erased.',
+      );
+      return;
+    }
+    this.state.retirement = { waitingChanges };
+    this.state.publish();
+  }
+
+  async heartbeat(appVersion: string): Promise<void> {
+    if (!this.state.tablet) return;
+    const token = await this.tokens().anyToken();
+    if (!token) return;
+    try {
+      await this.api.heartbeat(token, { appVersion, outboxSize: await this.state.countOutbox() });
+    } catch (error) {
+      if (await this.eraseIfTold(error)) return;
+      if (!(error instanceof NetworkError)) throw error;
+    }
+  }
+
+  /** True (after erasing) when `error` is the server telling a revoked tablet to erase. */
+  async eraseIfTold(error: unknown): Promise<boolean> {
+    if (!(error instanceof ApiError) || !error.erase) return false;
+    await this.erase(
+      'revoked',
+      `${error.message} This tablet was revoked by the clinic, so every record on it has been erased.`,
+    );
+    return true;
+  }
+
+  erase(cause: ErasureCause, message: string): Promise<void> {
+    this.erasing ??= this.doErase(cause, message).finally(() => {
+      this.erasing = null;
+    });
+    return this.erasing;
+  }
+
+  private async doErase(cause: ErasureCause, message: string): Promise<void> {
+    const state = this.state;
+    const note: ErasureNote = { cause, message, at: state.now() };
+    state.db.close();
+    await this.eraseDatabases();
+    writeErasureNote(note);
+    state.db = state.openDb();
+    state.tablet = null;
+    state.people.clear();
+    this.pinLock.clear();
+    state.sites.clear();
+    state.colleagues.clear();
+    state.waiting.clear();
+    state.activeUserId = null;
+    state.retirement = null;
+    state.erasure = note;
+    state.publish();
+  }
+
+  /** After reading why the tablet was erased, the person may enrol it again. */
+  dismissErasure(): void {
+    clearErasureNote();
+    this.state.erasure = null;
+    this.state.publish();
+  }
+}
