@@ -1,6 +1,33 @@
 // The server's row of a synced record, as the sync and conflicts modules read and write it.
 import type { CollectionName, FieldWriteStamp, JsonValue } from '@fuselight/shared';
 
+/**
+ * The device of a write the server makes itself (a desk resolution, a countersignature, a
+ * delivery state, the demo seed): stamps and candidates carry it where a tablet's id would be.
+ */
+export const SERVER_DEVICE = 'server';
+
+/** The select list of a StoredRecordRow from "sync_record" (version as text: it is a bigint). */
+export const RECORD_COLUMNS = recordColumnsOf(null);
+
+/**
+ * The same select list with every column qualified by `alias` (`r."id", …`): a query that orders
+ * by "version" must name the bigint column, never the text alias (sql-alias-order.spec.ts).
+ */
+export function recordColumnsOf(alias: string | null): string {
+  const q = alias === null ? '' : `${alias}.`;
+  return [
+    `${q}"id"`,
+    `${q}"collection"`,
+    `${q}"site_id"`,
+    `${q}"version"::text as "version"`,
+    `${q}"deleted"`,
+    `${q}"fields"`,
+    `${q}"stamps"`,
+    `${q}"created_at"`,
+  ].join(', ');
+}
+
 /** A field stamp as stored: the wire stamp plus when the server accepted the write. */
 export interface StoredStamp extends FieldWriteStamp {
   /** ISO time the server accepted the write. */

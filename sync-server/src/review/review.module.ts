@@ -1,5 +1,6 @@
 import { Module } from '@nestjs/common';
 import { APP_INTERCEPTOR } from '@nestjs/core';
+import { RecordsModule } from '../records/records.module';
 import { AddendumOnResolveInterceptor } from './addendum-on-resolve.interceptor';
 import { AddendumPublisher } from './addendum-publisher.service';
 import { CountersignService } from './countersign.service';
@@ -15,6 +16,7 @@ import { ReviewController } from './review.controller';
  * (Migration20261201060000AddendumRecords).
  */
 @Module({
+  imports: [RecordsModule],
   controllers: [ReviewController],
   providers: [
     CountersignService,

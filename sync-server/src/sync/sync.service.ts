@@ -35,19 +35,8 @@ import type { AuthUser } from '../auth/auth-user';
 import { canReadClinical, sitesOf } from '../auth/scope';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { parseWith } from '../common/zod-validation.pipe';
-import {
-  appendCandidates,
-  insertConflicts,
-  lockRecords,
-  openConflictsOf,
-  upsertRecords,
-} from '../records/record-store';
-import {
-  BEGIN_VERSIONED_WRITE_SQL,
-  CURSOR_EPOCH,
-  SAFE_VERSION_BOUND_SQL,
-  VersionAllocator,
-} from '../records/record-version';
+import { RecordStore } from '../records/record-store';
+import { CURSOR_EPOCH, SAFE_VERSION_BOUND_SQL, VersionAllocator } from '../records/record-version';
 import { jsonParam, sqlRows } from '../records/sql';
 import { recordFromRow, wireStamps, type StoredRecordRow } from '../records/stored-record';
 import { firstResults, storeResults, type ChangeLogEntry } from './change-log';
@@ -85,6 +74,7 @@ export class SyncService {
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(IDS) private readonly ids: IdGenerator,
     @Inject(AuditService) private readonly audit: AuditService,
+    @Inject(RecordStore) private readonly store: RecordStore,
   ) {}
 
   async push(user: AuthUser, body: unknown): Promise<PushResponse> {
@@ -118,8 +108,7 @@ export class SyncService {
       mark = at;
     };
 
-    const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
-    const baseVersion = VersionAllocator.fromRow(begin).base;
+    const baseVersion = (await this.store.beginVersionedWrite(em)).base;
     const changeIds = [...new Set(changes.map((c) => c.changeId as string))];
     const claimant = { userId: user.userId, deviceId: user.deviceId };
 
@@ -141,8 +130,8 @@ export class SyncService {
         }
       });
       const recordIds = PushPlanner.recordIdsOf(toPlan.map((c) => c.raw));
-      const records = await lockRecords(em, recordIds);
-      const open = await openConflictsOf(em, [...records.keys()]);
+      const records = await this.store.lockForUpdate(em, recordIds);
+      const open = await this.store.openConflictsOf(em, [...records.keys()]);
       lap('lockMs');
 
       const makePlanner = () =>
@@ -190,9 +179,9 @@ export class SyncService {
     now: Date,
   ): Promise<void> {
     const batch = collapsePlans(plans);
-    await upsertRecords(em, batch.records, now);
-    await insertConflicts(em, batch.newConflicts, now);
-    await appendCandidates(em, batch.joined);
+    await this.store.upsert(em, batch.records, now);
+    await this.store.insertConflicts(em, batch.newConflicts, now);
+    await this.store.appendCandidates(em, batch.joined);
   }
 
   /** The slow path: each change in its own savepoint; a value the database refuses rejects only it. */
@@ -290,7 +279,7 @@ export class SyncService {
             )
           )[0]?.held === true;
         const page = rows.slice(0, limit).map(recordFromRow);
-        const conflicts = await openConflictsOf(
+        const conflicts = await this.store.openConflictsOf(
           em,
           page.map((r) => r.id),
         );
