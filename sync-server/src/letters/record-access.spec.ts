@@ -27,15 +27,39 @@ describe('RecordAccess.writeAsServer', () => {
       );
   }
 
-  /** Two tablets set the letter's delivery state to different values from the same version. */
+  /**
+   * A final letter whose delivery state is disputed: the mailer marked it sent while a second
+   * tablet, which had not seen the first tablet's send request nor the mailer's answer, sent its
+   * own request from the version before them.
+   */
   async function disputedLetter() {
     const s = await pushLetterScenario(t);
-    const version = (await t.app.get(RecordAccess).get('letter', s.letterId))!.version;
+    const draft = (await t.app.get(RecordAccess).get('letter', s.letterId))!.version;
+    const final = await s.tablet.pushOk(
+      'letter',
+      s.letterId,
+      { status: 'final', finalisedAt: '2026-12-01T15:20:00.000Z', finalisedBy: s.tablet.person.id },
+      draft,
+    );
+    const sender = s.tablet.person.id;
+    await s.tablet.pushOk('letter', s.letterId, { deliveryState: 'queued' }, final);
+    t.clock.advance(1000);
+    await t.app.get(RecordAccess).writeAsServer(
+      'letter',
+      s.letterId,
+      { deliveryState: 'sent' },
+      {
+        actorId: sender,
+        kind: 'letter.mail_sent',
+      },
+    );
     const other = await tabletAt(t, 'orthoptist', [s.siteId]);
-    await s.tablet.pushOk('letter', s.letterId, { deliveryState: 'queued' }, version);
-    const second = await other.push('letter', s.letterId, { deliveryState: 'notSent' }, version);
-    expect(second.results[0]).toMatchObject({ conflicts: ['deliveryState'] });
-    return { s, sender: s.tablet.person.id };
+    const late = await other.push('letter', s.letterId, { deliveryState: 'queued' }, final);
+    expect(late.results[0], JSON.stringify(late.results[0])).toMatchObject({
+      conflicts: ['deliveryState'],
+    });
+    t.clock.advance(1000);
+    return { s, sender };
   }
 
   it('joins an open dispute of the field it writes as one more candidate', async () => {
@@ -43,22 +67,25 @@ describe('RecordAccess.writeAsServer', () => {
     const [before] = await disputesOf(s.letterId);
     expect(before?.candidates).toHaveLength(2);
 
-    const written = await t.app
-      .get(RecordAccess)
-      .writeAsServer('letter', s.letterId, { deliveryState: 'sent' }, {
+    const written = await t.app.get(RecordAccess).writeAsServer(
+      'letter',
+      s.letterId,
+      { deliveryState: 'failed' },
+      {
         actorId: sender,
-        kind: 'letter.sent',
-      });
+        kind: 'letter.mail_failed',
+      },
+    );
     expect(written).toBe(true);
 
     const letter = (await t.app.get(RecordAccess).get('letter', s.letterId))!;
-    expect(letter.fields.deliveryState).toBe('sent');
+    expect(letter.fields.deliveryState).toBe('failed');
     const disputes = await disputesOf(s.letterId);
     expect(disputes).toHaveLength(1);
     expect(disputes[0]).toMatchObject({ field: 'deliveryState', status: 'open' });
     expect(disputes[0]!.candidates).toHaveLength(3);
     expect(disputes[0]!.candidates[2]).toEqual({
-      value: 'sent',
+      value: 'failed',
       hlc: letter.stamps.deliveryState!.hlc,
       by: sender,
       device: SERVER_DEVICE,
@@ -69,12 +96,15 @@ describe('RecordAccess.writeAsServer', () => {
 
   it('leaves a dispute of another field as it was', async () => {
     const { s, sender } = await disputedLetter();
-    await t.app
-      .get(RecordAccess)
-      .writeAsServer('letter', s.letterId, { deliveryAttempts: 1 }, {
+    await t.app.get(RecordAccess).writeAsServer(
+      'letter',
+      s.letterId,
+      { deliveryAttempts: 1 },
+      {
         actorId: sender,
         kind: 'letter.attempted',
-      });
+      },
+    );
     const disputes = await disputesOf(s.letterId);
     expect(disputes).toHaveLength(1);
     expect(disputes[0]!.candidates).toHaveLength(2);

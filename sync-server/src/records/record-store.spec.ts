@@ -31,7 +31,9 @@ async function write(records: RecordWrite[]): Promise<void> {
   await t
     .em()
     .fork()
-    .transactional((em) => t.app.get(RecordStore).upsert(em as EntityManager, records, new Date(AT)));
+    .transactional((em) =>
+      t.app.get(RecordStore).upsert(em as EntityManager, records, new Date(AT)),
+    );
 }
 
 async function stored(id: string) {

@@ -124,7 +124,10 @@ export class ServerWriter {
   }
 
   /** Writes fields of one record in the caller's transaction; null when the record is not there. */
-  async writeFields(em: EntityManager, write: ServerFieldWrite): Promise<ServerFieldWritten | null> {
+  async writeFields(
+    em: EntityManager,
+    write: ServerFieldWrite,
+  ): Promise<ServerFieldWritten | null> {
     const versions = await this.begin(em);
     const before = (await this.store.lockForUpdate(em, [write.recordId])).get(write.recordId);
     if (!before || write.check?.(before) === false) return null;

@@ -6,7 +6,12 @@
 // field whose dispute is open joining that dispute).
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { BadRequestException, NotFoundException } from '@nestjs/common';
-import { validateFields, validateRecord, type CollectionName, type JsonValue } from '@fuselight/shared';
+import {
+  validateFields,
+  validateRecord,
+  type CollectionName,
+  type JsonValue,
+} from '@fuselight/shared';
 import type { ServerWriter } from '../records/server-writer';
 import type { StoredRecord } from '../records/stored-record';
 
