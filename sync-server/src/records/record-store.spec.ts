@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { TestApp } from '../testing/test-app';
 import { SITE_A, SITE_B, createSyncTestApp } from '../sync/testing/sync-test-kit';
-import { encodeRecordRows as encodeRecords, type RecordWrite } from './record-row.codec';
+import { encodeRecordRows, type RecordWrite } from './record-row.codec';
 import { RecordStore } from './record-store';
 import type { StoredStamp } from './stored-record';
 
@@ -144,7 +144,7 @@ describe('RecordStore.upsert', () => {
   it('shortens what the batch shares and leaves the rest whole', () => {
     const fresh = stamp(5, WRITER, AT);
     const older = stamp(2, OTHER, EARLIER);
-    const { shared, rows } = encodeRecords([
+    const { shared, rows } = encodeRecordRows([
       {
         id: 'a',
         collection: 'patient',
