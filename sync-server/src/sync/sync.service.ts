@@ -41,33 +41,16 @@ import { jsonParam, sqlRows } from '../records/sql';
 import { recordFromRow, wireStamps, type StoredRecordRow } from '../records/stored-record';
 import { firstResults, storeResults, type ChangeLogEntry } from './change-log';
 import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
-
-/** Time spent in each step of the last push, for the benchmark's breakdown. */
-export interface PushTimings {
-  envelopeMs: number;
-  beginMs: number;
-  earlierMs: number;
-  lockMs: number;
-  planMs: number;
-  writeMs: number;
-  logMs: number;
-  commitMs: number;
-}
+import {
+  PUSH_OBSERVER,
+  emptyPushTimings,
+  type PushObserver,
+  type PushTimings,
+} from './push-observer';
 
 @Injectable()
 export class SyncService {
   private readonly logger = new Logger('Sync');
-  /** Cumulative step timings (read by the benchmark). */
-  readonly timings: PushTimings = {
-    envelopeMs: 0,
-    beginMs: 0,
-    earlierMs: 0,
-    lockMs: 0,
-    planMs: 0,
-    writeMs: 0,
-    logMs: 0,
-    commitMs: 0,
-  };
 
   constructor(
     @Inject(EntityManager) private readonly em: EntityManager,
@@ -75,22 +58,25 @@ export class SyncService {
     @Inject(IDS) private readonly ids: IdGenerator,
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(RecordStore) private readonly store: RecordStore,
+    @Inject(PUSH_OBSERVER) private readonly observer: PushObserver,
   ) {}
 
   async push(user: AuthUser, body: unknown): Promise<PushResponse> {
+    const timings = emptyPushTimings();
     const received = performance.now();
     const changes = parsePushEnvelope(body);
     const now = this.clock.now();
     const parsed = performance.now();
-    this.timings.envelopeMs += parsed - received;
+    timings.envelopeMs = parsed - received;
     let committing = 0;
     const results = await this.em.fork().transactional(async (em) => {
-      this.timings.beginMs += performance.now() - parsed;
-      const out = await this.pushInTransaction(em, user, changes, now);
+      timings.beginMs = performance.now() - parsed;
+      const out = await this.pushInTransaction(em, user, changes, now, timings);
       committing = performance.now();
       return out;
     });
-    this.timings.commitMs += performance.now() - committing;
+    timings.commitMs = performance.now() - committing;
+    this.observer.pushed(timings);
     return { results, serverTime: now.toISOString() };
   }
 
@@ -99,8 +85,8 @@ export class SyncService {
     user: AuthUser,
     changes: readonly Record<string, unknown>[],
     now: Date,
+    t: PushTimings,
   ): Promise<PushResult[]> {
-    const t = this.timings;
     let mark = performance.now();
     const lap = (key: keyof PushTimings) => {
       const at = performance.now();
