@@ -7,10 +7,15 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { Injectable } from '@nestjs/common';
 import type { CollectionName, JsonValue } from '@fuselight/shared';
 import { encodeRecordRows, type RecordWrite } from './record-row.codec';
-import { BEGIN_VERSIONED_WRITE_SQL, VersionAllocator } from './record-version';
+import {
+  BEGIN_VERSIONED_WRITE_SQL,
+  SAFE_VERSION_BOUND_SQL,
+  VersionAllocator,
+} from './record-version';
 import { jsonParam, sqlRows } from './sql';
 import {
   RECORD_COLUMNS,
+  recordColumnsOf,
   recordFromRow,
   type StoredCandidate,
   type StoredRecord,
@@ -108,6 +113,63 @@ export class RecordStore {
       [jsonParam(collections), field, jsonParam(values)],
     );
     return rows.map(recordFromRow);
+  }
+
+  /**
+   * The first statement of a pull's snapshot: the version bound below which records are final
+   * (record-version.ts), the tombstone horizon, and the tablet's cursor epoch (null for a desk
+   * session or an unknown device).
+   */
+  async pullHead(
+    em: EntityManager,
+    deviceId: string | null,
+  ): Promise<{ bound: number; horizon: number; epoch: number | null }> {
+    const [head] = await sqlRows<{ bound: string; horizon: string; epoch: number | null }>(
+      em,
+      `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon",
+              (select d."pull_epoch" from "device" d where d."id" = ?::uuid) as "epoch"`,
+      [deviceId],
+    );
+    return {
+      bound: Number(head?.bound ?? 0),
+      horizon: Number(head?.horizon ?? 0),
+      epoch: head?.epoch ?? null,
+    };
+  }
+
+  /**
+   * Up to `limit` records of the sites with versions after `after` and below `bound`, in version
+   * order. Ordered and compared as numbers: "sync_record"."version" is the bigint column, never
+   * the text alias of the select list.
+   */
+  async pullPage(
+    em: EntityManager,
+    page: { after: number; bound: number; sites: readonly string[]; limit: number },
+  ): Promise<StoredRecord[]> {
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${recordColumnsOf('r')}
+         from "sync_record" r
+        where r."version" > ? and r."version" < ?
+          and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
+        order by r."version" limit ?`,
+      [page.after, page.bound, jsonParam(page.sites), page.limit],
+    );
+    return rows.map(recordFromRow);
+  }
+
+  /** Whether a committed record of the sites after `after` waits at or beyond `bound`. */
+  async heldBack(
+    em: EntityManager,
+    range: { after: number; bound: number; sites: readonly string[] },
+  ): Promise<boolean> {
+    const [row] = await sqlRows<{ held: boolean }>(
+      em,
+      `select exists (select 1 from "sync_record" where "version" >= ? and "version" > ?
+         and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)) as "held"`,
+      [range.bound, range.after, jsonParam(range.sites)],
+    );
+    return row?.held === true;
   }
 
   /** Locks the records (in id order, so concurrent batches cannot deadlock) and reads them. */

@@ -36,9 +36,9 @@ import { canReadClinical, sitesOf } from '../auth/scope';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { parseWith } from '../common/zod-validation.pipe';
 import { RecordStore } from '../records/record-store';
-import { CURSOR_EPOCH, SAFE_VERSION_BOUND_SQL, VersionAllocator } from '../records/record-version';
-import { jsonParam, sqlRows } from '../records/sql';
-import { recordFromRow, wireStamps, type StoredRecordRow } from '../records/stored-record';
+import { CURSOR_EPOCH, VersionAllocator } from '../records/record-version';
+import { sqlRows } from '../records/sql';
+import { wireStamps } from '../records/stored-record';
 import { firstResults, storeResults, type ChangeLogEntry } from './change-log';
 import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
 import {
@@ -228,43 +228,19 @@ export class SyncService {
     return this.em.fork().transactional(
       async (em): Promise<PullResponse> => {
         // The first statement fixes the snapshot; the bound and the rows come from the same one.
-        const [head] = await sqlRows<{ bound: string; horizon: string; epoch: number | null }>(
-          em,
-          `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon",
-                  (select d."pull_epoch" from "device" d where d."id" = ?::uuid) as "epoch"`,
-          [user.deviceId],
-        );
-        const bound = Number(head?.bound ?? 0);
-        const horizon = Number(head?.horizon ?? 0);
+        const head = await this.store.pullHead(em, user.deviceId);
+        const { bound, horizon } = head;
         if (after > 0 && after < horizon) return { reset: true, reason: 'horizon' };
         // A cursor handed out before CURSOR_EPOCH may have skipped records: start over once.
-        if (after > 0 && head?.epoch != null && head.epoch < CURSOR_EPOCH) {
+        if (after > 0 && head.epoch !== null && head.epoch < CURSOR_EPOCH) {
           return { reset: true, reason: 'cursor-epoch' };
         }
-        // Ordered and compared as numbers: "sync_record"."version" is the bigint column, never
-        // the text alias of the select list.
-        const rows = await sqlRows<StoredRecordRow>(
-          em,
-          `select r."id", r."collection", r."site_id", r."version"::text as "version", r."deleted", r."fields", r."stamps", r."created_at"
-             from "sync_record" r
-            where r."version" > ? and r."version" < ?
-              and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
-            order by r."version" limit ?`,
-          [after, bound, jsonParam(sites), limit + 1],
-        );
+        const rows = await this.store.pullPage(em, { after, bound, sites, limit: limit + 1 });
         // A committed change beyond the watermark (an older transaction is still open) is not
         // sent yet, but `more` tells the device to come back for it rather than think it is done.
         const more =
-          rows.length > limit ||
-          (
-            await sqlRows<{ held: boolean }>(
-              em,
-              `select exists (select 1 from "sync_record" where "version" >= ? and "version" > ?
-                 and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)) as "held"`,
-              [bound, after, jsonParam(sites)],
-            )
-          )[0]?.held === true;
-        const page = rows.slice(0, limit).map(recordFromRow);
+          rows.length > limit || (await this.store.heldBack(em, { after, bound, sites }));
+        const page = rows.slice(0, limit);
         const conflicts = await this.store.openConflictsOf(
           em,
           page.map((r) => r.id),
