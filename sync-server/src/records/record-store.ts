@@ -15,7 +15,7 @@ import {
 import { jsonParam, sqlRows } from './sql';
 import {
   RECORD_COLUMNS,
-  recordColumnsOf,
+  RECORD_COLUMNS_R,
   recordFromRow,
   type StoredCandidate,
   type StoredRecord,
@@ -148,7 +148,7 @@ export class RecordStore {
   ): Promise<StoredRecord[]> {
     const rows = await sqlRows<StoredRecordRow>(
       em,
-      `select ${recordColumnsOf('r')}
+      `select ${RECORD_COLUMNS_R}
          from "sync_record" r
         where r."version" > ? and r."version" < ?
           and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)

@@ -7,26 +7,18 @@ import type { CollectionName, FieldWriteStamp, JsonValue } from '@fuselight/shar
  */
 export const SERVER_DEVICE = 'server';
 
-/** The select list of a StoredRecordRow from "sync_record" (version as text: it is a bigint). */
-export const RECORD_COLUMNS = recordColumnsOf(null);
+/**
+ * The select list of a StoredRecordRow from "sync_record" (version as text: it is a bigint).
+ * Kept as literals (not built by a function) so the ORDER BY scan (sql-alias-order.spec.ts) sees
+ * the text alias of "version" in every query they are spliced into.
+ */
+export const RECORD_COLUMNS = `"id", "collection", "site_id", "version"::text as "version", "deleted", "fields", "stamps", "created_at"`;
 
 /**
- * The same select list with every column qualified by `alias` (`r."id", …`): a query that orders
- * by "version" must name the bigint column, never the text alias (sql-alias-order.spec.ts).
+ * The same select list with every column qualified by the alias `r` (`from "sync_record" r`): a
+ * query that orders by version must name the bigint column `r."version"`, never the text alias.
  */
-export function recordColumnsOf(alias: string | null): string {
-  const q = alias === null ? '' : `${alias}.`;
-  return [
-    `${q}"id"`,
-    `${q}"collection"`,
-    `${q}"site_id"`,
-    `${q}"version"::text as "version"`,
-    `${q}"deleted"`,
-    `${q}"fields"`,
-    `${q}"stamps"`,
-    `${q}"created_at"`,
-  ].join(', ');
-}
+export const RECORD_COLUMNS_R = `r."id", r."collection", r."site_id", r."version"::text as "version", r."deleted", r."fields", r."stamps", r."created_at"`;
 
 /** A field stamp as stored: the wire stamp plus when the server accepted the write. */
 export interface StoredStamp extends FieldWriteStamp {

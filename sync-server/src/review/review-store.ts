@@ -7,7 +7,7 @@ import { jsonParam, sqlRows } from '../records/sql';
 import {
   RECORD_COLUMNS,
   SERVER_DEVICE,
-  recordColumnsOf,
+  RECORD_COLUMNS_R,
   recordFromRow,
   type StoredCandidate,
   type StoredRecord,
@@ -65,7 +65,7 @@ export async function visitsAwaitingCountersign(
   if (siteIds.length === 0) return [];
   const rows = await sqlRows<StoredRecordRow>(
     em,
-    `select ${recordColumnsOf('r')}
+    `select ${RECORD_COLUMNS_R}
        from "sync_record" r
        left join "app_user" u
          on u."id"::text = coalesce(r."fields" ->> 'signedBy', r."fields" ->> 'clinicianId')
