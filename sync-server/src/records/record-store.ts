@@ -287,6 +287,29 @@ export class RecordStore {
     );
   }
 
+  /**
+   * Removes tombstones last written before `cutoff` and moves the horizon marker to the newest
+   * version removed (sync/horizon.service.ts says why).
+   */
+  async pruneTombstones(
+    em: EntityManager,
+    cutoff: Date,
+    now: Date,
+  ): Promise<{ removed: number; horizonVersion: number }> {
+    const [row] = await sqlRows<{ removed: string; horizon: string }>(
+      em,
+      `with "pruned" as (
+         delete from "sync_record" where "deleted" and "updated_at" < ?::timestamptz returning "version"
+       )
+       update "sync_horizon" set
+         "horizon_version" = greatest("horizon_version", coalesce((select max("version") from "pruned"), 0)),
+         "pruned_at" = ?::timestamptz
+       returning (select count(*) from "pruned")::text as "removed", "horizon_version"::text as "horizon"`,
+      [cutoff.toISOString(), now.toISOString()],
+    );
+    return { removed: Number(row?.removed ?? 0), horizonVersion: Number(row?.horizon ?? 0) };
+  }
+
   /** Closes a conflict with the value a supervisor chose (written by ServerWriter first). */
   async markResolved(em: EntityManager, resolution: ConflictResolution): Promise<void> {
     await sqlRows(

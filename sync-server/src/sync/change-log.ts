@@ -114,3 +114,14 @@ export async function storeResults(
   );
   return new Set(logged.map((row) => row.change_id));
 }
+
+/** Forgets the change ids answered before `cutoff` (the tombstone horizon); returns how many. */
+export async function pruneChangeLog(em: EntityManager, cutoff: Date): Promise<number> {
+  const [row] = await sqlRows<{ n: string }>(
+    em,
+    `with "gone" as (delete from "sync_change" where "received_at" < ?::timestamptz returning 1)
+     select count(*)::text as "n" from "gone"`,
+    [cutoff.toISOString()],
+  );
+  return Number(row?.n ?? 0);
+}
