@@ -21,6 +21,30 @@ export interface AuditInput {
   scope?: AuditScope;
 }
 
+/**
+ * Where an audit column's value comes from in `insertSelectSql`: a column of the caller's rows
+ * (as text, or an empty JSON array where it is null, when asked), or a constant.
+ */
+export type AuditValue<K extends string> =
+  { column: K; as?: 'text' | 'json-array' } | { constant: string | null };
+
+const SQL_NAME = /^[a-z_][a-z0-9_]*$/i;
+
+function sqlName(name: string, what: string): string {
+  if (!SQL_NAME.test(name)) throw new Error(`audit ${what}: ${name} is not a plain SQL name`);
+  return name;
+}
+
+function auditValueSql<K extends string>(rows: string, source: AuditValue<K>): string {
+  if ('constant' in source) {
+    return source.constant === null ? 'null' : `'${source.constant.replaceAll("'", "''")}'`;
+  }
+  const column = `${rows}."${sqlName(source.column, 'column')}"`;
+  if (source.as === 'text') return `${column}::text`;
+  if (source.as === 'json-array') return `coalesce(${column}, '[]'::jsonb)`;
+  return column;
+}
+
 const ACCOUNT_KIND_PREFIXES = ['auth.', 'user.', 'device.', 'site.'];
 const SECRET_KEY = /password|secret|token|hash|enrolment_?code/i;
 
@@ -85,39 +109,47 @@ export class AuditService {
 
   /**
    * The audit half of a statement that also makes the change it describes: an
-   * `insert into "audit_event" … select … from <from>` for a data-modifying WITH query, each
-   * column an SQL expression over the caller's rows (a push logs each change's result and audits
-   * it in one statement, from one JSON parameter that says each thing once). The detail is built
-   * in SQL from the keys given here, so none of them may look like a credential's; its values
-   * are the caller's to keep free of secrets, as `record`'s are. The returned bindings are the
-   * time, the scope, the actor and the tablet; the caller's own follow them, in the order they
-   * appear in the text: those of the expressions (id to detail), then those of `from`.
+   * `insert into "audit_event" … select … from "<rows>"` for a data-modifying WITH query, each
+   * column taken from a column of the caller's rows (a push logs each change's result and audits
+   * it in one statement, from one JSON parameter that says each thing once). `rows` names a WITH
+   * query of the same statement; only its rows whose `onlyWhere` column is set are audited. The
+   * detail is built in SQL from the keys given here, so none of them may look like a
+   * credential's; its values are the caller's to keep free of secrets, as `record`'s are. The
+   * returned bindings are the time, the scope, the actor and the tablet.
    */
-  insertSelectSql(input: {
+  insertSelectSql<K extends string>(input: {
     scope: AuditScope;
     actorId: string | null;
     deviceId: string | null;
-    /** One uuid expression per row, unique: the event's id. */
-    id: string;
-    kind: string;
-    siteId: string;
-    subjectType: string;
-    subjectId: string;
-    detail: Readonly<Record<string, string>>;
-    /** `from …` and any `where …` of the rows. */
-    from: string;
+    /** The name of the WITH query whose rows are audited. */
+    rows: string;
+    /** Audits only the rows where this column is not null. */
+    onlyWhere?: K;
+    /** A uuid column, unique per row: the event's id. */
+    id: AuditValue<K>;
+    kind: AuditValue<K>;
+    siteId: AuditValue<K>;
+    subjectType: AuditValue<K>;
+    subjectId: AuditValue<K>;
+    detail: Readonly<Record<string, AuditValue<K>>>;
   }): { sql: string; bindings: (string | null)[] } {
     const secret = Object.keys(input.detail).find((key) => SECRET_KEY.test(key));
     if (secret !== undefined)
       throw new Error(`audit detail key ${secret} looks like a credential and is not stored`);
+    const rows = sqlName(input.rows, 'rows');
+    const value = (source: AuditValue<K>) => auditValueSql(rows, source);
     const detail = Object.entries(input.detail)
-      .map(([key, expression]) => `'${key.replaceAll("'", "''")}', ${expression}`)
+      .map(([key, source]) => `'${key.replaceAll("'", "''")}', ${value(source)}`)
       .join(', ');
+    const where =
+      input.onlyWhere === undefined
+        ? ''
+        : ` where ${rows}."${sqlName(input.onlyWhere, 'onlyWhere')}" is not null`;
     return {
       sql: `insert into "audit_event" ("occurred_at", "scope", "actor_id", "device_id", "id", "kind", "site_id", "subject_type", "subject_id", "detail")
-            select ?::timestamptz, ?::text, ?::uuid, ?::uuid, ${input.id}, ${input.kind}, ${input.siteId},
-                   ${input.subjectType}, ${input.subjectId}, jsonb_build_object(${detail})
-            ${input.from}`,
+            select ?::timestamptz, ?::text, ?::uuid, ?::uuid, ${value(input.id)}, ${value(input.kind)}, ${value(input.siteId)},
+                   ${value(input.subjectType)}, ${value(input.subjectId)}, jsonb_build_object(${detail})
+            from "${rows}"${where}`,
       bindings: [this.clock.now().toISOString(), input.scope, input.actorId, input.deviceId],
     };
   }

@@ -149,19 +149,26 @@ describe('the audit trail', () => {
     rows: { id: string; kind: string; site: string | null; subject: string; note?: string }[],
     actorId: string | null = null,
   ) {
-    const insert = audit().insertSelectSql({
+    const insert = audit().insertSelectSql<'id' | 'kind' | 'site' | 'subject' | 'note'>({
       scope: 'clinical',
       actorId,
       deviceId: null,
-      id: 'x."id"',
-      kind: 'x."kind"',
-      siteId: 'x."site"',
-      subjectType: `'visit'`,
-      subjectId: 'x."subject"',
-      detail: { note: 'x."note"', kindAgain: 'x."kind"' },
-      from: `from jsonb_to_recordset(?::jsonb) as x("id" uuid, "kind" text, "site" uuid, "subject" text, "note" text)`,
+      rows: 'x',
+      id: { column: 'id' },
+      kind: { column: 'kind' },
+      siteId: { column: 'site' },
+      subjectType: { constant: 'visit' },
+      subjectId: { column: 'subject' },
+      detail: { note: { column: 'note' }, kindAgain: { column: 'kind' } },
     });
-    await sqlRows(em as SqlEntityManager, insert.sql, [...insert.bindings, JSON.stringify(rows)]);
+    await sqlRows(
+      em as SqlEntityManager,
+      `with "x" as (
+         select * from jsonb_to_recordset(?::jsonb) as x("id" uuid, "kind" text, "site" uuid, "subject" text, "note" text)
+       ), "audited" as (${insert.sql})
+       select 1`,
+      [JSON.stringify(rows), ...insert.bindings],
+    );
   }
 
   it('writes the events of a caller’s statement with each row’s own values, the actor and the time', async () => {
@@ -242,15 +249,37 @@ describe('the audit trail', () => {
         scope: 'clinical',
         actorId: null,
         deviceId: null,
-        id: 'x."id"',
-        kind: `'record.changed'`,
-        siteId: 'null',
-        subjectType: `'visit'`,
-        subjectId: 'null',
-        detail: { accessToken: 'x."t"' },
-        from: 'from x',
+        rows: 'x',
+        id: { column: 'id' },
+        kind: { constant: 'record.changed' },
+        siteId: { constant: null },
+        subjectType: { constant: 'visit' },
+        subjectId: { constant: null },
+        detail: { accessToken: { column: 't' } },
       }),
     ).toThrow('audit detail key accessToken looks like a credential');
+  });
+
+  it('refuses a column or row source that is not a plain name, so no SQL text gets in', () => {
+    const input = {
+      scope: 'clinical' as const,
+      actorId: null,
+      deviceId: null,
+      rows: 'x',
+      id: { column: 'id' },
+      kind: { constant: "it's kept as text" },
+      siteId: { constant: null },
+      subjectType: { constant: 'visit' },
+      subjectId: { constant: null },
+      detail: {},
+    };
+    expect(() =>
+      audit().insertSelectSql({ ...input, id: { column: 'id"; drop table x; --' } }),
+    ).toThrow('audit column: id"; drop table x; -- is not a plain SQL name');
+    expect(() => audit().insertSelectSql({ ...input, rows: 'x where true' })).toThrow(
+      'audit rows: x where true is not a plain SQL name',
+    );
+    expect(audit().insertSelectSql(input).sql).toContain(`'it''s kept as text'`);
   });
 
   it('files kinds under account or clinical by their prefix', () => {

@@ -16,9 +16,6 @@ import {
 } from '@nestjs/common';
 import {
   TOMBSTONE_FIELD,
-  createClock,
-  receive,
-  tick,
   validateFields,
   type CollectionName,
   type ConflictItem,
@@ -31,16 +28,13 @@ import { AuditService } from '../audit/audit.service';
 import type { AuthUser } from '../auth/auth-user';
 import { hasSiteAccess, sitesOf } from '../auth/scope';
 import { CLOCK, type Clock } from '../common/clock.provider';
-import { lockRecords, upsertRecords } from '../records/record-store';
-import { BEGIN_VERSIONED_WRITE_SQL, VersionAllocator } from '../records/record-version';
+import { RecordStore } from '../records/record-store';
+import { ServerWriter } from '../records/server-writer';
 import { jsonParam, sqlRows } from '../records/sql';
-import type { StoredCandidate, StoredStamp } from '../records/stored-record';
+import type { StoredCandidate } from '../records/stored-record';
 import { AddendumPublisher } from '../review/addendum-publisher.service';
 
 export const DISPUTE_PAGE_SIZE = 50;
-
-/** Device name of a resolution made from a desk session (no tablet). */
-export const DESK_DEVICE = 'server';
 
 /** A dispute as the list and the resolution read it, with the field's value on the record. */
 interface DisputeListRow {
@@ -106,6 +100,8 @@ export class ConflictsService {
     @Inject(CLOCK) private readonly clock: Clock,
     @Optional() @Inject(AuditService) private readonly audit: AuditService | null,
     @Inject(AddendumPublisher) private readonly addenda: AddendumPublisher,
+    @Inject(RecordStore) private readonly store: RecordStore,
+    @Inject(ServerWriter) private readonly writer: ServerWriter,
   ) {}
 
   async list(user: AuthUser, query: ConflictListQuery): Promise<ConflictListResponse> {
@@ -146,8 +142,7 @@ export class ConflictsService {
   ): Promise<ConflictItem> {
     const now = this.clock.now();
     const resolved = await this.em.fork().transactional(async (em) => {
-      const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
-      const versions = VersionAllocator.fromRow(begin);
+      await this.writer.begin(em);
       const [found] = await sqlRows<{ record_id: string }>(
         em,
         `select "record_id" from "sync_conflict" where "id" = ?`,
@@ -155,7 +150,7 @@ export class ConflictsService {
       );
       if (!found) throw new NotFoundException(`No dispute has the id ${conflictId}.`);
       // Same lock order as a push: the record first, then its dispute.
-      const record = (await lockRecords(em, [found.record_id])).get(found.record_id);
+      const record = (await this.store.lockForUpdate(em, [found.record_id])).get(found.record_id);
       const [row] = await sqlRows<DisputeListRow>(
         em,
         `select ${DISPUTE_COLUMNS} from "sync_conflict" c join "sync_record" r on r."id" = c."record_id"
@@ -175,40 +170,28 @@ export class ConflictsService {
       }
       const value = validateResolution(row.collection, row.field, body.value);
 
-      // The supervisor's stamp is later than every candidate and the field's current stamp.
-      const device = user.deviceId ?? DESK_DEVICE;
-      let clock = createClock(device);
-      for (const candidate of row.candidates) clock = receive(clock, candidate.hlc, now.getTime());
-      const current = record.stamps[row.field];
-      if (current) clock = receive(clock, current.hlc, now.getTime());
-      const { stamp: hlc } = tick(clock, now.getTime());
-      const version = versions.next();
-      const stamp: StoredStamp = { hlc, version, by: user.userId, device, at: now.toISOString() };
-
-      const fields = { ...record.fields };
-      let deleted = record.deleted;
-      if (row.field === TOMBSTONE_FIELD) deleted = value === true;
-      else fields[row.field] = value;
-      await upsertRecords(
-        em,
-        [{ ...record, version, deleted, fields, stamps: { ...record.stamps, [row.field]: stamp } }],
+      // The supervisor's stamp is later than every candidate and every stamp on the record; the
+      // write does not join the dispute it resolves.
+      const written = await this.writer.writeFields(em, {
+        recordId: record.id,
+        fields: { [row.field]: value },
+        by: user.userId,
+        deviceId: user.deviceId,
         now,
-      );
-      await sqlRows(
-        em,
-        `update "sync_conflict" set "status" = 'resolved', "resolved_at" = ?::timestamptz, "resolved_by" = ?::uuid,
-                "resolved_device" = ?, "resolved_value" = ?::jsonb, "resolution_version" = ?, "note" = ?
-          where "id" = ?`,
-        [
-          now.toISOString(),
-          user.userId,
-          device,
-          JSON.stringify(value),
-          version,
-          body.note,
-          conflictId,
-        ],
-      );
+        after: row.candidates.map((candidate) => candidate.hlc),
+        resolving: conflictId,
+      });
+      if (!written) throw new NotFoundException(`No dispute has the id ${conflictId}.`);
+      const { version } = written;
+      await this.store.markResolved(em, {
+        conflictId,
+        at: now,
+        by: user.userId,
+        device: written.stamp.device,
+        value,
+        version,
+        note: body.note,
+      });
       await this.audit?.record(em, {
         kind: 'conflict.resolved',
         actorId: user.userId,

@@ -3,6 +3,7 @@
 // two processes send the same row, and a row whose process died is picked up once its lease ends.
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { sqlRows } from '../records/sql';
+import { SERVER_DEVICE } from '../records/stored-record';
 
 export type MailStatus = 'queued' | 'sending' | 'sent' | 'failed';
 
@@ -152,14 +153,14 @@ export async function pendingSendRequests(
        from (select r."id",
                     case when r."fields" ->> 'sendRequestedAt' is not null then r."stamps" -> 'sendRequestedAt'
                          when r."fields" ->> 'deliveryState' = 'queued'
-                          and coalesce(r."stamps" -> 'deliveryState' ->> 'device', '') <> 'server'
+                          and coalesce(r."stamps" -> 'deliveryState' ->> 'device', '') <> ?
                          then r."stamps" -> 'deliveryState' end as "request"
                from "sync_record" r
               where r."collection" = 'letter' and not r."deleted" and r."fields" ->> 'status' = 'final') q
       where q."request" is not null
         and not exists (select 1 from "mail_request" m where m."letter_id" = q."id" and m."request_hlc" = q."request" ->> 'hlc')
       order by q."id" limit ?`,
-    [limit],
+    [SERVER_DEVICE, limit],
   );
 }
 

@@ -1,4 +1,4 @@
-// upsertRecords sends a batch in a shortened form (shared values bound once, stamps by hlc alone
+// RecordStore.upsert sends a batch in a shortened form (shared values bound once, stamps by hlc alone
 // where the batch's writer made them, "every field" for a stamp that covers a whole record).
 // Whatever the mix, the stored rows must be exactly the records given.
 import { v7 as uuidv7 } from 'uuid';
@@ -6,7 +6,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { TestApp } from '../testing/test-app';
 import { SITE_A, SITE_B, createSyncTestApp } from '../sync/testing/sync-test-kit';
-import { encodeRecords, upsertRecords, type RecordWrite } from './record-store';
+import { encodeRecordRows, type RecordWrite } from './record-row.codec';
+import { RecordStore } from './record-store';
 import type { StoredStamp } from './stored-record';
 
 let t: TestApp;
@@ -30,7 +31,9 @@ async function write(records: RecordWrite[]): Promise<void> {
   await t
     .em()
     .fork()
-    .transactional((em) => upsertRecords(em as EntityManager, records, new Date(AT)));
+    .transactional((em) =>
+      t.app.get(RecordStore).upsert(em as EntityManager, records, new Date(AT)),
+    );
 }
 
 async function stored(id: string) {
@@ -56,7 +59,7 @@ function expectStored(record: RecordWrite, row: Awaited<ReturnType<typeof stored
   });
 }
 
-describe('upsertRecords', () => {
+describe('RecordStore.upsert', () => {
   it('stores a mixed batch exactly as given, whichever parts travel shortened', async () => {
     const fresh = stamp(9_000_003, WRITER, AT);
     const sameWriterEarlierVersion = stamp(9_000_001, WRITER, AT);
@@ -141,7 +144,7 @@ describe('upsertRecords', () => {
   it('shortens what the batch shares and leaves the rest whole', () => {
     const fresh = stamp(5, WRITER, AT);
     const older = stamp(2, OTHER, EARLIER);
-    const { shared, rows } = encodeRecords([
+    const { shared, rows } = encodeRecordRows([
       {
         id: 'a',
         collection: 'patient',

@@ -1,36 +1,30 @@
-// The queries on synced records, conflicts and the change log that the push, pull, conflicts and
-// pruning paths share. Every batch travels as one JSON parameter so a request of 500 changes is
-// a handful of statements, not hundreds.
+// The record store: every statement on synced records and their conflicts that the push, pull,
+// conflicts, Review desk, letters and mail paths share. It is a Nest provider of RecordsModule;
+// each method runs on the entity manager it is given, so it joins the caller's transaction. Every
+// batch travels as one JSON parameter so a request of 500 changes is a handful of statements, not
+// hundreds. Writes of the server's own field changes go through ServerWriter (server-writer.ts).
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { JsonValue } from '@fuselight/shared';
+import { Injectable } from '@nestjs/common';
+import type { CollectionName, JsonValue } from '@fuselight/shared';
+import { encodeRecordRows, type RecordWrite } from './record-row.codec';
+import {
+  BEGIN_VERSIONED_WRITE_SQL,
+  SAFE_VERSION_BOUND_SQL,
+  VersionAllocator,
+} from './record-version';
 import { jsonParam, sqlRows } from './sql';
 import {
+  RECORD_COLUMNS,
+  RECORD_COLUMNS_R,
   recordFromRow,
   type StoredCandidate,
   type StoredRecord,
   type StoredRecordRow,
-  type StoredStamp,
 } from './stored-record';
 
-const RECORD_COLUMNS = `"id", "collection", "site_id", "version"::text as "version", "deleted", "fields", "stamps", "created_at"`;
+export type { RecordWrite } from './record-row.codec';
 
-/** Locks the records (in id order, so concurrent batches cannot deadlock) and reads them. */
-export async function lockRecords(
-  em: EntityManager,
-  ids: readonly string[],
-): Promise<Map<string, StoredRecord>> {
-  const found = new Map<string, StoredRecord>();
-  if (ids.length === 0) return found;
-  const rows = await sqlRows<StoredRecordRow>(
-    em,
-    `select ${RECORD_COLUMNS} from "sync_record"
-      where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
-      order by "id" for update`,
-    [jsonParam([...new Set(ids)].sort())],
-  );
-  for (const row of rows) found.set(row.id, recordFromRow(row));
-  return found;
-}
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 export interface OpenConflictRow {
   id: string;
@@ -38,52 +32,189 @@ export interface OpenConflictRow {
   field: string;
 }
 
-export async function openConflictsOf(
-  em: EntityManager,
-  recordIds: readonly string[],
-): Promise<OpenConflictRow[]> {
-  if (recordIds.length === 0) return [];
-  return sqlRows<OpenConflictRow>(
-    em,
-    `select "id", "record_id", "field" from "sync_conflict"
-      where "status" = 'open' and "record_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
-    [jsonParam([...new Set(recordIds)])],
-  );
-}
-
-export interface RecordWrite {
+export interface ConflictInsert {
   id: string;
   collection: string;
+  recordId: string;
   siteId: string;
-  version: number;
-  deleted: boolean;
-  fields: Record<string, JsonValue>;
-  stamps: Record<string, StoredStamp>;
+  field: string;
+  candidates: StoredCandidate[];
 }
 
-/**
- * Inserts or replaces the records' rows (their final state after the batch) in one statement, in
- * id order: two pushes creating the same new records (a resent request) then wait on each other's
- * first row instead of deadlocking.
- *
- * The rows travel as one JSON parameter that says each thing once (see `encodeRecords`): what
- * most rows share is bound once and a row carries only where it differs, and a record's stamps
- * travel grouped, each distinct stamp once with the fields it stamps. PostgreSQL spreads them back
- * into the field → stamp object the row stores, so the stored rows are exactly the records given.
- * A batch of 500 new five-field records sends about 200 kB instead of 660 kB for the plain form;
- * parsing the parameter is most of the statement's cost in PostgreSQL, and writing it to the
- * socket a large part of the server's.
- */
-export async function upsertRecords(
-  em: EntityManager,
-  records: readonly RecordWrite[],
-  at: Date,
-): Promise<void> {
-  if (records.length === 0) return;
-  const { shared, rows } = encodeRecords(records);
-  await sqlRows(
-    em,
-    `insert into "sync_record" ("id", "collection", "site_id", "version", "deleted", "fields", "stamps", "created_at", "updated_at")
+/** How a supervisor's resolution closes a conflict. */
+export interface ConflictResolution {
+  conflictId: string;
+  at: Date;
+  by: string;
+  device: string;
+  value: JsonValue;
+  version: number;
+  note: string | null;
+}
+
+@Injectable()
+export class RecordStore {
+  /**
+   * First statement of a writing transaction (record-version.ts): the transaction's version
+   * base, and the statement timeout that bounds how long it may hold pulls back.
+   */
+  async beginVersionedWrite(em: EntityManager): Promise<VersionAllocator> {
+    const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
+    return VersionAllocator.fromRow(begin);
+  }
+
+  /** The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not. */
+  async byIds(em: EntityManager, ids: readonly string[]): Promise<Map<string, StoredRecord>> {
+    const found = new Map<string, StoredRecord>();
+    const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
+    if (wanted.length === 0) return found;
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
+      [jsonParam(wanted)],
+    );
+    for (const row of rows) found.set(row.id, recordFromRow(row));
+    return found;
+  }
+
+  async byId(em: EntityManager, id: string): Promise<StoredRecord | null> {
+    return (await this.byIds(em, [id])).get(id) ?? null;
+  }
+
+  /** A live (not deleted) record of the collection, or null. */
+  async live(
+    em: EntityManager,
+    collection: CollectionName,
+    id: string,
+  ): Promise<StoredRecord | null> {
+    const [row] = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS} from "sync_record" where "id" = ?::uuid and "collection" = ? and not "deleted"`,
+      [id, collection],
+    );
+    return row ? recordFromRow(row) : null;
+  }
+
+  /** Live records of the collections whose `field` is one of `values`, in id order. */
+  async liveWhere(
+    em: EntityManager,
+    collections: readonly CollectionName[],
+    field: string,
+    values: readonly string[],
+  ): Promise<StoredRecord[]> {
+    if (values.length === 0 || collections.length === 0) return [];
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS} from "sync_record"
+        where "collection" in (select jsonb_array_elements_text(?::jsonb))
+          and "fields" ->> ? in (select jsonb_array_elements_text(?::jsonb))
+          and not "deleted"
+        order by "id"`,
+      [jsonParam(collections), field, jsonParam(values)],
+    );
+    return rows.map(recordFromRow);
+  }
+
+  /**
+   * The first statement of a pull's snapshot: the version bound below which records are final
+   * (record-version.ts), the tombstone horizon, and the tablet's cursor epoch (null for a desk
+   * session or an unknown device).
+   */
+  async pullHead(
+    em: EntityManager,
+    deviceId: string | null,
+  ): Promise<{ bound: number; horizon: number; epoch: number | null }> {
+    const [head] = await sqlRows<{ bound: string; horizon: string; epoch: number | null }>(
+      em,
+      `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon",
+              (select d."pull_epoch" from "device" d where d."id" = ?::uuid) as "epoch"`,
+      [deviceId],
+    );
+    return {
+      bound: Number(head?.bound ?? 0),
+      horizon: Number(head?.horizon ?? 0),
+      epoch: head?.epoch ?? null,
+    };
+  }
+
+  /**
+   * Up to `limit` records of the sites with versions after `after` and below `bound`, in version
+   * order. Ordered and compared as numbers: "sync_record"."version" is the bigint column, never
+   * the text alias of the select list.
+   */
+  async pullPage(
+    em: EntityManager,
+    page: { after: number; bound: number; sites: readonly string[]; limit: number },
+  ): Promise<StoredRecord[]> {
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS_R}
+         from "sync_record" r
+        where r."version" > ? and r."version" < ?
+          and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
+        order by r."version" limit ?`,
+      [page.after, page.bound, jsonParam(page.sites), page.limit],
+    );
+    return rows.map(recordFromRow);
+  }
+
+  /** Whether a committed record of the sites after `after` waits at or beyond `bound`. */
+  async heldBack(
+    em: EntityManager,
+    range: { after: number; bound: number; sites: readonly string[] },
+  ): Promise<boolean> {
+    const [row] = await sqlRows<{ held: boolean }>(
+      em,
+      `select exists (select 1 from "sync_record" where "version" >= ? and "version" > ?
+         and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)) as "held"`,
+      [range.bound, range.after, jsonParam(range.sites)],
+    );
+    return row?.held === true;
+  }
+
+  /** Locks the records (in id order, so concurrent batches cannot deadlock) and reads them. */
+  async lockForUpdate(
+    em: EntityManager,
+    ids: readonly string[],
+  ): Promise<Map<string, StoredRecord>> {
+    const found = new Map<string, StoredRecord>();
+    if (ids.length === 0) return found;
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS} from "sync_record"
+        where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
+        order by "id" for update`,
+      [jsonParam([...new Set(ids)].sort())],
+    );
+    for (const row of rows) found.set(row.id, recordFromRow(row));
+    return found;
+  }
+
+  async openConflictsOf(
+    em: EntityManager,
+    recordIds: readonly string[],
+  ): Promise<OpenConflictRow[]> {
+    if (recordIds.length === 0) return [];
+    return sqlRows<OpenConflictRow>(
+      em,
+      `select "id", "record_id", "field" from "sync_conflict"
+        where "status" = 'open' and "record_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
+      [jsonParam([...new Set(recordIds)])],
+    );
+  }
+
+  /**
+   * Inserts or replaces the records' rows (their final state after the batch) in one statement,
+   * in id order: two pushes creating the same new records (a resent request) then wait on each
+   * other's first row instead of deadlocking. The rows travel encoded by record-row.codec.ts,
+   * whose keys this statement reads.
+   */
+  async upsert(em: EntityManager, records: readonly RecordWrite[], at: Date): Promise<void> {
+    if (records.length === 0) return;
+    const { shared, rows } = encodeRecordRows(records);
+    await sqlRows(
+      em,
+      `insert into "sync_record" ("id", "collection", "site_id", "version", "deleted", "fields", "stamps", "created_at", "updated_at")
      select x."id", coalesce(x."c", ?::text), coalesce(x."s", ?::uuid), x."v", coalesce(x."d", false), x."f",
             coalesce((select jsonb_object_agg(k, s."stamp")
                         from jsonb_array_elements(x."g") e
@@ -101,171 +232,100 @@ export async function upsertRecords(
      on conflict ("id") do update set
        "site_id" = excluded."site_id", "version" = excluded."version", "deleted" = excluded."deleted",
        "fields" = excluded."fields", "stamps" = excluded."stamps", "updated_at" = excluded."updated_at"`,
-    [
-      shared.collection,
-      shared.siteId,
-      shared.stamp?.by ?? null,
-      shared.stamp?.device ?? null,
-      shared.stamp?.at ?? null,
-      at.toISOString(),
-      at.toISOString(),
-      jsonParam(rows),
-    ],
-  );
-}
-
-/** What most rows of a batch share, bound once. */
-export interface SharedRecordValues {
-  collection: string;
-  siteId: string;
-  /** Who, on which tablet and when, for every stamp sent by its `hlc` alone. */
-  stamp: Pick<StoredStamp, 'by' | 'device' | 'at'> | null;
-}
-
-/**
- * One row per record, `{ id, v, f, g }` plus `c`, `s` and `d` where the record's collection, site
- * or deletion differs from the shared values (the first record's; not deleted). `g` lists each
- * distinct stamp object once, as `[stamp, fields, version?]`, its fields as the keys of an object
- * (`{ "notes": 0 }`, which PostgreSQL lists faster than an array's elements):
- * - the stamp is sent as its `hlc` alone when it holds exactly hlc, version, by, device and at,
- *   and its by, device and at are the shared ones (those of the batch's newest stamp: the write
- *   being made), with its version only where it differs from the record's;
- * - the fields are `null` when the stamp covers exactly the record's fields (a new record).
- * The stamp of a group is built once (`offset 0` keeps PostgreSQL from building it per field).
- * Each shortening is taken only where it restores the very same stamp, so it never changes what
- * is stored. Grouping is by object identity, so two stamps that differ are never merged; stamps
- * read back from a row are separate objects and simply travel alone.
- */
-export function encodeRecords(records: readonly RecordWrite[]): {
-  shared: SharedRecordValues;
-  rows: Record<string, unknown>[];
-} {
-  const first = records[0];
-  if (!first) return { shared: { collection: '', siteId: '', stamp: null }, rows: [] };
-  let newest: StoredStamp | null = null;
-  for (const record of records)
-    for (const stamp of Object.values(record.stamps))
-      if (isPlainStamp(stamp) && (newest === null || stamp.version > newest.version))
-        newest = stamp;
-  const shared: SharedRecordValues = {
-    collection: first.collection,
-    siteId: first.siteId,
-    stamp: newest && { by: newest.by, device: newest.device, at: newest.at },
-  };
-  const rows = records.map((record) => {
-    const row: Record<string, unknown> = {
-      id: record.id,
-      v: record.version,
-      f: record.fields,
-      g: stampGroups(record).map(([stamp, fields]) => {
-        const covers = coversExactly(fields, record.fields)
-          ? null
-          : Object.fromEntries(fields.map((field) => [field, 0]));
-        if (!isSharedStamp(stamp, shared.stamp)) return [stamp, covers];
-        return stamp.version === record.version
-          ? [stamp.hlc, covers]
-          : [stamp.hlc, covers, stamp.version];
-      }),
-    };
-    if (record.collection !== shared.collection) row.c = record.collection;
-    if (record.siteId !== shared.siteId) row.s = record.siteId;
-    if (record.deleted) row.d = true;
-    return row;
-  });
-  return { shared, rows };
-}
-
-const PLAIN_STAMP_KEYS = 5;
-
-/** Exactly hlc, version, by, device and at, of the types the shortened form restores. */
-function isPlainStamp(stamp: StoredStamp): boolean {
-  return (
-    Object.keys(stamp).length === PLAIN_STAMP_KEYS &&
-    typeof stamp.hlc === 'string' &&
-    Number.isSafeInteger(stamp.version) &&
-    typeof stamp.by === 'string' &&
-    typeof stamp.device === 'string' &&
-    typeof stamp.at === 'string'
-  );
-}
-
-function isSharedStamp(stamp: StoredStamp, shared: SharedRecordValues['stamp']): boolean {
-  return (
-    shared !== null &&
-    isPlainStamp(stamp) &&
-    stamp.by === shared.by &&
-    stamp.device === shared.device &&
-    stamp.at === shared.at
-  );
-}
-
-function coversExactly(fields: readonly string[], values: Record<string, JsonValue>): boolean {
-  let count = 0;
-  for (const key in values) if (Object.hasOwn(values, key)) count += 1;
-  return (
-    count === fields.length &&
-    fields.every((field) => Object.hasOwn(values, field) && values[field] !== undefined)
-  );
-}
-
-/** [stamp, fields it stamps] for each distinct stamp object of a record. */
-export function stampGroups(record: Pick<RecordWrite, 'stamps'>): [StoredStamp, string[]][] {
-  const groups = new Map<StoredStamp, [StoredStamp, string[]]>();
-  for (const [field, stamp] of Object.entries(record.stamps)) {
-    const group = groups.get(stamp);
-    if (group) group[1].push(field);
-    else groups.set(stamp, [stamp, [field]]);
+      [
+        shared.collection,
+        shared.siteId,
+        shared.stamp?.by ?? null,
+        shared.stamp?.device ?? null,
+        shared.stamp?.at ?? null,
+        at.toISOString(),
+        at.toISOString(),
+        jsonParam(rows),
+      ],
+    );
   }
-  return [...groups.values()];
-}
 
-export interface ConflictInsert {
-  id: string;
-  collection: string;
-  recordId: string;
-  siteId: string;
-  field: string;
-  candidates: StoredCandidate[];
-}
-
-export async function insertConflicts(
-  em: EntityManager,
-  conflicts: readonly ConflictInsert[],
-  at: Date,
-): Promise<void> {
-  if (conflicts.length === 0) return;
-  await sqlRows(
-    em,
-    `insert into "sync_conflict" ("id", "collection", "record_id", "site_id", "field", "status", "opened_at", "candidates")
+  async insertConflicts(
+    em: EntityManager,
+    conflicts: readonly ConflictInsert[],
+    at: Date,
+  ): Promise<void> {
+    if (conflicts.length === 0) return;
+    await sqlRows(
+      em,
+      `insert into "sync_conflict" ("id", "collection", "record_id", "site_id", "field", "status", "opened_at", "candidates")
      select x."id", x."collection", x."record_id", x."site_id", x."field", 'open', ?::timestamptz, x."candidates"
        from jsonb_to_recordset(?::jsonb) as x("id" uuid, "collection" text, "record_id" uuid, "site_id" uuid, "field" text, "candidates" jsonb)`,
-    [
-      at.toISOString(),
-      jsonParam(
-        conflicts.map((c) => ({
-          id: c.id,
-          collection: c.collection,
-          record_id: c.recordId,
-          site_id: c.siteId,
-          field: c.field,
-          candidates: c.candidates,
-        })),
-      ),
-    ],
-  );
-}
+      [
+        at.toISOString(),
+        jsonParam(
+          conflicts.map((c) => ({
+            id: c.id,
+            collection: c.collection,
+            record_id: c.recordId,
+            site_id: c.siteId,
+            field: c.field,
+            candidates: c.candidates,
+          })),
+        ),
+      ],
+    );
+  }
 
-/** Adds candidates to open conflicts (a further edit joins the conflict). */
-export async function appendCandidates(
-  em: EntityManager,
-  additions: readonly { conflictId: string; candidates: StoredCandidate[] }[],
-): Promise<void> {
-  if (additions.length === 0) return;
-  await sqlRows(
-    em,
-    `update "sync_conflict" c set "candidates" = c."candidates" || x."candidates"
+  /** Adds candidates to open conflicts (a further edit joins the conflict). */
+  async appendCandidates(
+    em: EntityManager,
+    additions: readonly { conflictId: string; candidates: StoredCandidate[] }[],
+  ): Promise<void> {
+    if (additions.length === 0) return;
+    await sqlRows(
+      em,
+      `update "sync_conflict" c set "candidates" = c."candidates" || x."candidates"
        from jsonb_to_recordset(?::jsonb) as x("id" uuid, "candidates" jsonb)
       where c."id" = x."id" and c."status" = 'open'`,
-    [jsonParam(additions.map((a) => ({ id: a.conflictId, candidates: a.candidates })))],
-  );
+      [jsonParam(additions.map((a) => ({ id: a.conflictId, candidates: a.candidates })))],
+    );
+  }
+
+  /**
+   * Removes tombstones last written before `cutoff` and moves the horizon marker to the newest
+   * version removed (sync/horizon.service.ts says why).
+   */
+  async pruneTombstones(
+    em: EntityManager,
+    cutoff: Date,
+    now: Date,
+  ): Promise<{ removed: number; horizonVersion: number }> {
+    const [row] = await sqlRows<{ removed: string; horizon: string }>(
+      em,
+      `with "pruned" as (
+         delete from "sync_record" where "deleted" and "updated_at" < ?::timestamptz returning "version"
+       )
+       update "sync_horizon" set
+         "horizon_version" = greatest("horizon_version", coalesce((select max("version") from "pruned"), 0)),
+         "pruned_at" = ?::timestamptz
+       returning (select count(*) from "pruned")::text as "removed", "horizon_version"::text as "horizon"`,
+      [cutoff.toISOString(), now.toISOString()],
+    );
+    return { removed: Number(row?.removed ?? 0), horizonVersion: Number(row?.horizon ?? 0) };
+  }
+
+  /** Closes a conflict with the value a supervisor chose (written by ServerWriter first). */
+  async markResolved(em: EntityManager, resolution: ConflictResolution): Promise<void> {
+    await sqlRows(
+      em,
+      `update "sync_conflict" set "status" = 'resolved', "resolved_at" = ?::timestamptz, "resolved_by" = ?::uuid,
+              "resolved_device" = ?, "resolved_value" = ?::jsonb, "resolution_version" = ?, "note" = ?
+        where "id" = ?`,
+      [
+        resolution.at.toISOString(),
+        resolution.by,
+        resolution.device,
+        JSON.stringify(resolution.value),
+        resolution.version,
+        resolution.note,
+        resolution.conflictId,
+      ],
+    );
+  }
 }

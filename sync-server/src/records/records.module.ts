@@ -1,6 +1,15 @@
 import { Module } from '@nestjs/common';
+import { RecordStore } from './record-store';
 import { RecordsService } from './records.service';
+import { ServerWriter } from './server-writer';
 
-/** Storage of synced records; other modules read records through RecordsService. */
-@Module({ providers: [RecordsService], exports: [RecordsService] })
+/**
+ * Storage of synced records, their conflicts and versions: the only module whose SQL touches
+ * "sync_record" and "sync_conflict". Other modules read records through RecordsService or the
+ * RecordStore, and the server writes its own field changes through the ServerWriter.
+ */
+@Module({
+  providers: [RecordsService, RecordStore, ServerWriter],
+  exports: [RecordsService, RecordStore, ServerWriter],
+})
 export class RecordsModule {}

@@ -1,6 +1,25 @@
 // The server's row of a synced record, as the sync and conflicts modules read and write it.
 import type { CollectionName, FieldWriteStamp, JsonValue } from '@fuselight/shared';
 
+/**
+ * The device of a write the server makes itself (a desk resolution, a countersignature, a
+ * delivery state, the demo seed): stamps and candidates carry it where a tablet's id would be.
+ */
+export const SERVER_DEVICE = 'server';
+
+/**
+ * The select list of a StoredRecordRow from "sync_record" (version as text: it is a bigint).
+ * Kept as literals (not built by a function) so the ORDER BY scan (sql-alias-order.spec.ts) sees
+ * the text alias of "version" in every query they are spliced into.
+ */
+export const RECORD_COLUMNS = `"id", "collection", "site_id", "version"::text as "version", "deleted", "fields", "stamps", "created_at"`;
+
+/**
+ * The same select list with every column qualified by the alias `r` (`from "sync_record" r`): a
+ * query that orders by version must name the bigint column `r."version"`, never the text alias.
+ */
+export const RECORD_COLUMNS_R = `r."id", r."collection", r."site_id", r."version"::text as "version", r."deleted", r."fields", r."stamps", r."created_at"`;
+
 /** A field stamp as stored: the wire stamp plus when the server accepted the write. */
 export interface StoredStamp extends FieldWriteStamp {
   /** ISO time the server accepted the write. */

@@ -18,7 +18,9 @@ import {
 import { isCollectionName, type JsonValue } from '@fuselight/shared';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { APP_CONFIG, type AppConfig } from '../config/app-config';
+import { ServerWriter } from '../records/server-writer';
 import { jsonParam, sqlRows } from '../records/sql';
+import { SERVER_DEVICE } from '../records/stored-record';
 import { recordsByIds, type AddendumRow } from './review-store';
 import { createServerRecord } from './server-change';
 
@@ -38,6 +40,7 @@ export class AddendumPublisher implements OnApplicationBootstrap, OnApplicationS
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(IDS) private readonly ids: IdGenerator,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
+    @Inject(ServerWriter) private readonly writer: ServerWriter,
   ) {}
 
   onApplicationBootstrap(): void {
@@ -148,13 +151,13 @@ export class AddendumPublisher implements OnApplicationBootstrap, OnApplicationS
       conflictId: row.conflict_id,
     };
     if (isCollectionName(row.collection)) fields.amendedCollection = row.collection;
-    const record = await createServerRecord(em, {
+    const record = await createServerRecord(this.writer, em, {
       collection: 'addendum',
       recordId: this.ids.uuid(),
       siteId: visit.siteId,
       fields,
       by: row.by_user,
-      deviceId: row.device && row.device !== 'server' ? row.device : null,
+      deviceId: row.device && row.device !== SERVER_DEVICE ? row.device : null,
       now: this.clock.now(),
     });
     return record.id;

@@ -1,4 +1,5 @@
 import { Module } from '@nestjs/common';
+import { RecordsModule } from '../records/records.module';
 import { AddendumPublisher } from './addendum-publisher.service';
 
 /**
@@ -7,6 +8,7 @@ import { AddendumPublisher } from './addendum-publisher.service';
  * runs its recovery sweep. One publisher for both, so one sweep runs per server process.
  */
 @Module({
+  imports: [RecordsModule],
   providers: [AddendumPublisher],
   exports: [AddendumPublisher],
 })

@@ -16,6 +16,7 @@ import { AuditService } from '../audit/audit.service';
 import type { AuthUser } from '../auth/auth-user';
 import { assertSiteAccess, sitesOf } from '../auth/scope';
 import { CLOCK, type Clock } from '../common/clock.provider';
+import { ServerWriter } from '../records/server-writer';
 import type { StoredRecord } from '../records/stored-record';
 import {
   NameBook,
@@ -39,6 +40,7 @@ export class CountersignService {
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(AuditService) private readonly audit: AuditService,
+    @Inject(ServerWriter) private readonly writer: ServerWriter,
   ) {}
 
   async queue(user: AuthUser): Promise<{ items: CountersignItemView[] }> {
@@ -110,7 +112,7 @@ export class CountersignService {
           `This visit has ${open} open dispute${open === 1 ? '' : 's'}; resolve ${open === 1 ? 'it' : 'them'} on the Review desk before countersigning.`,
         );
       }
-      const written = await applyServerChange(em, {
+      const written = await applyServerChange(this.writer, em, {
         recordId: visitId,
         fields: {
           status: 'countersigned',
@@ -146,7 +148,7 @@ export class CountersignService {
       await this.assertVisitInScope(em, user, visitId);
       // Back to draft so the author can correct it and sign again; the earlier signature stays in
       // the record's history (review_field_value), and the comment travels with the record.
-      const written = await applyServerChange(em, {
+      const written = await applyServerChange(this.writer, em, {
         recordId: visitId,
         fields: { status: 'draft', returnedComment: comment },
         by: user.userId,

@@ -5,6 +5,9 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import type { JsonValue } from '@fuselight/shared';
 import { jsonParam, sqlRows } from '../records/sql';
 import {
+  RECORD_COLUMNS,
+  SERVER_DEVICE,
+  RECORD_COLUMNS_R,
   recordFromRow,
   type StoredCandidate,
   type StoredRecord,
@@ -12,10 +15,7 @@ import {
 } from '../records/stored-record';
 import type { DeviceRef, PersonRef } from '@fuselight/shared';
 
-const RECORD_COLUMNS = `"id", "collection", "site_id", "version"::text as "version", "deleted", "fields", "stamps", "created_at"`;
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-
-export const SERVER_DEVICE = 'server';
 
 export async function recordsByIds(
   em: EntityManager,
@@ -74,9 +74,7 @@ export async function visitsAwaitingCountersign(
   if (siteIds.length === 0) return [];
   const rows = await sqlRows<StoredRecordRow>(
     em,
-    `select ${RECORD_COLUMNS.split(', ')
-      .map((c) => `r.${c}`)
-      .join(', ')}
+    `select ${RECORD_COLUMNS_R}
        ${AWAITING_COUNTERSIGN_FROM_WHERE}
       order by r."fields" ->> 'signedAt' nulls last, r."id"`,
     [jsonParam(siteIds)],

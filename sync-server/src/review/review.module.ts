@@ -1,4 +1,5 @@
 import { Module } from '@nestjs/common';
+import { RecordsModule } from '../records/records.module';
 import { AddendumModule } from './addendum.module';
 import { CountersignService } from './countersign.service';
 import { DisputeDeskService } from './dispute-desk.service';
@@ -14,7 +15,7 @@ import { ReviewController } from './review.controller';
  * commits (AddendumModule).
  */
 @Module({
-  imports: [AddendumModule],
+  imports: [AddendumModule, RecordsModule],
   controllers: [ReviewController],
   providers: [CountersignService, DisputeDeskService, RecordHistoryService],
 })

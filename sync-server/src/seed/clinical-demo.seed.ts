@@ -14,12 +14,11 @@ import {
 } from '@fuselight/shared';
 import type { AuthUser } from '../auth/auth-user';
 import { CLOCK, type Clock } from '../common/clock.provider';
+import { SERVER_DEVICE } from '../records/stored-record';
 import { SyncService } from '../sync/sync.service';
 import { clinicalDemoRecords, type DemoRecord } from './clinical-demo.data';
 import { DEMO_PEOPLE, DEMO_SITES } from './demo-scenario';
 import type { SeedStep } from './seed-step';
-
-const SERVER_DEVICE = 'server';
 
 /** A fixed change id per record: the record id with its own first group. */
 export function demoChangeId(recordId: string): string {

@@ -9,6 +9,17 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import type { PushResult } from '@fuselight/shared';
 import type { AuditService } from '../audit/audit.service';
 import { jsonParam, sqlRows } from '../records/sql';
+import {
+  encodeChangeLog,
+  type ChangeLogEntry,
+  type EncodedAcceptedRow,
+  type EncodedRejectedRow,
+} from './change-log.codec';
+
+export type { ChangeAudit, ChangeLogEntry } from './change-log.codec';
+
+/** The columns of the statement's rows (`x`): those of an encoded row (change-log.codec.ts). */
+type ChangeLogColumn = keyof EncodedAcceptedRow | keyof EncodedRejectedRow;
 
 export async function firstResults(
   em: EntityManager,
@@ -26,35 +37,17 @@ export async function firstResults(
   return found;
 }
 
-/** What the audit trail keeps of an applied change, besides its result. */
-export interface ChangeAudit {
-  /** The audit event's id. */
-  id: string;
-  kind: string;
-  siteId: string;
-  collection: string;
-  /** The fields the change wrote (and `deleted` for a deletion or restore). */
-  fields: string[];
-}
-
-export interface ChangeLogEntry {
-  result: PushResult;
-  recordId: string | null;
-  /** Present for a change that was applied: its audit event is written with its log row. */
-  audit?: ChangeAudit;
-}
-
 /**
  * Logs first results (ids sorted, so two pushes never wait on each other in opposite orders) and,
  * in the same statement, writes the audit event of each change that was applied. Returns the ids
  * it logged; an id missing from the answer was already logged by another push (the caller then
  * rolls the attempt back, audit events included).
  *
- * Each change travels once, as one row of one JSON parameter, and each table takes its columns
- * from it: the stored result and the audit detail are built in SQL from the row's own values, and
- * what most rows share (the audit kind, site and collection) is bound once and filled in where a
- * row carries none (the `x` rows), a row carrying its own only where it differs. The change id goes in as sent (text), so a replay answers with the id
- * exactly as it came.
+ * Each change travels once, as one row of one JSON parameter encoded by change-log.codec.ts, and
+ * each table takes its columns from it: the stored result and the audit detail are built in SQL
+ * from the row's own values, and what most rows share (the audit kind, site and collection) is
+ * bound once and filled in where a row carries none (the `x` rows). The change id goes in as sent
+ * (text), so a replay answers with the id exactly as it came.
  */
 export async function storeResults(
   em: EntityManager,
@@ -64,44 +57,26 @@ export async function storeResults(
   at: Date,
 ): Promise<Set<string>> {
   if (entries.length === 0) return new Set();
-  const common = entries.find((entry) => entry.audit)?.audit;
-  const rows = entries.map(({ result, recordId, audit: facts }) => {
-    if (result.status === 'rejected')
-      return { c: result.changeId, s: result.status, r: recordId, e: result.error };
-    const row: Record<string, unknown> = {
-      c: result.changeId,
-      s: result.status,
-      v: result.version,
-      r: recordId,
-    };
-    if (result.conflicts.length > 0) row.k = result.conflicts;
-    if (facts) {
-      row.a = facts.id;
-      row.f = facts.fields;
-      if (facts.kind !== common?.kind) row.n = facts.kind;
-      if (facts.siteId !== common?.siteId) row.i = facts.siteId;
-      if (facts.collection !== common?.collection) row.o = facts.collection;
-    }
-    return row;
-  });
-  const auditInsert = audit.insertSelectSql({
+  const { shared, rows } = encodeChangeLog(entries);
+  const auditInsert = audit.insertSelectSql<ChangeLogColumn>({
     scope: 'clinical',
     actorId: claimant.userId,
     deviceId: claimant.deviceId,
-    id: 'x."a"',
-    kind: 'x."n"',
-    siteId: 'x."i"',
-    subjectType: 'x."o"',
-    subjectId: 'x."r"::text',
+    rows: 'x',
+    onlyWhere: 'a',
+    id: { column: 'a' },
+    kind: { column: 'n' },
+    siteId: { column: 'i' },
+    subjectType: { column: 'o' },
+    subjectId: { column: 'r', as: 'text' },
     detail: {
-      collection: 'x."o"',
-      changeId: 'x."c"',
-      version: 'x."v"',
-      status: 'x."s"',
-      fields: 'x."f"',
-      conflicts: `coalesce(x."k", '[]'::jsonb)`,
+      collection: { column: 'o' },
+      changeId: { column: 'c' },
+      version: { column: 'v' },
+      status: { column: 's' },
+      fields: { column: 'f' },
+      conflicts: { column: 'k', as: 'json-array' },
     },
-    from: 'from "x" where x."a" is not null',
   });
   const logged = await sqlRows<{ change_id: string }>(
     em,
@@ -127,9 +102,9 @@ export async function storeResults(
      )
      select "change_id" from "logged"`,
     [
-      common?.kind ?? null,
-      common?.siteId ?? null,
-      common?.collection ?? null,
+      shared.kind,
+      shared.siteId,
+      shared.collection,
       jsonParam(rows),
       claimant.userId,
       claimant.deviceId,
@@ -138,4 +113,15 @@ export async function storeResults(
     ],
   );
   return new Set(logged.map((row) => row.change_id));
+}
+
+/** Forgets the change ids answered before `cutoff` (the tombstone horizon); returns how many. */
+export async function pruneChangeLog(em: EntityManager, cutoff: Date): Promise<number> {
+  const [row] = await sqlRows<{ n: string }>(
+    em,
+    `with "gone" as (delete from "sync_change" where "received_at" < ?::timestamptz returning 1)
+     select count(*)::text as "n" from "gone"`,
+    [cutoff.toISOString()],
+  );
+  return Number(row?.n ?? 0);
 }

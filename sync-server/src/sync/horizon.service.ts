@@ -7,7 +7,8 @@ import { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable } from '@nestjs/common';
 import { CLOCK, type Clock } from '../common/clock.provider';
 import { APP_CONFIG, type AppConfig } from '../config/app-config';
-import { sqlRows } from '../records/sql';
+import { RecordStore } from '../records/record-store';
+import { pruneChangeLog } from './change-log';
 
 export interface PruneReport {
   tombstonesRemoved: number;
@@ -22,6 +23,7 @@ export class HorizonService {
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
+    @Inject(RecordStore) private readonly store: RecordStore,
   ) {}
 
   /** Removes tombstones and change ids older than the horizon; run daily by the operator's scheduler. */
@@ -29,27 +31,12 @@ export class HorizonService {
     const now = this.clock.now();
     const cutoff = new Date(now.getTime() - this.config.tombstoneHorizonDays * 24 * 60 * 60 * 1000);
     return this.em.fork().transactional(async (em) => {
-      const [row] = await sqlRows<{ removed: string; horizon: string }>(
-        em,
-        `with "pruned" as (
-           delete from "sync_record" where "deleted" and "updated_at" < ?::timestamptz returning "version"
-         )
-         update "sync_horizon" set
-           "horizon_version" = greatest("horizon_version", coalesce((select max("version") from "pruned"), 0)),
-           "pruned_at" = ?::timestamptz
-         returning (select count(*) from "pruned")::text as "removed", "horizon_version"::text as "horizon"`,
-        [cutoff.toISOString(), now.toISOString()],
-      );
-      const changes = await sqlRows<{ n: string }>(
-        em,
-        `with "gone" as (delete from "sync_change" where "received_at" < ?::timestamptz returning 1)
-         select count(*)::text as "n" from "gone"`,
-        [cutoff.toISOString()],
-      );
+      const pruned = await this.store.pruneTombstones(em, cutoff, now);
+      const changeIdsRemoved = await pruneChangeLog(em, cutoff);
       return {
-        tombstonesRemoved: Number(row?.removed ?? 0),
-        changeIdsRemoved: Number(changes[0]?.n ?? 0),
-        horizonVersion: Number(row?.horizon ?? 0),
+        tombstonesRemoved: pruned.removed,
+        changeIdsRemoved,
+        horizonVersion: pruned.horizonVersion,
         cutoff: cutoff.toISOString(),
       };
     });

@@ -25,7 +25,12 @@ import { describeZodError } from '../common/zod-validation.pipe';
 import { letterPushProblem } from '../letters/letter-push-rule';
 import type { VersionAllocator } from '../records/record-version';
 import type { ConflictInsert, RecordWrite } from '../records/record-store';
-import type { StoredCandidate, StoredRecord, StoredStamp } from '../records/stored-record';
+import {
+  SERVER_DEVICE,
+  type StoredCandidate,
+  type StoredRecord,
+  type StoredStamp,
+} from '../records/stored-record';
 import type { ChangeAudit } from './change-log';
 
 export interface ChangePlan {
@@ -152,7 +157,7 @@ export class PushPlanner {
           openConflicts: [...open.keys()],
         }
       : null;
-    const device = this.user.deviceId ?? 'server';
+    const device = this.user.deviceId ?? SERVER_DEVICE;
     const merged = mergeChange(state, {
       baseVersion: change.baseVersion,
       hlc: change.hlc,

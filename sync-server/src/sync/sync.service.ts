@@ -35,72 +35,48 @@ import type { AuthUser } from '../auth/auth-user';
 import { canReadClinical, sitesOf } from '../auth/scope';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { parseWith } from '../common/zod-validation.pipe';
-import {
-  appendCandidates,
-  insertConflicts,
-  lockRecords,
-  openConflictsOf,
-  upsertRecords,
-} from '../records/record-store';
-import {
-  BEGIN_VERSIONED_WRITE_SQL,
-  CURSOR_EPOCH,
-  SAFE_VERSION_BOUND_SQL,
-  VersionAllocator,
-} from '../records/record-version';
-import { jsonParam, sqlRows } from '../records/sql';
-import { recordFromRow, wireStamps, type StoredRecordRow } from '../records/stored-record';
+import { RecordStore } from '../records/record-store';
+import { CURSOR_EPOCH, VersionAllocator } from '../records/record-version';
+import { sqlRows } from '../records/sql';
+import { wireStamps } from '../records/stored-record';
 import { firstResults, storeResults, type ChangeLogEntry } from './change-log';
 import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
-
-/** Time spent in each step of the last push, for the benchmark's breakdown. */
-export interface PushTimings {
-  envelopeMs: number;
-  beginMs: number;
-  earlierMs: number;
-  lockMs: number;
-  planMs: number;
-  writeMs: number;
-  logMs: number;
-  commitMs: number;
-}
+import {
+  PUSH_OBSERVER,
+  emptyPushTimings,
+  type PushObserver,
+  type PushTimings,
+} from './push-observer';
 
 @Injectable()
 export class SyncService {
   private readonly logger = new Logger('Sync');
-  /** Cumulative step timings (read by the benchmark). */
-  readonly timings: PushTimings = {
-    envelopeMs: 0,
-    beginMs: 0,
-    earlierMs: 0,
-    lockMs: 0,
-    planMs: 0,
-    writeMs: 0,
-    logMs: 0,
-    commitMs: 0,
-  };
 
   constructor(
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(IDS) private readonly ids: IdGenerator,
     @Inject(AuditService) private readonly audit: AuditService,
+    @Inject(RecordStore) private readonly store: RecordStore,
+    @Inject(PUSH_OBSERVER) private readonly observer: PushObserver,
   ) {}
 
   async push(user: AuthUser, body: unknown): Promise<PushResponse> {
+    const timings = emptyPushTimings();
     const received = performance.now();
     const changes = parsePushEnvelope(body);
     const now = this.clock.now();
     const parsed = performance.now();
-    this.timings.envelopeMs += parsed - received;
+    timings.envelopeMs = parsed - received;
     let committing = 0;
     const results = await this.em.fork().transactional(async (em) => {
-      this.timings.beginMs += performance.now() - parsed;
-      const out = await this.pushInTransaction(em, user, changes, now);
+      timings.beginMs = performance.now() - parsed;
+      const out = await this.pushInTransaction(em, user, changes, now, timings);
       committing = performance.now();
       return out;
     });
-    this.timings.commitMs += performance.now() - committing;
+    timings.commitMs = performance.now() - committing;
+    this.observer.pushed(timings);
     return { results, serverTime: now.toISOString() };
   }
 
@@ -109,8 +85,8 @@ export class SyncService {
     user: AuthUser,
     changes: readonly Record<string, unknown>[],
     now: Date,
+    t: PushTimings,
   ): Promise<PushResult[]> {
-    const t = this.timings;
     let mark = performance.now();
     const lap = (key: keyof PushTimings) => {
       const at = performance.now();
@@ -118,8 +94,7 @@ export class SyncService {
       mark = at;
     };
 
-    const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
-    const baseVersion = VersionAllocator.fromRow(begin).base;
+    const baseVersion = (await this.store.beginVersionedWrite(em)).base;
     const changeIds = [...new Set(changes.map((c) => c.changeId as string))];
     const claimant = { userId: user.userId, deviceId: user.deviceId };
 
@@ -141,8 +116,8 @@ export class SyncService {
         }
       });
       const recordIds = PushPlanner.recordIdsOf(toPlan.map((c) => c.raw));
-      const records = await lockRecords(em, recordIds);
-      const open = await openConflictsOf(em, [...records.keys()]);
+      const records = await this.store.lockForUpdate(em, recordIds);
+      const open = await this.store.openConflictsOf(em, [...records.keys()]);
       lap('lockMs');
 
       const makePlanner = () =>
@@ -190,9 +165,9 @@ export class SyncService {
     now: Date,
   ): Promise<void> {
     const batch = collapsePlans(plans);
-    await upsertRecords(em, batch.records, now);
-    await insertConflicts(em, batch.newConflicts, now);
-    await appendCandidates(em, batch.joined);
+    await this.store.upsert(em, batch.records, now);
+    await this.store.insertConflicts(em, batch.newConflicts, now);
+    await this.store.appendCandidates(em, batch.joined);
   }
 
   /** The slow path: each change in its own savepoint; a value the database refuses rejects only it. */
@@ -253,44 +228,20 @@ export class SyncService {
     return this.em.fork().transactional(
       async (em): Promise<PullResponse> => {
         // The first statement fixes the snapshot; the bound and the rows come from the same one.
-        const [head] = await sqlRows<{ bound: string; horizon: string; epoch: number | null }>(
-          em,
-          `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon",
-                  (select d."pull_epoch" from "device" d where d."id" = ?::uuid) as "epoch"`,
-          [user.deviceId],
-        );
-        const bound = Number(head?.bound ?? 0);
-        const horizon = Number(head?.horizon ?? 0);
+        const head = await this.store.pullHead(em, user.deviceId);
+        const { bound, horizon } = head;
         if (after > 0 && after < horizon) return { reset: true, reason: 'horizon' };
         // A cursor handed out before CURSOR_EPOCH may have skipped records: start over once.
-        if (after > 0 && head?.epoch != null && head.epoch < CURSOR_EPOCH) {
+        if (after > 0 && head.epoch !== null && head.epoch < CURSOR_EPOCH) {
           return { reset: true, reason: 'cursor-epoch' };
         }
-        // Ordered and compared as numbers: "sync_record"."version" is the bigint column, never
-        // the text alias of the select list.
-        const rows = await sqlRows<StoredRecordRow>(
-          em,
-          `select r."id", r."collection", r."site_id", r."version"::text as "version", r."deleted", r."fields", r."stamps", r."created_at"
-             from "sync_record" r
-            where r."version" > ? and r."version" < ?
-              and r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
-            order by r."version" limit ?`,
-          [after, bound, jsonParam(sites), limit + 1],
-        );
+        const rows = await this.store.pullPage(em, { after, bound, sites, limit: limit + 1 });
         // A committed change beyond the watermark (an older transaction is still open) is not
         // sent yet, but `more` tells the device to come back for it rather than think it is done.
         const more =
-          rows.length > limit ||
-          (
-            await sqlRows<{ held: boolean }>(
-              em,
-              `select exists (select 1 from "sync_record" where "version" >= ? and "version" > ?
-                 and "site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)) as "held"`,
-              [bound, after, jsonParam(sites)],
-            )
-          )[0]?.held === true;
-        const page = rows.slice(0, limit).map(recordFromRow);
-        const conflicts = await openConflictsOf(
+          rows.length > limit || (await this.store.heldBack(em, { after, bound, sites }));
+        const page = rows.slice(0, limit);
+        const conflicts = await this.store.openConflictsOf(
           em,
           page.map((r) => r.id),
         );

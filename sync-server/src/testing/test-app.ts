@@ -8,6 +8,7 @@ import { inject } from 'vitest';
 import { createApp } from '../app.factory';
 import type { Clock } from '../common/clock.provider';
 import { loadConfig, type AppConfig } from '../config/app-config';
+import type { PushObserver } from '../sync/push-observer';
 import { databaseUrl } from './global-setup';
 
 let counter = 0;
@@ -63,12 +64,12 @@ export interface TestApp {
 }
 
 export async function createTestApp(
-  options: { env?: Record<string, string>; clock?: TestClock } = {},
+  options: { env?: Record<string, string>; clock?: TestClock; pushObserver?: PushObserver } = {},
 ): Promise<TestApp> {
   const db = await createTestDatabase();
   const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.url, ...options.env });
   const clock = options.clock ?? new TestClock();
-  const app = await createApp(config, { clock, logger: false });
+  const app = await createApp(config, { clock, logger: false, pushObserver: options.pushObserver });
   await app.init();
   return {
     app,

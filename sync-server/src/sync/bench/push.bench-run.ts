@@ -6,7 +6,7 @@
 // The throughput is measured against the production server bundle (sync-server/dist/main.cjs,
 // built by `npm run bench:sync`) started as its own process on the same database, as
 // `npm start` runs it. The breakdown comes from the same pushes sent to the app inside this test
-// process, where SyncService's step timings can be read; code run by the test runner pays for
+// process, whose push observer (PUSH_OBSERVER) sums each push's step timings; code run by the test runner pays for
 // its module runner on every imported binding, so that run is slower and its figures are
 // printed beside it.
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -17,7 +17,7 @@ import pg from 'pg';
 import { PROTOCOL_VERSION, SCHEMA_VERSION, type PushResponse } from '@fuselight/shared';
 import { afterAll, beforeAll, it } from 'vitest';
 import { TestClock, type TestApp } from '../../testing/test-app';
-import { SyncService } from '../sync.service';
+import { emptyPushTimings, type PushObserver, type PushTimings } from '../push-observer';
 import {
   SITE_A,
   createSyncTestApp,
@@ -41,6 +41,14 @@ const SERVER_NODE_ARGS = JSON.parse(
 ) as string[];
 
 let t: TestApp;
+/** Step timings of the in-process app's pushes, summed since the last reset. */
+let stepTotals: PushTimings = emptyPushTimings();
+const summingObserver: PushObserver = {
+  pushed(timings) {
+    for (const key of Object.keys(timings) as (keyof PushTimings)[])
+      stepTotals[key] += timings[key];
+  },
+};
 let inProcessUrl: string;
 let bundleUrl: string;
 let bundle: ChildProcess | null = null;
@@ -87,6 +95,7 @@ beforeAll(async () => {
   t = await createSyncTestApp({
     env: { JWT_SECRET: BENCH_JWT_SECRET },
     clock: new TestClock(new Date()),
+    pushObserver: summingObserver,
   });
   const server = t.app.getHttpServer();
   await new Promise<void>((listening) => server.listen(0, '127.0.0.1', listening));
@@ -212,7 +221,7 @@ async function rawRun(clients: number): Promise<number> {
   return (clients * BATCHES_PER_TABLET * BATCH * FIELDS_PER_CHANGE) / seconds;
 }
 
-const STEPS: Record<keyof SyncService['timings'], string> = {
+const STEPS: Record<keyof PushTimings, string> = {
   envelopeMs: 'check the envelope (zod shape)',
   beginMs: 'open the transaction',
   earlierMs: 'read earlier answers (replays)',
@@ -255,7 +264,6 @@ function line(label: string, push: number[], raw: number[]): string {
 }
 
 it('measures push throughput', async () => {
-  const sync = t.app.get(SyncService);
   const one = [await tabletFor(t, 'orthoptist', [SITE_A])];
   const four = await Promise.all([1, 2, 3, 4].map(() => tabletFor(t, 'orthoptist', [SITE_A])));
   await pushRun(bundleUrl, one); // warm-up
@@ -265,12 +273,11 @@ it('measures push throughput', async () => {
   const measured = await rounds(bundleUrl, one, four, ROUNDS);
 
   // The breakdown: one tablet's batches through the app in this process.
-  for (const key of Object.keys(sync.timings) as (keyof typeof sync.timings)[])
-    sync.timings[key] = 0;
+  stepTotals = emptyPushTimings();
   const started = performance.now();
   const inProcess = await pushRun(inProcessUrl, one);
   const oneTabletMs = performance.now() - started;
-  const breakdown = { ...sync.timings };
+  const breakdown = { ...stepTotals };
   const inProcessRaw = await rawRun(1);
 
   const inSteps = Object.values(breakdown).reduce((a, b) => a + b, 0);

@@ -26,7 +26,7 @@ import {
   type TestDevice,
   type TestUser,
 } from '../../testing/identity-factory';
-import { createTestApp, type TestApp, type TestClock } from '../../testing/test-app';
+import { createTestApp, type TestApp } from '../../testing/test-app';
 
 export const SITE_A = '0190c6a0-0000-7000-8000-00000000000a';
 export const SITE_B = '0190c6a0-0000-7000-8000-00000000000b';
@@ -44,7 +44,7 @@ export interface Caller {
 
 /** The real app on a fresh database holding the sites SITE_A and SITE_B. */
 export async function createSyncTestApp(
-  options: { env?: Record<string, string>; clock?: TestClock } = {},
+  options: Parameters<typeof createTestApp>[0] = {},
 ): Promise<TestApp> {
   const t = await createTestApp(options);
   await createSite(t, { id: SITE_A, name: 'Site A' });
