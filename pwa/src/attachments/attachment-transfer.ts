@@ -5,6 +5,7 @@
 // runtime's schedule (sync-runtime.ts: after each sync, so on any screen, after a reconnect and
 // after a reload), not in a screen.
 import { blobOf, type AttachmentDb, type AttachmentFile } from './attachment-db';
+import { errorWording, statusWords } from '../net/api-client';
 
 export { transferStates } from './attachment-db';
 
@@ -48,13 +49,15 @@ function bytesSlice(bytes: ArrayBuffer | ArrayBufferView, start: number, end: nu
   return view.slice(start, end);
 }
 
+/** A refusal in the tablet's one wording (net/api-client.ts). */
 async function messageOf(res: Response): Promise<string> {
+  let body: unknown = null;
   try {
-    const body = (await res.json()) as { message?: string };
-    return body.message ?? `the server answered ${res.status}`;
+    body = await res.json();
   } catch {
-    return `the server answered ${res.status}`;
+    // No JSON: the status says it.
   }
+  return errorWording(res.status, body);
 }
 
 async function uploadOne(file: AttachmentFile, options: TransferOptions): Promise<UploadOutcome> {
@@ -75,7 +78,7 @@ async function uploadOne(file: AttachmentFile, options: TransferOptions): Promis
     return {
       attachmentId: id,
       status: head.status >= 500 ? 'waiting' : 'refused',
-      reason: `the server answered ${head.status}`,
+      reason: statusWords(head.status),
     };
   if (head.headers.get('upload-complete') === '?1') return { attachmentId: id, status: 'uploaded' };
   let offset = Number(head.headers.get('upload-offset') ?? '0');

@@ -185,7 +185,7 @@ describe('attachment uploads on the sync schedule', () => {
     await getSyncEngine()!.afterSyncSettled();
     const transfer = (await files.transfers.get(attachmentId))!;
     expect(transfer.state).toBe('waiting');
-    expect(transfer.lastError).toBe('the server answered 503');
+    expect(transfer.lastError).toBe('The clinic server had a problem; try again shortly.');
     expect(await files.files.get(attachmentId)).toBeDefined();
   });
 });
