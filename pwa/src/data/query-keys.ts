@@ -1,5 +1,5 @@
-// The one TanStack Query key factory of the tablet (style.md rule 3). Keys nest so that
-// invalidating `records.collection(c)` refreshes every query of that collection.
+// The one TanStack Query key factory of the tablet (docs/conventions.md, boundary 3). Keys nest so
+// that invalidating `records.collection(c)` refreshes every query of that collection.
 import type { CollectionName } from '@fuselight/shared';
 import type { ListFilter, PlacementField } from './records-repository';
 

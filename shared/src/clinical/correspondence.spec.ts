@@ -3,7 +3,7 @@ import { CLINICAL_CAUTION } from './caution';
 import { ClinicalInputError } from './clinical-input.error';
 import { classifyCorrespondence } from './correspondence';
 
-// Classes per clinical-reference.md: angle of anomaly = objective − subjective (Millodot);
+// Classes per docs/clinical-reference.md: angle of anomaly = objective − subjective (Millodot);
 // NRC / harmonious / unharmonious ARC (Stedman's); default tolerance 5° (one teaching source).
 describe('classifyCorrespondence', () => {
   it('calls matching angles NRC', () => {

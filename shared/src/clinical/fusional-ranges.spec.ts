@@ -13,7 +13,7 @@ import {
 
 describe('fusionalRangeAmplitudes', () => {
   it('measures divergence and convergence from the subjective angle, not from zero', () => {
-    // Amplitudes start at the subjective angle (clinical-reference.md, "Fusional ranges").
+    // Amplitudes start at the subjective angle (docs/clinical-reference.md, "Fusional ranges").
     const { amplitudes } = fusionalRangeAmplitudes({
       subjectiveAngleDeg: 4,
       divergence: { break: -2, recovery: 1 },
@@ -130,7 +130,7 @@ describe('compareWithNorms on the amblyoscope table', () => {
   });
 
   it('labels a comparison against a [memory] value as such', () => {
-    // Divergence about 4–6° is [memory] in clinical-reference.md.
+    // Divergence about 4–6° is [memory] in docs/clinical-reference.md.
     const report = compareWithNorms(
       amblyoscope({ subjectiveAngleDeg: 0, divergence: { break: -5 } }),
     );
@@ -232,7 +232,8 @@ describe('norms tables as data', () => {
         if (row.evidence === 'memory') expect(row.citation).toMatch(/\[memory\]/);
       }
     }
-    // Divergence, vertical and cyclofusion on the amblyoscope are [memory] (clinical-reference.md).
+    // Divergence, vertical and cyclofusion on the amblyoscope are [memory]
+    // (docs/clinical-reference.md).
     expect(
       AMBLYOSCOPE_FUSIONAL_NORMS.rows
         .filter((r) => r.evidence === 'memory')

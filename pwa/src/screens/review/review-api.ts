@@ -166,7 +166,7 @@ export class ReviewApi {
   }
 }
 
-/** One query-key factory for the desk (style.md, boundary 3). */
+/** One query-key factory for the desk (docs/conventions.md, boundary 3). */
 export const reviewKeys = {
   all: ['review'] as const,
   summary: () => [...reviewKeys.all, 'summary'] as const,
