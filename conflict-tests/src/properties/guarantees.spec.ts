@@ -1,5 +1,5 @@
-// fast-check properties over random edit schedules and network faults, asserting guarantees 1–5
-// of sync-protocol.md with three simulated tablets (real engine, real server, real PostgreSQL).
+// fast-check properties over random edit schedules and network faults, asserting guarantees 1–5 of
+// docs/sync-protocol.md with three simulated tablets (real engine, real server, real PostgreSQL).
 import { jsonEqual, type ConflictItem, type PushResult } from '@fuselight/shared';
 import type { OutboxEntry } from '@pwa/data/db';
 import type { TestDevice, TestUser } from '@server/testing/identity-factory';

@@ -1,5 +1,5 @@
-// Multi-tablet scenarios of sync-protocol.md, each read as a table of steps: the real PWA engine
-// on fake-indexeddb, the real server and PostgreSQL, a network that misbehaves on purpose.
+// Multi-tablet scenarios of docs/sync-protocol.md, each read as a table of steps: the real PWA
+// engine on fake-indexeddb, the real server and PostgreSQL, a network that misbehaves on purpose.
 import { SCHEMA_VERSION } from '@fuselight/shared';
 import type { TestUser } from '@server/testing/identity-factory';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

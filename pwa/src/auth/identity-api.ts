@@ -2,7 +2,15 @@
 // client (net/api-client.ts: an injectable fetch, one error wording). Errors carry the server's
 // words and its `erase` flag (a revoked tablet); nothing here logs a token or a secret.
 import {
+  adminUserListSchema,
+  adminUserSchema,
+  fleetDeviceListSchema,
+  fleetDeviceSchema,
+  invitedPersonSchema,
   sessionUserSchema,
+  type AdminUser,
+  type FleetDevice,
+  type InvitedPerson,
   type LoginRequest,
   type Role,
   type SessionUser,
@@ -31,6 +39,32 @@ export type Colleague = z.infer<typeof colleagueSchema>;
 
 export { ApiError, NetworkError, type FetchLike } from '../net/api-client';
 
+/**
+ * The server answered, but not in the shape this app reads (a server of another version, or a
+ * proxy's page): the message names the route and the first field that is wrong.
+ */
+export class UnexpectedAnswerError extends Error {
+  constructor(
+    readonly route: string,
+    readonly problem: string,
+  ) {
+    super(
+      `The clinic server’s answer to ${route} is not what this app expects (${problem}); the app or the server may need updating.`,
+    );
+    this.name = 'UnexpectedAnswerError';
+  }
+}
+
+/** Checks an answer with its shared schema; a bad one is an UnexpectedAnswerError. */
+export function parseAnswer<T>(schema: z.ZodType<T>, body: unknown, route: string): T {
+  const result = schema.safeParse(body);
+  if (result.success) return result.data;
+  const issue = result.error.issues[0];
+  const path = issue?.path.map(String).join('.') ?? '';
+  const problem = issue ? (path ? `${path}: ${issue.message}` : issue.message) : 'unreadable';
+  throw new UnexpectedAnswerError(route, problem);
+}
+
 export interface SignInResponse {
   accessToken: string;
   refreshToken: string;
@@ -50,27 +84,11 @@ export interface DeviceStatus {
   maxPinAttempts?: number;
 }
 
-export interface AdminUser {
-  id: string;
-  name: string;
-  email: string;
-  role: Role;
-  siteIds: string[];
-  active: boolean;
-  needsCountersign?: boolean;
-  mustChangePassword?: boolean;
-  lastSignInAt?: string | null;
-}
 export interface NewPerson {
   name: string;
   email: string;
   role: Role;
   siteIds: string[];
-}
-/** An invitation answers with the person and their one-time initial password. */
-export interface InvitedPerson {
-  user: AdminUser;
-  initialPassword: string;
 }
 export type PersonChange = Partial<
   Pick<AdminUser, 'name' | 'role' | 'siteIds' | 'active' | 'needsCountersign'>
@@ -91,17 +109,6 @@ export interface NewSite {
   timeZone?: string;
 }
 
-export interface FleetDevice {
-  id: string;
-  label: string;
-  state: 'pending' | 'active' | 'retired' | 'revoked';
-  siteIds: string[];
-  lastSeenAt: string | null;
-  appVersion: string | null;
-  outboxSize: number | null;
-  enrolledAt?: string | null;
-  enrolmentExpiresAt?: string | null;
-}
 export interface RegisteredDevice {
   deviceId: string;
   enrolmentCode: string;
@@ -175,16 +182,19 @@ export class IdentityApi {
   }
 
   async listPeople(token: string): Promise<AdminUser[]> {
-    return itemsOf<AdminUser>(await this.request('GET', '/api/admin/users', { token }));
+    const body = await this.request('GET', '/api/admin/users', { token });
+    return parseAnswer(adminUserListSchema, body, 'GET /api/admin/users');
   }
-  invitePerson(token: string, person: NewPerson): Promise<InvitedPerson> {
-    return this.request('POST', '/api/admin/users', { token, body: person });
+  async invitePerson(token: string, person: NewPerson): Promise<InvitedPerson> {
+    const body = await this.request('POST', '/api/admin/users', { token, body: person });
+    return parseAnswer(invitedPersonSchema, body, 'POST /api/admin/users');
   }
-  changePerson(token: string, id: string, change: PersonChange): Promise<AdminUser> {
-    return this.request('PATCH', `/api/admin/users/${encodeURIComponent(id)}`, {
+  async changePerson(token: string, id: string, change: PersonChange): Promise<AdminUser> {
+    const body = await this.request('PATCH', `/api/admin/users/${encodeURIComponent(id)}`, {
       token,
       body: change,
     });
+    return parseAnswer(adminUserSchema, body, 'PATCH /api/admin/users/:id');
   }
 
   async listSites(token: string): Promise<AdminSite[]> {
@@ -201,7 +211,8 @@ export class IdentityApi {
   }
 
   async listDevices(token: string): Promise<FleetDevice[]> {
-    return itemsOf<FleetDevice>(await this.request('GET', '/api/admin/devices', { token }));
+    const body = await this.request('GET', '/api/admin/devices', { token });
+    return parseAnswer(fleetDeviceListSchema, body, 'GET /api/admin/devices');
   }
   registerDevice(
     token: string,
@@ -209,11 +220,15 @@ export class IdentityApi {
   ): Promise<RegisteredDevice> {
     return this.request('POST', '/api/admin/devices', { token, body: device });
   }
-  revokeDevice(token: string, id: string): Promise<unknown> {
-    return this.request('POST', `/api/admin/devices/${encodeURIComponent(id)}/revoke`, { token });
+  async revokeDevice(token: string, id: string): Promise<FleetDevice> {
+    const path = `/api/admin/devices/${encodeURIComponent(id)}/revoke`;
+    const body = await this.request('POST', path, { token });
+    return parseAnswer(fleetDeviceSchema, body, 'POST /api/admin/devices/:id/revoke');
   }
-  retireDevice(token: string, id: string): Promise<unknown> {
-    return this.request('POST', `/api/admin/devices/${encodeURIComponent(id)}/retire`, { token });
+  async retireDevice(token: string, id: string): Promise<FleetDevice> {
+    const path = `/api/admin/devices/${encodeURIComponent(id)}/retire`;
+    const body = await this.request('POST', path, { token });
+    return parseAnswer(fleetDeviceSchema, body, 'POST /api/admin/devices/:id/retire');
   }
 }
 

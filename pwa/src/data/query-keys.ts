@@ -1,4 +1,4 @@
-// The one TanStack Query key factory of the tablet (style.md rule 3): the records on the tablet,
+// The one TanStack Query key factory of the tablet (docs/conventions.md, boundary 3): the records on the tablet,
 // the Outbox, the charting screens' domain queries, and the clinic server's Review desk and
 // identity (people, sites, Fleet) calls. Keys nest, so a key's prefix names a group of queries.
 //

@@ -1,6 +1,6 @@
 // Every local edit goes through here: it is validated with the shared schemas, then the record,
 // its Outbox entry and the device clock are written in ONE Dexie transaction, so an edit is never
-// on screen without its entry (sync-protocol.md guarantee 5); the entry and the record's pending
+// on screen without its entry (docs/sync-protocol.md guarantee 5); the entry and the record's pending
 // marks are written by outbox-transitions.ts. The patient search reads the
 // database's in-memory patient directory, which follows every committed write by itself.
 import {

@@ -3,7 +3,7 @@ import { accommodationAmplitude } from './accommodation';
 import { ClinicalInputError } from './clinical-input.error';
 
 describe('accommodationAmplitude', () => {
-  // Hofstetter (1950) worked values, clinical-reference.md.
+  // Hofstetter (1950) worked values, docs/clinical-reference.md.
   it.each([
     [10, 12.5, 15.5, 21.0], // Hofstetter
     [20, 10, 12.5, 17], // Hofstetter

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { checkBsvGrades } from './bsv-grades';
 import { ClinicalInputError } from './clinical-input.error';
 
-// The hierarchy SP → fusion → stereopsis is from clinical-reference.md ("The assessment").
+// The hierarchy SP → fusion → stereopsis is from docs/clinical-reference.md ("The assessment").
 describe('checkBsvGrades', () => {
   it('accepts a chart where every present grade rests on present ones below', () => {
     expect(

@@ -1,5 +1,5 @@
 // Binocular single vision is a hierarchy: simultaneous perception, then fusion, then stereopsis.
-// A grade cannot be present while one below it is absent (clinical-reference.md, "The
+// A grade cannot be present while one below it is absent (docs/clinical-reference.md, "The
 // assessment"); the chart must say so at the point of entry.
 import { ClinicalInputError } from './clinical-input.error';
 

@@ -1,11 +1,11 @@
 // Retinal correspondence from the objective and subjective angles on the amblyoscope.
 // Angle of anomaly = objective − subjective (Millodot, "angle of anomaly"); NRC, harmonious and
-// unharmonious ARC as defined in Stedman's (see clinical-reference.md). A result that fits no
+// unharmonious ARC as defined in Stedman's (see docs/clinical-reference.md). A result that fits no
 // class is flagged for re-measurement instead of being forced into one.
 import { CLINICAL_CAUTION } from './caution';
 import { oneDecimal, requireAngleDeg, requireNonNegative } from './validate';
 
-/** Clinic setting; "a difference over 5° suggests ARC" (one teaching source). */
+/** Clinic setting; "a difference over 5° suggests ARC" (common practice, [memory]; docs/clinical-reference.md). */
 export const DEFAULT_CORRESPONDENCE_TOLERANCE_DEG = 5;
 
 export type CorrespondenceResult = 'NRC' | 'harmonious ARC' | 'unharmonious ARC' | 'inconsistent';

@@ -2,7 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { ClinicalInputError } from './clinical-input.error';
 import { describeDeviation } from './deviation';
 
-// Sign conventions from clinical-reference.md; Δ values by Millodot's definition Δ = 100·tan θ.
+// Sign conventions from docs/clinical-reference.md; Δ values by Millodot's definition,
+// Δ = 100·tan θ.
 describe('describeDeviation', () => {
   it('calls a convergent angle eso and gives both units', () => {
     const d = describeDeviation({ horizontalDeg: 10, eye: 'left' });

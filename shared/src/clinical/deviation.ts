@@ -1,4 +1,4 @@
-// The trade's words for a measured deviation, from the stored signs (clinical-reference.md,
+// The trade's words for a measured deviation, from the stored signs (docs/clinical-reference.md,
 // "Conventions"): horizontal + convergent (eso) / − divergent (exo), vertical + right eye higher
 // (R/L) / − left eye higher (L/R), torsion + excyclo / − incyclo. Horizontal and vertical
 // magnitudes are shown in both degrees and Δ by the exact prism dioptre definition (Δ = 100·tan θ).

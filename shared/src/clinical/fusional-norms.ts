@@ -1,5 +1,5 @@
 // Default norms for fusional ranges, kept as data a clinic can replace. Every row names its
-// source and how firm it is (clinical-reference.md, "Fusional vergence norms"): published,
+// source and how firm it is (docs/clinical-reference.md, "Fusional vergence norms"): published,
 // a teaching source, or a value recalled from memory and not confirmed against a publication.
 import { z } from 'zod';
 import { ClinicalInputError } from './clinical-input.error';

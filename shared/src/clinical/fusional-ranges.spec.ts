@@ -143,7 +143,7 @@ describe('compareWithNorms on the amblyoscope table', () => {
   });
 
   it('labels a comparison against a [memory] value as such', () => {
-    // Divergence about 4–6° is [memory] in clinical-reference.md.
+    // Divergence about 4–6° is [memory] in docs/clinical-reference.md.
     const report = compareWithNorms(
       amblyoscope({ subjectiveAngleDeg: 0, divergence: { break: -5 } }),
     );
@@ -246,7 +246,8 @@ describe('norms tables as data', () => {
         if (row.evidence === 'memory') expect(row.citation).toMatch(/\[memory\]/);
       }
     }
-    // Divergence, vertical and cyclofusion on the amblyoscope are [memory] (clinical-reference.md).
+    // Divergence, vertical and cyclofusion on the amblyoscope are [memory]
+    // (docs/clinical-reference.md).
     expect(
       AMBLYOSCOPE_FUSIONAL_NORMS.rows
         .filter((r) => r.evidence === 'memory')

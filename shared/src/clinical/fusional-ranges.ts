@@ -1,5 +1,5 @@
-// Fusional ranges on the amblyoscope (clinical-reference.md, "The assessment"): ranges start at
-// the subjective angle; the product stores break and recovery positions as read on the scales
+// Fusional ranges on the amblyoscope (docs/clinical-reference.md, "The assessment"): ranges start
+// at the subjective angle; the product stores break and recovery positions as read on the scales
 // and derives amplitudes from them, then compares them with a replaceable, cited norms table.
 import { CLINICAL_CAUTION } from './caution';
 import { ClinicalInputError } from './clinical-input.error';

@@ -1,4 +1,4 @@
-// Near point of convergence judged against cited cut-offs (clinical-reference.md):
+// Near point of convergence judged against cited cut-offs (docs/clinical-reference.md):
 // adults — break beyond 5 cm or recovery beyond 7 cm is abnormal (Scheiman et al., Optom Vis Sci
 // 2003;80(3)); children — break 3.3 ± 2.6 cm in kindergarten to 4.3 ± 3.4 cm in grade 6 (Optom
 // Vis Sci 1998, elementary schoolchildren norms). The child source gives mean ± SD, not a

@@ -12,7 +12,7 @@ import {
 
 describe('degrees to prism dioptres', () => {
   // Check values: Δ = 100·tan θ, Millodot, Dictionary of Optometry, "prism dioptre"
-  // (tabled in clinical-reference.md to three decimals).
+  // (tabled in docs/clinical-reference.md to three decimals).
   it.each([
     [1, 1.746], // Millodot
     [5, 8.749], // Millodot
@@ -29,7 +29,7 @@ describe('degrees to prism dioptres', () => {
     expect(degreesToPrismDioptres(-10)).toBeCloseTo(-17.633, 3); // Millodot, sign per convention
   });
 
-  // Reverse check values, Millodot (clinical-reference.md).
+  // Reverse check values, Millodot (docs/clinical-reference.md).
   it.each([
     [10, 5.711], // Millodot
     [20, 11.31], // Millodot

@@ -5,7 +5,8 @@ import { stereoDisparityArcsec, stereoDisparityExactArcsec } from './stereo-disp
 
 describe('stereoDisparityArcsec', () => {
   it('gives about 84″ for a 1 mm step at 40 cm with a 6.5 cm interocular distance', () => {
-    // Worked example, clinical-reference.md ("Stereoacuity"): a = 6.5 cm, z = 40 cm, Δz = 1 mm.
+    // Worked example, docs/clinical-reference.md ("Stereoacuity"):
+    // a = 6.5 cm, z = 40 cm, Δz = 1 mm.
     const d = stereoDisparityArcsec({ interocularMm: 65, viewingDistanceMm: 400, depthMm: 1 });
     expect(Math.round(d)).toBe(84);
   });

@@ -1,4 +1,4 @@
-// Binocular disparity of a depth step (clinical-reference.md, "Stereoacuity"): the small-angle
+// Binocular disparity of a depth step (docs/clinical-reference.md, "Stereoacuity"): the small-angle
 // form η ≈ a·Δz / z² radians for interocular distance a, viewing distance z and depth difference
 // Δz, × 206,264.8 for seconds of arc. The exact form (difference of the two vergence angles) is
 // offered for large depth steps where the small-angle form drifts.

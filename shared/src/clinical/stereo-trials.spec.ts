@@ -35,7 +35,7 @@ function trials(correct: number, wrong: number): StereoTrial[] {
 }
 
 describe('stereoChanceTail', () => {
-  // Exact values from clinical-reference.md ("Forced-choice stereo trials", exact arithmetic).
+  // Exact values from docs/clinical-reference.md ("Forced-choice stereo trials", exact arithmetic).
   it.each([
     [5, 5, 0.03125],
     [6, 6, 0.015625],
@@ -136,12 +136,12 @@ describe('stereoVerdict', () => {
   it('reports stereopsis present for five right of five', () => {
     const v = stereoVerdict(trials(5, 0));
     expect(v).toMatchObject({ correct: 5, total: 5, verdict: 'present', moreCorrectNeeded: 0 });
-    expect(v.chanceTail).toBe(0.03125); // clinical-reference.md, P(X ≥ 5 | 5)
+    expect(v.chanceTail).toBe(0.03125); // docs/clinical-reference.md, P(X ≥ 5 | 5)
   });
 
   it('does not report stereopsis for eight right of ten and says one more settles it', () => {
     const v = stereoVerdict(trials(8, 2));
-    expect(v.chanceTail).toBe(0.0546875); // clinical-reference.md, P(X ≥ 8 | 10)
+    expect(v.chanceTail).toBe(0.0546875); // docs/clinical-reference.md, P(X ≥ 8 | 10)
     expect(v.verdict).toBe('not shown');
     // P(X ≥ 9 | 11) = (C(11,9)+C(11,10)+C(11,11)) / 2048 = 67/2048 ≈ 0.0327 < 0.05.
     expect(stereoChanceTail(9, 11)).toBe(67 / 2048);
@@ -161,14 +161,14 @@ describe('stereoVerdict', () => {
   });
 
   it('needs five straight right answers from a standing start', () => {
-    // P(X ≥ 4 | 4) = 1/16 = 0.0625 ≥ 0.05; P(X ≥ 5 | 5) = 0.03125 (clinical-reference.md).
+    // P(X ≥ 4 | 4) = 1/16 = 0.0625 ≥ 0.05; P(X ≥ 5 | 5) = 0.03125 (docs/clinical-reference.md).
     expect(stereoVerdict([]).moreCorrectNeeded).toBe(5);
   });
 
   it('uses a stricter clinic threshold when one is set', () => {
     const v = stereoVerdict(trials(5, 0), { alpha: 0.01 });
     expect(v.verdict).toBe('not shown');
-    // P(X ≥ 7 | 7) = 1/128 ≈ 0.0078 < 0.01, P(X ≥ 6 | 6) = 0.015625 (clinical-reference.md).
+    // P(X ≥ 7 | 7) = 1/128 ≈ 0.0078 < 0.01, P(X ≥ 6 | 6) = 0.015625 (docs/clinical-reference.md).
     expect(v.moreCorrectNeeded).toBe(2);
   });
 

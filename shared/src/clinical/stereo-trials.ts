@@ -1,4 +1,4 @@
-// Gross stereopsis on the amblyoscope as forced-choice trials (clinical-reference.md,
+// Gross stereopsis on the amblyoscope as forced-choice trials (docs/clinical-reference.md,
 // "Forced-choice stereo trials"): each trial has chance ½ of a right answer by guessing, so the
 // chance of k or more right out of n is the Binomial(n, ½) upper tail, computed here exactly
 // with integer arithmetic (Σ C(n, i) for i ≥ k, over 2ⁿ).

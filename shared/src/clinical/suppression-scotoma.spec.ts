@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { ClinicalInputError } from './clinical-input.error';
 import { suppressionScotomaRegion } from './suppression-scotoma';
 
-// Method per clinical-reference.md ("Suppression scotoma"); geometry is plain subtraction from
+// Method per docs/clinical-reference.md ("Suppression scotoma"); geometry is plain subtraction from
 // the objective angle, so these are worked examples, not published check values.
 describe('suppressionScotomaRegion', () => {
   it('centres the region on the fovea at the objective angle', () => {

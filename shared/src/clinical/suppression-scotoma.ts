@@ -1,8 +1,8 @@
-// A suppression scotoma mapped on the amblyoscope (clinical-reference.md, "The assessment"): with
-// SP slides at the objective angle, the tube before the deviating eye is moved either side until
-// the picture is lost; those positions bound the scotoma horizontally, and the vertical controls
-// bound it vertically. This turns the recorded positions into a region on a field map centred on
-// the fovea (the objective angle), in degrees, ready for an SVG.
+// A suppression scotoma mapped on the amblyoscope (docs/clinical-reference.md, "The assessment"):
+// with SP slides at the objective angle, the tube before the deviating eye is moved either side
+// until the picture is lost; those positions bound the scotoma horizontally, and the vertical
+// controls bound it vertically. This turns the recorded positions into a region on a field map
+// centred on the fovea (the objective angle), in degrees, ready for an SVG.
 import { ClinicalInputError } from './clinical-input.error';
 import { requireAngleDeg } from './validate';
 

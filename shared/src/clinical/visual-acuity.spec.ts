@@ -28,13 +28,14 @@ describe('Snellen and decimal to logMAR', () => {
   });
 
   it('reads 20/25 as 0.097 exactly, whose chart line is 0.1', () => {
-    // clinical-reference.md, "Exact vs nominal": 20/25 is 0.097 exactly and 0.1 as a chart line.
+    // docs/clinical-reference.md, "Exact vs nominal": 20/25 is 0.097 exactly, and 0.1 as a
+    // chart line.
     expect(snellenToLogMAR('20/25')).toBeCloseTo(0.097, 3);
     expect(nominalLineLogMAR(snellenToLogMAR('20/25'))).toBe(0.1);
   });
 
   it('reads 6/12 and 20/40 as the same acuity, log10 2 ≈ 0.301', () => {
-    // logMAR = −log10(numerator ÷ denominator), clinical-reference.md.
+    // logMAR = −log10(numerator ÷ denominator), docs/clinical-reference.md.
     expect(snellenToLogMAR('6/12')).toBeCloseTo(0.30103, 5);
     expect(snellenToLogMAR(' 20 / 40 ')).toBeCloseTo(snellenToLogMAR('6/12'), 12);
   });
@@ -63,7 +64,7 @@ describe('Snellen and decimal to logMAR', () => {
 });
 
 describe('ETDRS letters', () => {
-  // ETDRS letter formula logMAR = 1.7 − 0.02·letters (clinical-reference.md).
+  // ETDRS letter formula logMAR = 1.7 − 0.02·letters (docs/clinical-reference.md).
   it.each([
     [85, 0.0], // ETDRS formula
     [70, 0.3], // ETDRS formula

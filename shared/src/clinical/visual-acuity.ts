@@ -1,4 +1,4 @@
-// Visual acuity in logMAR (clinical-reference.md, "Visual acuity"): logMAR = −log10(decimal),
+// Visual acuity in logMAR (docs/clinical-reference.md, "Visual acuity"): logMAR = −log10(decimal),
 // decimal = Snellen numerator ÷ denominator, one chart line = 0.1 log unit; ETDRS letters
 // logMAR = 1.7 − 0.02·letters; averages are taken in logMAR (Holladay, J Cataract Refract Surg
 // 2004). Equivalents follow DICOM PS3.17 Annex RR (e.g. 1.0 = 20/20 = 6/6 = 0.0).

@@ -1,6 +1,6 @@
 // Sections captured at the major amblyoscope. Each independently measured fact is its own field
 // so that field-level merge keeps both when two tablets edit different ones.
-// Sign conventions (clinical-reference.md): horizontal + convergent (eso), − divergent (exo);
+// Sign conventions (docs/clinical-reference.md): horizontal + convergent (eso), − divergent (exo);
 // vertical in Δ as read on the vertical scale, + right eye higher; torsion + excyclo, − incyclo.
 import { z } from 'zod';
 import {

@@ -1,5 +1,5 @@
-// Record schemas, their registry and validation, and the sync and identity wire schemas. The field
-// builders stay internal; screens read labels and units through `fieldMeta`.
+// Record schemas, their registry and validation, and the sync, identity and admin wire schemas.
+// The field builders stay internal; screens read labels and units through `fieldMeta`.
 export {
   type FieldKind,
   type FieldMeta,
@@ -25,5 +25,6 @@ export * from './addendum.schema';
 export * from './registry';
 export * from './sync-wire.schema';
 export * from './identity.schema';
+export * from './admin-views.schema';
 export * from './review-views';
 export * from './section-records';

@@ -1,4 +1,4 @@
-// Wire format of sync protocol v1 (sync-protocol.md): push, pull and conflict resolution.
+// Wire format of sync protocol v1 (docs/sync-protocol.md): push, pull and conflict resolution.
 //
 // Two strengths of push schema, because the protocol treats problems differently:
 // - `pushRequestShapeSchema` decides the 400: a body that is not this shape, or a change without

@@ -1,4 +1,4 @@
-// The hybrid logical clock every device keeps (sync-protocol.md, "Hybrid logical clock").
+// The hybrid logical clock every device keeps (docs/sync-protocol.md, "Hybrid logical clock").
 // Source: S. Kulkarni, M. Demirbas, D. Madappa, B. Avva, M. Leone, "Logical Physical Clocks",
 // OPODIS 2014 (the HLC send/local and receive rules, Fig. 5). Pure: the caller passes the time.
 //

@@ -1,5 +1,5 @@
-// The field-level merge rule both ends share (sync-protocol.md, "Field-level merge"). The server
-// calls it inside the transaction that holds the record; the conflict tests call it as the
+// The field-level merge rule both ends share (docs/sync-protocol.md, "Field-level merge"). The
+// server calls it inside the transaction that holds the record; the conflict tests call it as the
 // oracle. Pure: no I/O, no clock; versions and stamps come in as arguments.
 import { compareStamps } from './hlc';
 

@@ -1,5 +1,6 @@
-// Default deny (style.md): every route needs a signed-in user unless marked @Public();
-// @Roles(...) narrows a route to the named roles; @CurrentUser() hands the caller to a handler.
+// Default deny (docs/conventions.md, boundary 5): every route needs a signed-in user unless marked
+// @Public(); @Roles(...) narrows a route to the named roles; @CurrentUser() hands the caller to a
+// handler.
 import { SetMetadata, createParamDecorator, type ExecutionContext } from '@nestjs/common';
 import type { Role } from '@fuselight/shared';
 import type { AuthUser } from './auth-user';

@@ -1,7 +1,7 @@
-// Every identity route × every kind of caller, with the status each must get (sync-protocol.md,
-// Guarantees 6: no token, an expired token or a revoked tablet's token gets 401; a role not
-// allowed on a route gets 403). The last test checks the table covers every such route in the
-// OpenAPI document, so a new route cannot slip in without a row.
+// Every identity route × every kind of caller, with the status each must get
+// (docs/sync-protocol.md, Guarantees 6: no token, an expired token or a revoked tablet's token gets
+// 401; a role not allowed on a route gets 403). The last test checks the table covers every such
+// route in the OpenAPI document, so a new route cannot slip in without a row.
 import { JwtService } from '@nestjs/jwt';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

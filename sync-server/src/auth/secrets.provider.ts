@@ -1,5 +1,6 @@
-// Crypto is injected like the clock (style.md): password hashing, random secrets and the one-way
-// hashes under which refresh tokens, device secrets and enrolment codes are stored.
+// Crypto is injected like the clock (docs/conventions.md, boundary 4): password hashing, random
+// secrets and the one-way hashes under which refresh tokens, device secrets and enrolment codes
+// are stored.
 import { createHash, randomBytes, randomInt } from 'node:crypto';
 import { hash, verify } from '@node-rs/argon2';
 

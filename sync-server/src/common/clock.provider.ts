@@ -1,4 +1,5 @@
-// Time and ids are injected so tests can control them (style.md: clock, ids and crypto are providers).
+// Time and ids are injected so tests can control them (docs/conventions.md, boundary 4: the clock,
+// ids and crypto are providers).
 import { randomFillSync } from 'node:crypto';
 import { v7 as uuidv7 } from 'uuid';
 

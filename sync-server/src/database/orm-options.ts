@@ -4,7 +4,7 @@ import { migrationsList } from '../migrations/index';
 
 /**
  * MikroORM options shared by the server, the migrate command and the tests. Timeouts bound how
- * long a stuck transaction can hold back pull cursors (sync-protocol.md, guarantee 4).
+ * long a stuck transaction can hold back pull cursors (docs/sync-protocol.md, guarantee 4).
  */
 export function ormOptions(databaseUrl: string, extra: Partial<Options> = {}): Options {
   return defineConfig({

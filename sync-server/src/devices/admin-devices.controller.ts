@@ -1,11 +1,12 @@
 import { Body, Controller, Get, HttpCode, Inject, Param, Post } from '@nestjs/common';
 import { ApiOperation, ApiParam, ApiResponse, ApiTags } from '@nestjs/swagger';
-import { ApiSignedIn, ApiZodBody } from '../auth/api-docs';
+import { fleetDeviceListSchema, fleetDeviceSchema, type FleetDevice } from '@fuselight/shared';
+import { ApiSignedIn, ApiZodBody, ApiZodResponse } from '../auth/api-docs';
 import { CurrentUser, Roles } from '../auth/auth.decorators';
 import type { AuthUser } from '../auth/auth-user';
 import { ZodValidationPipe, zodDto } from '../common/zod-validation.pipe';
 import { deviceIdParamSchema, registerDeviceSchema } from './devices.schemas';
-import { DevicesService, type DeviceView, type EnrolmentTicket } from './devices.service';
+import { DevicesService, type EnrolmentTicket } from './devices.service';
 
 class RegisterDeviceBody extends zodDto(registerDeviceSchema) {}
 const DeviceId = new ZodValidationPipe(deviceIdParamSchema);
@@ -34,8 +35,12 @@ export class AdminDevicesController {
   @ApiOperation({
     summary: 'The Fleet: every tablet with its state, last contact, app version and outbox size',
   })
-  @ApiResponse({ status: 200, description: 'DeviceView[]' })
-  list(): Promise<DeviceView[]> {
+  @ApiZodResponse(
+    200,
+    fleetDeviceListSchema,
+    'Every tablet, as fleetDeviceSchema of @fuselight/shared',
+  )
+  list(): Promise<FleetDevice[]> {
     return this.devices.list();
   }
 
@@ -54,9 +59,9 @@ export class AdminDevicesController {
   @HttpCode(200)
   @ApiOperation({ summary: 'Revoke a lost or stolen tablet: refused at once and told to erase' })
   @ApiParam({ name: 'id', format: 'uuid' })
-  @ApiResponse({ status: 200, description: 'DeviceView' })
+  @ApiZodResponse(200, fleetDeviceSchema, 'The tablet as changed')
   @ApiResponse({ status: 409, description: 'Already revoked' })
-  revoke(@CurrentUser() admin: AuthUser, @Param('id', DeviceId) id: string): Promise<DeviceView> {
+  revoke(@CurrentUser() admin: AuthUser, @Param('id', DeviceId) id: string): Promise<FleetDevice> {
     return this.devices.revoke(admin, id);
   }
 
@@ -64,9 +69,9 @@ export class AdminDevicesController {
   @HttpCode(200)
   @ApiOperation({ summary: 'Retire a tablet: it may still push its outbox, then erases itself' })
   @ApiParam({ name: 'id', format: 'uuid' })
-  @ApiResponse({ status: 200, description: 'DeviceView' })
+  @ApiZodResponse(200, fleetDeviceSchema, 'The tablet as changed')
   @ApiResponse({ status: 409, description: 'Already retired or revoked' })
-  retire(@CurrentUser() admin: AuthUser, @Param('id', DeviceId) id: string): Promise<DeviceView> {
+  retire(@CurrentUser() admin: AuthUser, @Param('id', DeviceId) id: string): Promise<FleetDevice> {
     return this.devices.retire(admin, id);
   }
 }

@@ -1,12 +1,11 @@
 import { Entity, PrimaryKey, Property } from '@mikro-orm/core';
+import type { DeviceState } from '@fuselight/shared';
 
 /**
  * A tablet of the Fleet. `pending` until enrolled with its code; `active` once it holds a device
  * secret; `retired` may still push (to empty its outbox) and then erases itself; `revoked` is
- * refused at once and told to erase.
+ * refused at once and told to erase. (The states are declared in shared/, with the admin views.)
  */
-export type DeviceState = 'pending' | 'active' | 'retired' | 'revoked';
-
 @Entity({ tableName: 'device' })
 export class Device {
   @PrimaryKey({ type: 'uuid' })

@@ -10,6 +10,7 @@ import {
   Injectable,
   NotFoundException,
 } from '@nestjs/common';
+import type { DeviceState, FleetDevice } from '@fuselight/shared';
 import type { z } from 'zod';
 import { AuditService } from '../audit/audit.service';
 import { ATTEMPT_LIMITS, AttemptLimiter } from '../auth/attempt-limiter.service';
@@ -24,7 +25,7 @@ import {
   siteIdsOfDevice,
   siteIdsOfDevices,
 } from '../users/memberships';
-import { Device, type DeviceState } from './device.entity';
+import { Device } from './device.entity';
 import type { heartbeatSchema, registerDeviceSchema } from './devices.schemas';
 
 export const ENROLMENT_CODE_TTL_MS = 24 * 60 * 60 * 1000;
@@ -36,21 +37,6 @@ export interface EnrolmentTicket {
   expiresAt: string;
   /** Text for the QR code the admin's screen shows: the app's enrol address with the code. */
   qrPayload: string;
-}
-
-export interface DeviceView {
-  id: string;
-  label: string;
-  state: DeviceState;
-  siteIds: string[];
-  createdAt: string;
-  enrolledAt: string | null;
-  enrolmentExpiresAt: string | null;
-  lastSeenAt: string | null;
-  appVersion: string | null;
-  outboxSize: number | null;
-  retiredAt: string | null;
-  revokedAt: string | null;
 }
 
 export interface DeviceSelfView {
@@ -132,7 +118,7 @@ export class DevicesService {
     });
   }
 
-  async list(): Promise<DeviceView[]> {
+  async list(): Promise<FleetDevice[]> {
     const em = this.em.fork();
     const devices = await em.find(Device, {}, { orderBy: { createdAt: 'desc', id: 'desc' } });
     const sites = await siteIdsOfDevices(
@@ -142,7 +128,7 @@ export class DevicesService {
     return devices.map((device) => this.view(device, sites.get(device.id) ?? []));
   }
 
-  async revoke(admin: Pick<AuthUser, 'userId'> | null, deviceId: string): Promise<DeviceView> {
+  async revoke(admin: Pick<AuthUser, 'userId'> | null, deviceId: string): Promise<FleetDevice> {
     return this.em.fork().transactional(async (em) => {
       const device = await this.find(em, deviceId);
       if (device.state === 'revoked')
@@ -166,7 +152,7 @@ export class DevicesService {
     });
   }
 
-  async retire(admin: Pick<AuthUser, 'userId'> | null, deviceId: string): Promise<DeviceView> {
+  async retire(admin: Pick<AuthUser, 'userId'> | null, deviceId: string): Promise<FleetDevice> {
     return this.em.fork().transactional(async (em) => {
       const device = await this.find(em, deviceId);
       if (device.state === 'revoked' || device.state === 'retired') {
@@ -300,7 +286,7 @@ export class DevicesService {
     };
   }
 
-  private view(device: Device, siteIds: string[]): DeviceView {
+  private view(device: Device, siteIds: string[]): FleetDevice {
     return {
       id: device.id,
       label: device.label,

@@ -1,9 +1,9 @@
 import { Migration } from '@mikro-orm/migrations';
 
 /**
- * Storage of synced records (sync-protocol.md): one row per record with its fields and per-field
- * stamps, the idempotency log of change ids with their first result, the conflicts with every
- * candidate, and the tombstone horizon marker.
+ * Storage of synced records (docs/sync-protocol.md): one row per record with its fields and
+ * per-field stamps, the idempotency log of change ids with their first result, the conflicts with
+ * every candidate, and the tombstone horizon marker.
  *
  * Versions are not taken from a sequence: a version is `top-level transaction id × 1000 + n`
  * (n = 1..999 within the transaction), which makes every version of an in-flight transaction

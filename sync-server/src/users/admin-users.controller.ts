@@ -1,11 +1,18 @@
 import { Body, Controller, Get, Inject, Param, Patch, Post } from '@nestjs/common';
 import { ApiOperation, ApiParam, ApiResponse, ApiTags } from '@nestjs/swagger';
-import { ApiSignedIn, ApiZodBody } from '../auth/api-docs';
+import {
+  adminUserListSchema,
+  adminUserSchema,
+  invitedPersonSchema,
+  type AdminUser,
+  type InvitedPerson,
+} from '@fuselight/shared';
+import { ApiSignedIn, ApiZodBody, ApiZodResponse } from '../auth/api-docs';
 import { CurrentUser, Roles } from '../auth/auth.decorators';
 import type { AuthUser } from '../auth/auth-user';
 import { ZodValidationPipe, zodDto } from '../common/zod-validation.pipe';
 import { inviteUserSchema, updateUserSchema, userIdParamSchema } from './users.schemas';
-import { UsersService, type UserView } from './users.service';
+import { UsersService } from './users.service';
 
 class InviteUserBody extends zodDto(inviteUserSchema) {}
 class UpdateUserBody extends zodDto(updateUserSchema) {}
@@ -19,8 +26,8 @@ export class AdminUsersController {
 
   @Get()
   @ApiOperation({ summary: 'Everyone who can sign in, with role, sites and countersigning' })
-  @ApiResponse({ status: 200, description: 'UserView[]' })
-  list(): Promise<UserView[]> {
+  @ApiZodResponse(200, adminUserListSchema, 'Everyone, as adminUserSchema of @fuselight/shared')
+  list(): Promise<AdminUser[]> {
     return this.users.list();
   }
 
@@ -29,12 +36,9 @@ export class AdminUsersController {
     summary: 'Invite a person; the one-time initial password is shown only in this answer',
   })
   @ApiZodBody(inviteUserSchema)
-  @ApiResponse({ status: 201, description: '{ user, initialPassword }' })
+  @ApiZodResponse(201, invitedPersonSchema, 'The person and their one-time initial password')
   @ApiResponse({ status: 409, description: 'The e-mail address is taken' })
-  invite(
-    @CurrentUser() admin: AuthUser,
-    @Body() body: InviteUserBody,
-  ): Promise<{ user: UserView; initialPassword: string }> {
+  invite(@CurrentUser() admin: AuthUser, @Body() body: InviteUserBody): Promise<InvitedPerson> {
     return this.users.invite(admin, body);
   }
 
@@ -45,12 +49,12 @@ export class AdminUsersController {
   })
   @ApiParam({ name: 'id', format: 'uuid' })
   @ApiZodBody(updateUserSchema)
-  @ApiResponse({ status: 200, description: 'UserView' })
+  @ApiZodResponse(200, adminUserSchema, 'The person as changed')
   update(
     @CurrentUser() admin: AuthUser,
     @Param('id', new ZodValidationPipe(userIdParamSchema)) id: string,
     @Body() body: UpdateUserBody,
-  ): Promise<UserView> {
+  ): Promise<AdminUser> {
     return this.users.update(admin, id, body);
   }
 }

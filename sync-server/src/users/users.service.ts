@@ -10,7 +10,7 @@ import {
   NotFoundException,
   UnauthorizedException,
 } from '@nestjs/common';
-import type { Role } from '@fuselight/shared';
+import type { AdminUser, InvitedPerson, Role } from '@fuselight/shared';
 import type { z } from 'zod';
 import { AuditService } from '../audit/audit.service';
 import type { AuthUser } from '../auth/auth-user';
@@ -21,19 +21,6 @@ import { assertSitesExist, replaceUserSites, siteIdsOfUser, siteIdsOfUsers } fro
 import { User } from './user.entity';
 import { Site, type SiteKind } from '../sites/site.entity';
 import type { changePasswordSchema, inviteUserSchema, updateUserSchema } from './users.schemas';
-
-export interface UserView {
-  id: string;
-  name: string;
-  email: string;
-  role: Role;
-  siteIds: string[];
-  needsCountersign: boolean;
-  active: boolean;
-  mustChangePassword: boolean;
-  createdAt: string;
-  lastSignInAt: string | null;
-}
 
 export interface MeView {
   id: string;
@@ -86,7 +73,7 @@ export class UsersService {
     @Inject(TokenService) private readonly tokens: TokenService,
   ) {}
 
-  async list(): Promise<UserView[]> {
+  async list(): Promise<AdminUser[]> {
     const em = this.em.fork();
     const users = await em.find(User, {}, { orderBy: { name: 'asc', id: 'asc' } });
     const sites = await siteIdsOfUsers(
@@ -100,7 +87,7 @@ export class UsersService {
   async invite(
     admin: Pick<AuthUser, 'userId'> | null,
     input: z.infer<typeof inviteUserSchema>,
-  ): Promise<{ user: UserView; initialPassword: string }> {
+  ): Promise<InvitedPerson> {
     const initialPassword = this.secrets.randomToken(12);
     const user = await this.create(admin, { ...input, password: initialPassword }, true);
     return { user, initialPassword };
@@ -111,7 +98,7 @@ export class UsersService {
     admin: Pick<AuthUser, 'userId'> | null,
     input: NewPersonInput,
     mustChangePassword = false,
-  ): Promise<UserView> {
+  ): Promise<AdminUser> {
     const email = input.email.trim().toLowerCase();
     const passwordHash = await this.secrets.hashPassword(
       input.password ?? this.secrets.randomToken(16),
@@ -156,7 +143,7 @@ export class UsersService {
     admin: Pick<AuthUser, 'userId'> | null,
     userId: string,
     patch: z.infer<typeof updateUserSchema>,
-  ): Promise<UserView> {
+  ): Promise<AdminUser> {
     return this.em.fork().transactional(async (em) => {
       const user = await this.find(em, userId);
       const before = {
@@ -316,7 +303,7 @@ export class UsersService {
     return user;
   }
 
-  private view(user: User, siteIds: string[]): UserView {
+  private view(user: User, siteIds: string[]): AdminUser {
     return {
       id: user.id,
       name: user.name,

@@ -96,7 +96,7 @@ describe('AngleControl', () => {
       />,
     );
     expect(shown()).toBe('L/R 10.0Δ');
-    // 10Δ = 5.711° exactly (θ = atan(Δ/100); clinical-reference.md reverse check values).
+    // 10Δ = 5.711° exactly (θ = atan(Δ/100); docs/clinical-reference.md reverse check values).
     expect(otherUnit()).toBe('5.7° exact');
     await user.click(screen.getByRole('button', { name: 'R over L, right eye higher' }));
     expect(shown()).toBe('R/L 10.0Δ');

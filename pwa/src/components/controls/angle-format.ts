@@ -20,7 +20,7 @@ export interface SignWords {
   spoken: string;
 }
 
-/** Stored signs (clinical-reference.md): + eso / R/L / excyclo, − exo / L/R / incyclo. */
+/** Stored signs (docs/clinical-reference.md): + eso / R/L / excyclo, − exo / L/R / incyclo. */
 export const SIGN_WORDS: Record<AngleAxis, { positive: SignWords; negative: SignWords }> = {
   horizontal: {
     positive: { short: 'eso', spoken: 'eso, convergent' },

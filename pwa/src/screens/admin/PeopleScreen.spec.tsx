@@ -9,7 +9,8 @@ import {
   SITE_A,
   fakeClinicServer,
 } from '../../auth/fake-clinic-server.fixture';
-import { IdentityApi, type AdminUser } from '../../auth/identity-api';
+import type { AdminUser } from '@fuselight/shared';
+import { IdentityApi } from '../../auth/identity-api';
 import { SessionProvider } from '../../auth/SessionProvider';
 import { SessionStore } from '../../auth/session-store';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
@@ -21,10 +22,14 @@ const KOFI: AdminUser = {
   email: 'kofi@harbourview.test',
   role: 'orthoptist',
   siteIds: [SITE_A],
+  needsCountersign: false,
   active: true,
+  mustChangePassword: false,
+  createdAt: '2026-11-30T08:00:00.000Z',
+  lastSignInAt: '2026-12-01T08:10:00.000Z',
 };
 
-async function renderPeople(people: AdminUser[]) {
+async function renderPeople(people: unknown[]) {
   const server = fakeClinicServer(() => Date.now());
   const seen: { route: string; body: unknown }[] = [];
   server.adminRoutes = (route, body) => {
@@ -45,17 +50,23 @@ async function renderPeople(people: AdminUser[]) {
     }
     if (route === 'GET /api/admin/users') return { status: 200, body: people };
     if (route === 'POST /api/admin/users') {
-      const user = {
+      const user: AdminUser = {
         id: '0190c6a0-0000-7000-8000-000000000022',
+        needsCountersign: false,
         active: true,
-        ...(body as object),
-      } as AdminUser;
+        mustChangePassword: true,
+        createdAt: '2026-12-01T09:00:00.000Z',
+        lastSignInAt: null,
+        ...(body as Pick<AdminUser, 'name' | 'email' | 'role' | 'siteIds'>),
+      };
       people = [...people, user];
       return { status: 201, body: { user, initialPassword: 'tide-lamp-orchid-42' } };
     }
     if (route === `PATCH /api/admin/users/${KOFI.id}`) {
-      people = people.map((p) => (p.id === KOFI.id ? { ...p, ...(body as object) } : p));
-      return { status: 200, body: people.find((p) => p.id === KOFI.id) };
+      people = people.map((p) =>
+        (p as AdminUser).id === KOFI.id ? { ...(p as AdminUser), ...(body as object) } : p,
+      );
+      return { status: 200, body: people.find((p) => (p as AdminUser).id === KOFI.id) };
     }
     return null;
   };
@@ -135,6 +146,16 @@ describe('People', () => {
         seen.filter((c) => c.route === `PATCH /api/admin/users/${KOFI.id}`).map((c) => c.body),
       ).toEqual([{ active: false }, { active: true }]),
     );
+  });
+
+  it('says which field of a malformed answer is wrong instead of showing a partial list', async () => {
+    const { createdAt: _createdAt, ...withoutCreatedAt } = KOFI;
+    await renderPeople([withoutCreatedAt]);
+    const notice = await screen.findByText(/Could not load people/);
+    expect(notice.textContent).toContain(
+      'The clinic server’s answer to GET /api/admin/users is not what this app expects (0.createdAt:',
+    );
+    expect(screen.queryByText('Kofi Brannagh')).toBeNull();
   });
 
   it('changes a person’s role', async () => {

@@ -1,10 +1,10 @@
 // People: invite someone with a role and sites, change a role or sites, deactivate (with a
 // confirmation) or reactivate. Admins see no clinical content here.
 import { zodResolver } from '@hookform/resolvers/zod';
-import { ROLES, type Role } from '@fuselight/shared';
+import { ROLES, type AdminUser, type Role } from '@fuselight/shared';
 import { useState } from 'react';
 import { Controller, useForm } from 'react-hook-form';
-import type { AdminSite, AdminUser } from '../../auth/identity-api';
+import type { AdminSite } from '../../auth/identity-api';
 import {
   Button,
   Confirmation,

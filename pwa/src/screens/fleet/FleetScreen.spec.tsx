@@ -9,7 +9,8 @@ import {
   SITE_A,
   fakeClinicServer,
 } from '../../auth/fake-clinic-server.fixture';
-import { IdentityApi, type FleetDevice } from '../../auth/identity-api';
+import type { FleetDevice } from '@fuselight/shared';
+import { IdentityApi } from '../../auth/identity-api';
 import { SessionProvider } from '../../auth/SessionProvider';
 import { SessionStore } from '../../auth/session-store';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
@@ -17,7 +18,7 @@ import FleetScreen from './FleetScreen';
 
 const TABLET_ID = '0190c6a0-0000-7000-8000-0000000000e1';
 
-async function renderFleet(devices: FleetDevice[]) {
+async function renderFleet(devices: unknown[]) {
   const server = fakeClinicServer(() => Date.now());
   const seen: { route: string; body: unknown }[] = [];
   server.adminRoutes = (route, body, caller) => {
@@ -50,7 +51,11 @@ async function renderFleet(devices: FleetDevice[]) {
           },
         };
       case `POST /api/admin/devices/${TABLET_ID}/revoke`:
-        devices = devices.map((d) => (d.id === TABLET_ID ? { ...d, state: 'revoked' } : d));
+        devices = devices.map((d) =>
+          (d as FleetDevice).id === TABLET_ID
+            ? { ...(d as FleetDevice), state: 'revoked', revokedAt: '2026-12-01T10:00:00.000Z' }
+            : d,
+        );
         return { status: 200, body: devices[0] };
       default:
         return null;
@@ -81,9 +86,14 @@ const tablet: FleetDevice = {
   label: 'Orthoptics room 2',
   state: 'active',
   siteIds: [SITE_A],
+  createdAt: '2026-11-30T08:00:00.000Z',
+  enrolledAt: '2026-11-30T08:20:00.000Z',
+  enrolmentExpiresAt: null,
   lastSeenAt: '2026-12-01T09:30:00.000Z',
   appVersion: '0.1.0',
   outboxSize: 4,
+  retiredAt: null,
+  revokedAt: null,
 };
 
 beforeEach(async () => {
@@ -111,6 +121,15 @@ describe('the Fleet', () => {
     expect(byColumn.Outbox).toBe('4');
     expect(byColumn['App version']).toBe('0.1.0');
     expect(row.textContent).toContain(new Date('2026-12-01T09:30:00.000Z').toLocaleString());
+  });
+
+  it('says which field of a malformed answer is wrong instead of showing the tablets', async () => {
+    await renderFleet([{ ...tablet, state: 'lost' }]);
+    const notice = await screen.findByText(/Could not load the Fleet/);
+    expect(notice.textContent).toContain(
+      'The clinic server’s answer to GET /api/admin/devices is not what this app expects (0.state: state must be one of: pending, active, retired, revoked)',
+    );
+    expect(screen.queryByRole('row', { name: /Orthoptics room 2/ })).toBeNull();
   });
 
   it('registers a tablet for a site and shows its one-time code as a QR code', async () => {

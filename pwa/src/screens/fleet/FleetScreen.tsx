@@ -1,10 +1,11 @@
 // The Fleet: register a tablet and show its one-time enrolment code as a QR code, see each
 // tablet's last contact, app version and Outbox size, and revoke or retire it.
 import { zodResolver } from '@hookform/resolvers/zod';
+import type { FleetDevice } from '@fuselight/shared';
 import { QRCodeSVG } from 'qrcode.react';
 import { useState } from 'react';
 import { Controller, useForm } from 'react-hook-form';
-import type { FleetDevice, RegisteredDevice } from '../../auth/identity-api';
+import type { RegisteredDevice } from '../../auth/identity-api';
 import { Button, Confirmation, Notice, TextField, describeError } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
 import { registerTabletSchema, type RegisterTabletForm } from '../admin/admin-forms.schema';

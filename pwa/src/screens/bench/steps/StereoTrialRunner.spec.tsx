@@ -71,7 +71,7 @@ describe('StereoTrialRunner', () => {
     }
     const verdict = screen.getByTestId('stereo-verdict').textContent;
     expect(verdict).toContain('Gross stereopsis shown');
-    // Exact binomial tail, clinical-reference.md: P(X ≥ 5 | n = 5) = 0.03125.
+    // Exact binomial tail, docs/clinical-reference.md: P(X ≥ 5 | n = 5) = 0.03125.
     expect(screen.getByTestId('stereo-chance').textContent).toBe('1/32 = 0.03125');
     expect(more()).toBeNull();
     expect(verdict).toContain('supports and does not replace clinical judgement');
@@ -83,7 +83,7 @@ describe('StereoTrialRunner', () => {
     await user.click(toward());
     await user.click(away()); // wrong: the picture was toward
     // 1 of 2 right; six more in a row make 7 of 8, tail 0.03515625 < 0.05, while five more make
-    // 6 of 7, tail 0.0625 (exact binomial, clinical-reference.md).
+    // 6 of 7, tail 0.0625 (exact binomial, docs/clinical-reference.md).
     expect(more()).toContain('6 more right answers');
     for (let i = 0; i < 6; i += 1) await user.click(toward());
     expect(screen.getByTestId('stereo-chance').textContent).toBe('9/256 = 0.03515625');
