@@ -1,4 +1,4 @@
-// Guarantee 1 of sync-protocol.md, convergence: once tablets stop editing and sync, each holds
+// Guarantee 1 of docs/sync-protocol.md, convergence: once tablets stop editing and sync, each holds
 // exactly the server's records for its user's scope, every field of every record, both ways.
 import { expect } from 'vitest';
 import type { Clinic } from './clinic-server';

@@ -1,4 +1,4 @@
-// Reads a pull answer (sync-protocol.md, Pull) without zod's per-record cost. The envelope and
+// Reads a pull answer (docs/sync-protocol.md, Pull) without zod's per-record cost. The envelope and
 // every record's envelope (collection, uuid id, version, tombstone, field map, stamps,
 // conflicts) are checked as strictly as `pullResponseSchema` checks them; what is not walked is
 // each field's value, because it came from JSON.parse and is JSON by construction, and the

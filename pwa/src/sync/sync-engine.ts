@@ -1,4 +1,4 @@
-// The tablet's sync engine (sync-protocol.md v1): push the Outbox, then pull in pages, when the
+// The tablet's sync engine (docs/sync-protocol.md, protocol 1): push the Outbox, then pull in pages, when the
 // app opens, when the network returns, every 30 s while online and on "Sync now". Failures back
 // off exponentially with jitter. Nothing here ever deletes an Outbox entry except on the
 // server's acknowledgement: a 401 asks the author to sign in again, a 426/409 stops and says

@@ -16,8 +16,8 @@ import { ClinicalInputError } from './clinical-input.error';
 // The module only reads Section fields and calls the computations (each checked against its
 // sources in its own spec); these checks are that the Visit, the Bench and letters read the same
 // fields the same way. Check values: angle of anomaly = objective − subjective, NRC within the
-// 5° tolerance (clinical-reference.md, Millodot); the SP → fusion → stereopsis hierarchy
-// (clinical-reference.md, "The assessment"); NPC recovery is never nearer than the break.
+// 5° tolerance (docs/clinical-reference.md, Millodot; the tolerance is common practice, [memory]); the SP → fusion → stereopsis hierarchy
+// (docs/clinical-reference.md, "The assessment"); NPC recovery is never nearer than the break.
 describe('interpretation of recorded Sections', () => {
   it('waits for both horizontal angles, then classifies correspondence', () => {
     expect(correspondenceOf({ objectiveHorizontalDeg: -8 })).toBeNull();

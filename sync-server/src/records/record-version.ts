@@ -1,5 +1,5 @@
 // How the server numbers changes so that pull cursors are safe against out-of-order commits
-// (sync-protocol.md, guarantee 4).
+// (docs/sync-protocol.md, guarantee 4).
 //
 // The problem: a version taken from a sequence inside a transaction can commit after a higher
 // one. A puller that saw version 50 (committed) and moved its cursor to 50 would never see

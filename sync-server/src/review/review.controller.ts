@@ -1,5 +1,5 @@
 // The Review desk's routes: supervisors only, each scoped to the supervisor's sites by the
-// services. Controllers are one-liners (style.md).
+// services. Controllers are one-liners (docs/conventions.md).
 import {
   Body,
   Controller,

@@ -1,4 +1,4 @@
-// The tombstone horizon (sync-protocol.md, "Pull"): tombstones and the change-id log are kept for
+// The tombstone horizon (docs/sync-protocol.md, "Pull"): tombstones and the change-id log are kept for
 // config.tombstoneHorizonDays, longer than any clinic's offline period. Pruning moves the horizon
 // marker to the newest version it removed; a device whose cursor is older may have missed a
 // removed tombstone, so its pull answers `{ "reset": true, "reason": "horizon" }` and it pulls

@@ -1,4 +1,4 @@
-// Push and pull of sync protocol 1 (sync-protocol.md).
+// Push and pull of sync protocol 1 (docs/sync-protocol.md).
 //
 // Push: one transaction per request. Changes already answered are replays (idempotency, see
 // change-log.ts), the records are locked with SELECT … FOR UPDATE, every other change is planned
