@@ -119,8 +119,19 @@ beforeAll(async () => {
     devices.push(await clinic.device());
   }
   supervisorToken = await deskToken(clinic, await clinic.person('supervisor'));
-  // Versions start just below a power of ten: the first runs cross into one digit more, and the
-  // tablets of every later run first-sync through records of both lengths.
+  // A patient from before, then versions just below a power of ten: the first runs cross into
+  // one digit more, and the tablets of every run first-sync through records of both lengths
+  // (other test files use transaction ids too, so the crossing may come before the first run).
+  const before = new SimTablet('before', clinic, devices[0]!, [people[0]!]);
+  await before.create('patient', {
+    siteId: clinic.siteId,
+    givenName: 'Before',
+    familyName: 'Boundary',
+    dateOfBirth: '2014-04-04',
+    clinicNumber: 'B-0',
+  });
+  expect((await before.syncUntilSettled()).kind).toBe('synced');
+  await before.close();
   await startVersionsBelowPowerOfTen(clinic.t.db.url, { transactionsBefore: 20 });
 });
 
