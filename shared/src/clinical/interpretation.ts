@@ -273,6 +273,15 @@ export interface Interpretation {
   summary: string | null;
 }
 
+/** An item that says why nothing could be interpreted (no sentence for a letter). */
+function withoutSummary(
+  base: Pick<Interpretation, 'key' | 'title'>,
+  line: string,
+  tone: Interpretation['tone'],
+): Interpretation {
+  return { ...base, lines: [line], tone, summary: null };
+}
+
 export interface VisitInterpretations {
   items: Interpretation[];
   /** CLINICAL_CAUTION: shown beside every interpretation. */
@@ -347,21 +356,15 @@ function rangesItem(sections: VisitSectionValues): Interpretation | null {
   const base = { key: 'ranges', title: 'Fusional ranges against norms' } as const;
   if (!rangeReadings(sections.fusionalRanges, sections.amblyoscopeAngles)) return null;
   if (num(sections.amblyoscopeAngles, 'subjectiveHorizontalDeg') === undefined) {
-    return {
-      ...base,
-      lines: ['Ranges start at the subjective angle: record it to derive the amplitudes.'],
-      tone: 'neutral',
-      summary: null,
-    };
+    return withoutSummary(
+      base,
+      'Ranges start at the subjective angle: record it to derive the amplitudes.',
+      'neutral',
+    );
   }
   const result = fusionalRangesOf(sections.amblyoscopeAngles, sections.fusionalRanges)!;
   if (!result.ok) {
-    return {
-      ...base,
-      lines: [`Not interpreted: ${result.problem}`],
-      tone: 'attention',
-      summary: null,
-    };
+    return withoutSummary(base, `Not interpreted: ${result.problem}`, 'attention');
   }
   const { amplitudes, norms } = result.value;
   const lines = [
@@ -386,21 +389,11 @@ function nearPointItem(
   if (num(sections.nearPointConvergence, 'breakCm') === undefined) return null;
   const base = { key: 'npc', title: 'Near point of convergence' } as const;
   if (age === undefined) {
-    return {
-      ...base,
-      lines: ['The age is unknown, so no norm can be chosen.'],
-      tone: 'neutral',
-      summary: null,
-    };
+    return withoutSummary(base, 'The age is unknown, so no norm can be chosen.', 'neutral');
   }
   const result = nearPointOf(sections.nearPointConvergence, age)!;
   if (!result.ok) {
-    return {
-      ...base,
-      lines: [`Not interpreted: ${result.problem}`],
-      tone: 'attention',
-      summary: null,
-    };
+    return withoutSummary(base, `Not interpreted: ${result.problem}`, 'attention');
   }
   const judgement = result.value;
   return {
@@ -436,21 +429,11 @@ function accommodationItem(
   if (recorded.length === 0) return null;
   const base = { key: 'accommodation', title: 'Amplitude of accommodation for age' } as const;
   if (age === undefined) {
-    return {
-      ...base,
-      lines: ['The age is unknown, so no expected amplitude.'],
-      tone: 'neutral',
-      summary: null,
-    };
+    return withoutSummary(base, 'The age is unknown, so no expected amplitude.', 'neutral');
   }
   const expected = computeOrRefuse(() => accommodationAmplitude(age));
   if (!expected.ok) {
-    return {
-      ...base,
-      lines: [`Not interpreted: ${expected.problem}`],
-      tone: 'attention',
-      summary: null,
-    };
+    return withoutSummary(base, `Not interpreted: ${expected.problem}`, 'attention');
   }
   const range = expected.value;
   let attention = false;

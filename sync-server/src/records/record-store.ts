@@ -52,6 +52,26 @@ export interface ConflictResolution {
   note: string | null;
 }
 
+/**
+ * The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not. The
+ * one read of records by id; RecordStore.byIds and the Review desk's reads use it.
+ */
+export async function recordsByIds(
+  em: EntityManager,
+  ids: readonly string[],
+): Promise<Map<string, StoredRecord>> {
+  const found = new Map<string, StoredRecord>();
+  const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
+  if (wanted.length === 0) return found;
+  const rows = await sqlRows<StoredRecordRow>(
+    em,
+    `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
+    [jsonParam(wanted)],
+  );
+  for (const row of rows) found.set(row.id, recordFromRow(row));
+  return found;
+}
+
 @Injectable()
 export class RecordStore {
   /**
@@ -64,17 +84,8 @@ export class RecordStore {
   }
 
   /** The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not. */
-  async byIds(em: EntityManager, ids: readonly string[]): Promise<Map<string, StoredRecord>> {
-    const found = new Map<string, StoredRecord>();
-    const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
-    if (wanted.length === 0) return found;
-    const rows = await sqlRows<StoredRecordRow>(
-      em,
-      `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
-      [jsonParam(wanted)],
-    );
-    for (const row of rows) found.set(row.id, recordFromRow(row));
-    return found;
+  byIds(em: EntityManager, ids: readonly string[]): Promise<Map<string, StoredRecord>> {
+    return recordsByIds(em, ids);
   }
 
   async byId(em: EntityManager, id: string): Promise<StoredRecord | null> {

@@ -3,6 +3,7 @@
 // those rows readable. Raw SQL through the records module's helper, on the caller's transaction.
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { JsonValue } from '@fuselight/shared';
+import { recordsByIds } from '../records/record-store';
 import { jsonParam, sqlRows } from '../records/sql';
 import {
   RECORD_COLUMNS,
@@ -17,21 +18,7 @@ import type { DeviceRef, PersonRef } from '@fuselight/shared';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-export async function recordsByIds(
-  em: EntityManager,
-  ids: readonly string[],
-): Promise<Map<string, StoredRecord>> {
-  const found = new Map<string, StoredRecord>();
-  const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
-  if (wanted.length === 0) return found;
-  const rows = await sqlRows<StoredRecordRow>(
-    em,
-    `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
-    [jsonParam(wanted)],
-  );
-  for (const row of rows) found.set(row.id, recordFromRow(row));
-  return found;
-}
+export { recordsByIds };
 
 export async function recordById(em: EntityManager, id: string): Promise<StoredRecord | null> {
   return (await recordsByIds(em, [id])).get(id) ?? null;

@@ -31,12 +31,12 @@ async function storedAt(siteId: string): Promise<Held[]> {
   const rows = await t
     .em()
     .getConnection()
-    .execute<{ id: string; version: string }[]>(
+    .execute<{ id: string; v: string }[]>(
       `select r."id", r."version"::text as "v" from "sync_record" r where r."site_id" = ?`,
       [siteId],
     );
   return rows
-    .map((r) => ({ id: r.id, version: Number((r as unknown as { v: string }).v) }))
+    .map((r) => ({ id: r.id, version: Number(r.v) }))
     .sort((a, b) => a.version - b.version);
 }
 

@@ -3,22 +3,15 @@
 import { collectionLabel, type SectionCollectionName } from '@fuselight/shared';
 import { Link } from 'react-router-dom';
 import { AngleControl } from '../controls';
+import { BENCH_COLLECTIONS } from '../../data/bench/bench-sections';
 import type { VisitSectionRecords } from '../../data/charting';
 import { DisputeMark } from './ScreenState';
 import { SaveIndicator, metaOf, sectionFieldNames } from './SectionForm';
 import { useSectionAutosave, type SaveStatus } from './useSectionAutosave';
 
-const AMBLYOSCOPE_SECTIONS: readonly [SectionCollectionName, string][] = (
-  [
-    'amblyoscopeSetup',
-    'simultaneousPerception',
-    'amblyoscopeAngles',
-    'suppressionScotoma',
-    'fusion',
-    'fusionalRanges',
-    'grossStereopsis',
-  ] as const
-).map((collection) => [collection, collectionLabel(collection)]);
+const AMBLYOSCOPE_SECTIONS: readonly [SectionCollectionName, string][] = BENCH_COLLECTIONS.map(
+  (collection) => [collection, collectionLabel(collection)],
+);
 
 function shown(collection: SectionCollectionName, field: string, value: unknown): string | null {
   if (value === null || value === undefined) return null;
