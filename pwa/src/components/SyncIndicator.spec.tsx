@@ -65,7 +65,10 @@ describe('the sync indicator', () => {
       expect(screen.getByRole('alert').textContent).toMatch(/could not be reached/),
     );
     expect(fetch).toHaveBeenCalled();
-    expect(screen.getByRole('status').textContent).toMatch(/^Online· 1 waiting· /);
+    // The Outbox count is refreshed after the failure is shown.
+    await waitFor(() =>
+      expect(screen.getByRole('status').textContent).toMatch(/^Online· 1 waiting· /),
+    );
     engine.stop();
   });
 
