@@ -3,6 +3,7 @@
 // save state the screen shows ("Saving…", "Saved", or what went wrong, keeping the entry).
 import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useRef, useState } from 'react';
+import { useUnsavedEdits } from '../../app/unsaved-edits';
 import { type VisitBundle, useCharting, useVisitBundle } from '../charting';
 import { useEditContext } from '../hooks/useRecordMutations';
 import { refreshAfterWrite } from '../query-invalidation';
@@ -45,6 +46,8 @@ export function useBenchSection<C extends BenchCollection>(
   const [overlay, setOverlay] = useState<Partial<BenchFields<C>>>({});
   const [saveState, setSaveState] = useState<SaveState>({ state: 'idle' });
   const inFlight = useRef(0);
+  // A save on its way, or one refused with the values still on screen: no app update now.
+  useUnsavedEdits(saveState.state === 'saving' || saveState.state === 'error');
 
   const stored = benchFields(bundle.data, collection);
   const fields = { ...stored, ...overlay } as BenchFields<C>;

@@ -9,6 +9,7 @@ import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Confirmation, SelectField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { UpdateAvailableNote } from '../../components/UpdateAvailableNote';
 import { describeFullRepull, useSyncStatus, type FullRepull } from '../../sync';
 import { queryKeys } from '../../data/query-keys';
 
@@ -70,6 +71,7 @@ export default function PersonScreen() {
         </p>
       ) : null}
       {deviceId ? <FullRepullNote repull={sync.fullRepull} /> : null}
+      {deviceId ? <UpdateAvailableNote note={sync.newerRecords} /> : null}
       <div className="fl-id-row">
         {deviceId ? (
           <Button tone="quiet" onClick={() => navigate('/pin')}>
