@@ -69,6 +69,8 @@ async function goStep(page: Page, title: string) {
 }
 
 async function typeAngle(page: Page, label: string, text: string) {
+  // A step's readings share one stepper: choose the reading first.
+  await page.getByRole('button', { name: new RegExp(`^${label}: `) }).click();
   const box = page.getByRole('textbox', { name: `Type ${label}`, exact: true });
   await box.fill(text);
   await box.press('Enter');

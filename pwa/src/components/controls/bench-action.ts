@@ -2,7 +2,7 @@
 // BENCH_ACTION_EVENT to the focused control, and it bubbles through the step; a control that
 // does the action claims it (preventDefault) and says what it recorded, for the screen reader
 // and the spoken value. Controls elsewhere never receive it, so they behave as before.
-import { type RefObject, useEffect, useLayoutEffect, useRef } from 'react';
+import { type RefObject, useLayoutEffect, useRef } from 'react';
 
 export const BENCH_ACTION_EVENT = 'fl-bench-action';
 
@@ -36,7 +36,9 @@ export function useBenchAction(
   useLayoutEffect(() => {
     latest.current = handle;
   });
-  useEffect(() => {
+  // Attached as the control mounts (not after paint), so a key pressed right after a key that
+  // brought the control on screen already reaches it.
+  useLayoutEffect(() => {
     const element = ref.current;
     if (!element) return;
     const listener = (event: Event) => {

@@ -4,7 +4,7 @@
 // subjective angle), shown as not recorded until it is stepped or marked. Marks ("picture lost",
 // "break", "recovery") record the value on the stepper as that finding and move to the next one.
 import type { ReactNode } from 'react';
-import { useEffect, useRef, useState } from 'react';
+import { useLayoutEffect, useRef, useState } from 'react';
 import {
   AngleControl,
   type AngleAxis,
@@ -71,7 +71,8 @@ export function MeasureDeck({
     selected.start ??
     null;
 
-  useEffect(() => {
+  // A key moved to another reading: the stepper that now shows it takes the focus.
+  useLayoutEffect(() => {
     if (focusEditor > 0) root.current?.querySelector<HTMLElement>('.fl-angle__readout')?.focus();
   }, [focusEditor]);
 

@@ -1,6 +1,6 @@
 // Which key does what on the Bench for the control in use (the person's own keys), small enough
 // to sit under the step list; it can be hidden, and the full list is on the You screen.
-import { type BenchAction, type BenchKeyMap, keyLabel } from './bench-key-map';
+import { type BenchAction, type BenchKeyMap, shortKeyLabel } from './bench-key-map';
 
 export type TargetKind = 'angle' | 'choice' | 'text' | 'button' | 'none';
 
@@ -10,7 +10,7 @@ const line = (
   words: string,
 ): { keys: string[]; words: string } | null => {
   const first = actions.map((a) => keys[a][0]).filter((k): k is string => k !== undefined);
-  return first.length === 0 ? null : { keys: first.map(keyLabel), words };
+  return first.length === 0 ? null : { keys: first.map(shortKeyLabel), words };
 };
 
 export function BenchLegend({
@@ -30,31 +30,30 @@ export function BenchLegend({
   const lines = [
     ...(kind === 'angle'
       ? [
-          line(keys, ['stepUpMedium', 'stepDownMedium'], '+1 / −1'),
-          line(keys, ['stepUpSmall', 'stepDownSmall'], '+0.5 / −0.5'),
-          line(keys, ['stepUpLarge', 'stepDownLarge'], '+5 / −5'),
-          line(keys, ['toggleSign'], 'change the sign'),
+          line(keys, ['stepUpMedium', 'stepDownMedium'], '±1'),
+          line(keys, ['stepUpSmall', 'stepDownSmall'], '±0.5'),
+          line(keys, ['stepUpLarge', 'stepDownLarge'], '±5'),
+          line(keys, ['toggleSign'], 'sign'),
         ]
       : kind === 'choice'
-        ? [line(keys, ['stepUpMedium', 'stepDownMedium'], 'next / previous answer')]
+        ? [line(keys, ['stepUpMedium', 'stepDownMedium'], 'answer')]
         : kind === 'text'
-          ? [{ keys: ['Enter'], words: 'save what you typed' }]
+          ? [{ keys: ['Enter'], words: 'save' }]
           : kind === 'button'
-            ? [{ keys: ['Enter'], words: 'press the button' }]
+            ? [{ keys: ['Enter'], words: 'press' }]
             : []),
-    ...(stepActions.includes('markLost') ? [line(keys, ['markLost'], 'picture lost here')] : []),
-    ...(stepActions.includes('markBreak') ? [line(keys, ['markBreak'], 'break here')] : []),
-    ...(stepActions.includes('markRecovery')
-      ? [line(keys, ['markRecovery'], 'recovery here')]
-      : []),
+    ...(stepActions.includes('markLost') ? [line(keys, ['markLost'], 'lost')] : []),
+    ...(stepActions.includes('markBreak') ? [line(keys, ['markBreak'], 'break')] : []),
+    ...(stepActions.includes('markRecovery') ? [line(keys, ['markRecovery'], 'recovery')] : []),
     ...(stepActions.includes('stereoToward')
-      ? [line(keys, ['stereoToward', 'stereoAway'], 'patient says toward / away')]
+      ? [line(keys, ['stereoToward', 'stereoAway'], 'toward / away')]
       : []),
-    line(keys, ['nextControl', 'previousControl'], 'next / previous control'),
-    line(keys, ['nextStep', 'previousStep'], 'next / previous step'),
+    line(keys, ['nextControl', 'previousControl'], 'control'),
+    line(keys, ['nextStep', 'previousStep'], 'step'),
     line(keys, ['undo'], 'undo'),
-    line(keys, ['skipStep'], 'skip the step'),
-    line(keys, ['syncNow', 'leaveBench'], 'sync now / leave'),
+    line(keys, ['skipStep'], 'skip'),
+    line(keys, ['syncNow'], 'sync'),
+    line(keys, ['leaveBench'], 'leave'),
   ].filter((l): l is { keys: string[]; words: string } => l !== null);
 
   return (
@@ -80,7 +79,7 @@ export function BenchLegend({
               <dt>
                 {l.keys.map((k, i) => (
                   <span key={k}>
-                    {i > 0 ? ' / ' : ''}
+                    {i > 0 ? '/' : ''}
                     <kbd>{k}</kbd>
                   </span>
                 ))}

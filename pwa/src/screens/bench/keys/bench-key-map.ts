@@ -155,6 +155,27 @@ const NAMED: Record<string, string> = {
   Backslash: '\\',
 };
 
+const SHORT: Record<string, string> = {
+  PageUp: 'PgUp',
+  PageDown: 'PgDn',
+  Backspace: 'Bksp',
+  NumpadEnter: 'Kp Enter',
+  NumpadAdd: 'Kp+',
+  NumpadSubtract: 'Kp−',
+  NumpadMultiply: 'Kp×',
+  NumpadDivide: 'Kp÷',
+  NumpadDecimal: 'Kp.',
+};
+
+/** A key in as few characters as the legend has room for: "PgDn", "Kp8", "Shift+↑". */
+export function shortKeyLabel(key: string): string {
+  const parts = key.split('+');
+  const code = parts.pop() ?? '';
+  const name = SHORT[code] ?? (/^Numpad\d$/.test(code) ? `Kp${code.slice(6)}` : null);
+  if (name === null) return keyLabel(key);
+  return [...parts.map((m) => (m === 'Control' ? 'Ctrl' : m)), name].join('+');
+}
+
 /** A key in words for the legend and the You screen: "Shift+↑", "Keypad 8", "B", "Page Down". */
 export function keyLabel(key: string): string {
   const parts = key.split('+');

@@ -112,6 +112,7 @@ export function FusionalRangesStep({ visitId }: { visitId: string }) {
 
   return (
     <StepFrame
+      className="fl-bench-ranges"
       title="Fusional ranges"
       section={section}
       instructions={
@@ -136,7 +137,15 @@ export function FusionalRangesStep({ visitId }: { visitId: string }) {
             {proximal.message} Findings on the amblyoscope are distance findings.
           </p>
         ) : null}
-        <div className="fl-bench-result" aria-live="polite" data-testid="ranges-result">
+        {/* Takes the height left beside the readings; with many ranges it scrolls on its own. */}
+        <div
+          className="fl-bench-result fl-bench-ranges__result"
+          aria-live="polite"
+          data-testid="ranges-result"
+          role="region"
+          aria-label="Amplitudes and norms"
+          tabIndex={0}
+        >
           <h3>Amplitudes</h3>
           <p className="fl-muted">Compared with: {tableName}</p>
           {interpretation === null ? (
