@@ -274,7 +274,7 @@ describe('the Bench on an enrolled tablet', () => {
       .getByRole('region', { name: /^Sync status/ })
       .getByText('Outbox empty')
       .waitFor({ timeout: 45_000 });
-  });
+  }, 180_000);
 
   it('keeps both tablets’ edits to different fields of the same visit', async () => {
     expect(visitId).not.toBe('');
