@@ -21,7 +21,8 @@ export const UCUM = 'http://unitsofmeasure.org';
 export const OBSERVATION_CATEGORY = 'http://terminology.hl7.org/CodeSystem/observation-category';
 export const DATA_ABSENT_REASON = 'http://terminology.hl7.org/CodeSystem/data-absent-reason';
 export const ACT_CODE = 'http://terminology.hl7.org/CodeSystem/v3-ActCode';
-export const PROVENANCE_PARTICIPANT = 'http://terminology.hl7.org/CodeSystem/provenance-participant-type';
+export const PROVENANCE_PARTICIPANT =
+  'http://terminology.hl7.org/CodeSystem/provenance-participant-type';
 export const DATA_OPERATION = 'http://terminology.hl7.org/CodeSystem/v3-DataOperation';
 export const SIGNATURE_TYPE = 'urn:iso-astm:E1762-95:2013';
 

@@ -38,9 +38,8 @@ describe('the FHIR export of one visit', () => {
     supervisor = (await signInAs(t, { role: 'supervisor', siteIds: both })).accessToken;
     mainClinician = (await signInAs(t, { role: 'orthoptist', siteIds: [DEMO_SITES.main.id] }))
       .accessToken;
-    outreachClinician = (
-      await signInAs(t, { role: 'outreach', siteIds: [DEMO_SITES.outreach.id] })
-    ).accessToken;
+    outreachClinician = (await signInAs(t, { role: 'outreach', siteIds: [DEMO_SITES.outreach.id] }))
+      .accessToken;
     admin = (await signInAs(t, { role: 'admin', siteIds: [] })).accessToken;
   });
   afterAll(async () => {
@@ -67,15 +66,21 @@ describe('the FHIR export of one visit', () => {
     const store = t.app.get(RecordStore);
     let checked = 0;
     for (const visit of signedVisits) {
-      const bundle = JSON.parse((await get(`/api/visits/${visit.id}/fhir`, supervisor)).text) as Bundle;
+      const bundle = JSON.parse(
+        (await get(`/api/visits/${visit.id}/fhir`, supervisor)).text,
+      ) as Bundle;
       const observations = ofType<Observation>(bundle, 'Observation');
-      const sections = demo.filter((r) => r.fields.visitId === visit.id && r.collection !== 'addendum');
+      const sections = demo.filter(
+        (r) => r.fields.visitId === visit.id && r.collection !== 'addendum',
+      );
       for (const section of sections) {
         const stored = (await store.byId(t.em(), section.id))!;
         for (const finding of FINDING_FIELDS.filter((f) => f.collection === section.collection)) {
           const value = stored.fields[finding.field];
           if (value === undefined || value === null) continue;
-          const observation = observations.find((o) => o.id === derivedId(section.id, finding.field));
+          const observation = observations.find(
+            (o) => o.id === derivedId(section.id, finding.field),
+          );
           expect(observation, `${finding.code} of ${section.id}`).toBeDefined();
           expect(observation!.code.coding).toContainEqual(
             expect.objectContaining({ system: FUSELIGHT_CODE_SYSTEM, code: finding.code }),
@@ -103,11 +108,17 @@ describe('the FHIR export of one visit', () => {
     const withAcuity = signedVisits.find((v) =>
       demo.some((r) => r.collection === 'visualAcuity' && r.fields.visitId === v.id),
     )!;
-    const acuity = demo.find((r) => r.collection === 'visualAcuity' && r.fields.visitId === withAcuity.id)!;
-    const bundle = JSON.parse((await get(`/api/visits/${withAcuity.id}/fhir`, supervisor)).text) as Bundle;
+    const acuity = demo.find(
+      (r) => r.collection === 'visualAcuity' && r.fields.visitId === withAcuity.id,
+    )!;
+    const bundle = JSON.parse(
+      (await get(`/api/visits/${withAcuity.id}/fhir`, supervisor)).text,
+    ) as Bundle;
     const byField = (field: string) =>
       ofType<Observation>(bundle, 'Observation').find((o) => o.id === derivedId(acuity.id, field));
-    const distanceField = Object.keys(acuity.fields).find((f) => /^right.*Distance.*LogMar$/i.test(f) || /^rightDistance.*LogMar$/.test(f))!;
+    const distanceField = Object.keys(acuity.fields).find(
+      (f) => /^right.*Distance.*LogMar$/i.test(f) || /^rightDistance.*LogMar$/.test(f),
+    )!;
     const right = byField(distanceField)!;
     // SNOMED CT 251739003 "Distance visual acuity": HL7 Eye Care IG (hl7.org/fhir/uv/eyecare),
     // visual acuity value set; the same concept is in HL7's CDA eye care guide's
@@ -130,7 +141,9 @@ describe('the FHIR export of one visit', () => {
   });
 
   it('names the patient, the clinic number under a URI of the site, the signer and a finished encounter', async () => {
-    const bundle = JSON.parse((await get(`/api/visits/${mainVisit.id}/fhir`, mainClinician).expect(200)).text) as Bundle;
+    const bundle = JSON.parse(
+      (await get(`/api/visits/${mainVisit.id}/fhir`, mainClinician).expect(200)).text,
+    ) as Bundle;
     const patientRecord = demo.find((r) => r.id === mainVisit.fields.patientId)!;
     const [patient] = ofType<import('fhir/r4').Patient>(bundle, 'Patient');
     expect(patient).toMatchObject({
@@ -162,7 +175,9 @@ describe('the FHIR export of one visit', () => {
   it('exports the interpretations with the caution in their note', async () => {
     let seen = 0;
     for (const visit of signedVisits) {
-      const bundle = JSON.parse((await get(`/api/visits/${visit.id}/fhir`, supervisor)).text) as Bundle;
+      const bundle = JSON.parse(
+        (await get(`/api/visits/${visit.id}/fhir`, supervisor)).text,
+      ) as Bundle;
       for (const o of ofType<Observation>(bundle, 'Observation')) {
         if (!o.code.coding?.[0]?.code?.startsWith('interpretation.')) continue;
         expect(o.note?.[0]?.text).toBe(CLINICAL_CAUTION);
@@ -175,7 +190,9 @@ describe('the FHIR export of one visit', () => {
 
   it('marks the findings of a visit with an Addendum amended, with the Addendum as a note and a Provenance', async () => {
     const addendum = demo.find((r) => r.collection === 'addendum')!;
-    const bundle = JSON.parse((await get(`/api/visits/${String(addendum.fields.visitId)}/fhir`, supervisor)).text) as Bundle;
+    const bundle = JSON.parse(
+      (await get(`/api/visits/${String(addendum.fields.visitId)}/fhir`, supervisor)).text,
+    ) as Bundle;
     const findings = ofType<Observation>(bundle, 'Observation');
     expect(findings.length).toBeGreaterThan(0);
     for (const o of findings) {
@@ -190,18 +207,25 @@ describe('the FHIR export of one visit', () => {
     const waiting = demo.find(
       (r) => r.collection === 'visit' && r.fields.needsCountersign === true,
     )!;
-    const people = await signInAs(t, { role: 'supervisor', siteIds: [String(waiting.fields.siteId)] });
+    const people = await signInAs(t, {
+      role: 'supervisor',
+      siteIds: [String(waiting.fields.siteId)],
+    });
     await request(t.app.getHttpServer())
       .post(`/api/review/visits/${waiting.id}/countersign`)
       .set(bearer(people.accessToken))
       .send({})
       .expect(200);
-    const bundle = JSON.parse((await get(`/api/visits/${waiting.id}/fhir`, supervisor)).text) as Bundle;
+    const bundle = JSON.parse(
+      (await get(`/api/visits/${waiting.id}/fhir`, supervisor)).text,
+    ) as Bundle;
     expect(fhirErrors(bundle)).toEqual([]);
     const provenance = ofType<import('fhir/r4').Provenance>(bundle, 'Provenance');
     expect(provenance.map((p) => p.activity?.text)).toEqual(['Signed', 'Countersigned']);
     expect(provenance[1]?.signature?.[0]?.type[0]?.code).toBe('1.2.840.10065.1.12.1.5');
-    const names = ofType<import('fhir/r4').Practitioner>(bundle, 'Practitioner').map((p) => p.name?.[0]?.text);
+    const names = ofType<import('fhir/r4').Practitioner>(bundle, 'Practitioner').map(
+      (p) => p.name?.[0]?.text,
+    );
     expect(names).toContain(people.person.name);
   });
 
@@ -211,7 +235,8 @@ describe('the FHIR export of one visit', () => {
     expect(fhirErrors(bundle)).toEqual([]);
     expect(ofType<import('fhir/r4').Encounter>(bundle, 'Encounter')[0]?.status).toBe('in-progress');
     expect(ofType<import('fhir/r4').Provenance>(bundle, 'Provenance')).toEqual([]);
-    for (const o of ofType<Observation>(bundle, 'Observation')) expect(o.status).toBe('preliminary');
+    for (const o of ofType<Observation>(bundle, 'Observation'))
+      expect(o.status).toBe('preliminary');
   });
 
   it('answers 404 outside the visit site, 403 to an admin and 400 naming a bad id', async () => {

@@ -15,8 +15,7 @@ const str = (value: JsonValue | undefined): string | null =>
   typeof value === 'string' ? value : null;
 
 export type VisitSource =
-  | { found: false }
-  | { found: true; visit: StoredRecord; input: VisitExportInput | null };
+  { found: false } | { found: true; visit: StoredRecord; input: VisitExportInput | null };
 
 @Injectable()
 export class FhirSourceService {

@@ -1,14 +1,6 @@
 // The FHIR routes (docs/fhir.md): one visit as a Bundle, and the bulk export as NDJSON.
 import { Readable } from 'node:stream';
-import {
-  Controller,
-  Get,
-  Header,
-  Inject,
-  Param,
-  Query,
-  StreamableFile,
-} from '@nestjs/common';
+import { Controller, Get, Header, Inject, Param, Query, StreamableFile } from '@nestjs/common';
 import { ApiOperation, ApiTags } from '@nestjs/swagger';
 import type { Bundle } from 'fhir/r4';
 import { ApiSignedIn } from '../auth/api-docs';
@@ -31,7 +23,8 @@ export class FhirController {
   @Header('Content-Type', 'application/fhir+json')
   @Header('Cache-Control', 'no-store')
   @ApiOperation({
-    summary: 'The visit as a FHIR R4 Bundle (collection): patient, practitioners, encounter, provenance, observations',
+    summary:
+      'The visit as a FHIR R4 Bundle (collection): patient, practitioners, encounter, provenance, observations',
   })
   visit(
     @CurrentUser() user: AuthUser,
@@ -45,7 +38,8 @@ export class FhirController {
   @Header('Content-Type', 'application/fhir+ndjson')
   @Header('Cache-Control', 'no-store')
   @ApiOperation({
-    summary: 'Every FHIR resource of signed visits changed since a time in the supervisor’s sites, as NDJSON',
+    summary:
+      'Every FHIR resource of signed visits changed since a time in the supervisor’s sites, as NDJSON',
   })
   bulk(@CurrentUser() user: AuthUser, @Query() query: BulkExportParams): StreamableFile {
     const sites = this.exports.bulkSites(user, query.site);

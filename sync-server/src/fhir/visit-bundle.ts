@@ -234,7 +234,10 @@ export function buildVisitBundle(
   return bundleOf(visitResources(input), options.type);
 }
 
-export function bundleOf(resources: readonly Resource[], type: 'collection' | 'transaction'): Bundle {
+export function bundleOf(
+  resources: readonly Resource[],
+  type: 'collection' | 'transaction',
+): Bundle {
   const entry: BundleEntry[] = resources.map((resource) => ({
     fullUrl: `urn:uuid:${resource.id!}`,
     resource,
@@ -263,8 +266,7 @@ export function visitResources(input: VisitExportInput): ExportedResource[] {
     return known;
   };
   const signer = signed ? practitioner(str(v.signedBy) ?? str(v.clinicianId)) : null;
-  const countersigner =
-    status === 'countersigned' ? practitioner(str(v.countersignedBy)) : null;
+  const countersigner = status === 'countersigned' ? practitioner(str(v.countersignedBy)) : null;
   const clinician = practitioner(str(v.clinicianId));
 
   const encounter: Encounter = {
@@ -413,7 +415,10 @@ export function visitResources(input: VisitExportInput): ExportedResource[] {
       id: derivedId(visit.id, 'signed', signedAt),
       target: targets,
       recorded: signedAt,
-      activity: { coding: [{ system: DATA_OPERATION, code: 'CREATE', display: 'create' }], text: 'Signed' },
+      activity: {
+        coding: [{ system: DATA_OPERATION, code: 'CREATE', display: 'create' }],
+        text: 'Signed',
+      },
       agent: [
         {
           type: { coding: [{ system: PROVENANCE_PARTICIPANT, code: 'author', display: 'Author' }] },
@@ -422,7 +427,13 @@ export function visitResources(input: VisitExportInput): ExportedResource[] {
       ],
       signature: [
         {
-          type: [{ system: SIGNATURE_TYPE, code: '1.2.840.10065.1.12.1.1', display: "Author's Signature" }],
+          type: [
+            {
+              system: SIGNATURE_TYPE,
+              code: '1.2.840.10065.1.12.1.1',
+              display: "Author's Signature",
+            },
+          ],
           when: signedAt,
           who: ref(signer),
         },
@@ -436,7 +447,10 @@ export function visitResources(input: VisitExportInput): ExportedResource[] {
       id: derivedId(visit.id, 'countersigned', countersignedAt),
       target: targets,
       recorded: countersignedAt,
-      activity: { coding: [{ system: DATA_OPERATION, code: 'UPDATE', display: 'revise' }], text: 'Countersigned' },
+      activity: {
+        coding: [{ system: DATA_OPERATION, code: 'UPDATE', display: 'revise' }],
+        text: 'Countersigned',
+      },
       agent: [
         {
           type: {
@@ -447,7 +461,13 @@ export function visitResources(input: VisitExportInput): ExportedResource[] {
       ],
       signature: [
         {
-          type: [{ system: SIGNATURE_TYPE, code: '1.2.840.10065.1.12.1.5', display: 'Verification Signature' }],
+          type: [
+            {
+              system: SIGNATURE_TYPE,
+              code: '1.2.840.10065.1.12.1.5',
+              display: 'Verification Signature',
+            },
+          ],
           when: countersignedAt,
           who: ref(countersigner),
         },
@@ -464,7 +484,10 @@ export function visitResources(input: VisitExportInput): ExportedResource[] {
       id: derivedId(addendum.id, 'addendum'),
       target: [ref(encounter), ...amended.map(ref)],
       recorded: addendum.writtenAt,
-      activity: { coding: [{ system: DATA_OPERATION, code: 'UPDATE', display: 'revise' }], text: 'Addendum' },
+      activity: {
+        coding: [{ system: DATA_OPERATION, code: 'UPDATE', display: 'revise' }],
+        text: 'Addendum',
+      },
       reason: [{ text: addendum.text }],
       agent: [
         {
