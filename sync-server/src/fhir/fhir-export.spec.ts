@@ -7,7 +7,11 @@ import { clinicalDemoRecords } from '../seed/clinical-demo.data';
 import { demoToday } from '../seed/clinical-demo.seed';
 import { DEMO_PEOPLE, DEMO_SITES } from '../seed/demo-scenario';
 import { SeedService } from '../seed/seed.service';
+import { tabletAt } from '../letters/testing/letters-test-kit';
 import { bearer, signInAs } from '../testing/identity-factory';
+import { startVersionsBelowPowerOfTen, versionLengths } from '../testing/version-boundary';
+import { FhirExportService } from './fhir-export.service';
+import { pushSignedVisit, type PushedVisit } from './testing/handoff-kit';
 import { createTestApp, type TestApp } from '../testing/test-app';
 import { FINDING_FIELDS, FUSELIGHT_CODE_SYSTEM, SNOMED_CT, UCUM } from './fhir-codes';
 import { fhirErrors } from './testing/fhir-validator';
@@ -246,5 +250,146 @@ describe('the FHIR export of one visit', () => {
     await get(`/api/visits/01935a10-0002-7000-8000-0000000fffff/fhir`, supervisor).expect(404);
     const bad = await get('/api/visits/not-a-visit/fhir', supervisor).expect(400);
     expect(JSON.stringify(bad.body)).toContain('id must be a visit id');
+  });
+});
+
+describe('the FHIR bulk export', () => {
+  let t: TestApp;
+  let supervisor: Awaited<ReturnType<typeof signInAs>>;
+  let outreachSupervisor: string;
+  let clinician: string;
+  const later: PushedVisit[] = [];
+  const demo = clinicalDemoRecords({ today: demoToday(new Date('2026-12-01T09:00:00.000Z')) });
+  const signedDemoVisits = demo.filter(
+    (r) => r.collection === 'visit' && r.fields.status === 'signed',
+  );
+
+  const lines = (text: string): Resource[] =>
+    text
+      .split('\n')
+      .filter((line) => line !== '')
+      .map((line) => JSON.parse(line) as Resource);
+
+  beforeAll(async () => {
+    t = await createTestApp();
+    await t.app.get(SeedService).run();
+    // Data that has lived: later visits are numbered with one digit more than the demo's.
+    await startVersionsBelowPowerOfTen(t.db.url, { transactionsBefore: 1 });
+    const tablet = await tabletAt(t, 'orthoptist', [DEMO_SITES.main.id]);
+    for (let i = 0; i < 5; i += 1) later.push(await pushSignedVisit(tablet, DEMO_SITES.main.id));
+    const both = [DEMO_SITES.main.id, DEMO_SITES.outreach.id];
+    supervisor = await signInAs(t, { role: 'supervisor', siteIds: both });
+    outreachSupervisor = (
+      await signInAs(t, { role: 'supervisor', siteIds: [DEMO_SITES.outreach.id] })
+    ).accessToken;
+    clinician = (await signInAs(t, { role: 'orthoptist', siteIds: both })).accessToken;
+  });
+  afterAll(async () => {
+    await t.close();
+  });
+
+  it('streams every resource of the signed visits once, each valid, as application/fhir+ndjson', async () => {
+    const res = await request(t.app.getHttpServer())
+      .get('/api/fhir/export?since=2000-01-01T00:00:00Z')
+      .set(bearer(supervisor.accessToken))
+      .buffer(true)
+      .parse((r, done) => {
+        let text = '';
+        r.on('data', (c: Buffer) => (text += c.toString('utf8')));
+        r.on('end', () => done(null, text));
+      })
+      .expect(200);
+    expect(res.headers['content-type']).toMatch(/^application\/fhir\+ndjson/);
+    const resources = lines(res.body as string);
+    for (const resource of resources) expect(fhirErrors(resource)).toEqual([]);
+    const keys = resources.map((r) => `${r.resourceType}/${r.id!}`);
+    expect(new Set(keys).size).toBe(keys.length);
+    const encounters = resources.filter((r) => r.resourceType === 'Encounter').map((r) => r.id);
+    expect(encounters.sort()).toEqual(
+      [...signedDemoVisits.map((v) => v.id), ...later.map((v) => v.visitId)].sort(),
+    );
+    // Every patient of the site is there, also those with only today's draft booking.
+    const patients = resources.filter((r) => r.resourceType === 'Patient').map((r) => r.id);
+    expect(patients.sort()).toEqual(
+      [
+        ...demo.filter((r) => r.collection === 'patient').map((r) => r.id),
+        ...later.map((v) => v.patientId),
+      ].sort(),
+    );
+  });
+
+  it('reads in pages across the change of digit count without losing or repeating a resource', async () => {
+    const store = t.app.get(RecordStore);
+    const versions = await Promise.all(
+      [signedDemoVisits[0]!.id, later[0]!.visitId].map(
+        async (id) => (await store.byId(t.em(), id))!.version,
+      ),
+    );
+    expect(versionLengths(versions).length).toBe(2);
+    const exports = t.app.get(FhirExportService);
+    const user = {
+      userId: supervisor.person.id,
+      role: 'supervisor' as const,
+      siteIds: supervisor.person.siteIds,
+      deviceId: null,
+      sessionId: 'spec',
+    };
+    const read = async (pageSize: number) => {
+      let text = '';
+      for await (const chunk of exports.bulkLines(
+        user,
+        user.siteIds,
+        new Date('2000-01-01T00:00:00Z'),
+        pageSize,
+      ))
+        text += chunk;
+      return lines(text).map((r) => `${r.resourceType}/${r.id!}`);
+    };
+    const whole = await read(10_000);
+    const paged = await read(3);
+    expect(paged.length).toBe(whole.length);
+    expect(new Set(paged)).toEqual(new Set(whole));
+  });
+
+  it('sends only what changed since the time, only in the site asked for', async () => {
+    t.clock.advance(60_000);
+    const since = t.clock.now().toISOString();
+    t.clock.advance(60_000);
+    const tablet = await tabletAt(t, 'orthoptist', [DEMO_SITES.main.id]);
+    const fresh = await pushSignedVisit(tablet, DEMO_SITES.main.id);
+    const res = await request(t.app.getHttpServer())
+      .get(`/api/fhir/export?since=${encodeURIComponent(since)}&site=${DEMO_SITES.main.id}`)
+      .set(bearer(supervisor.accessToken))
+      .expect(200);
+    const resources = lines(res.text);
+    expect(resources.filter((r) => r.resourceType === 'Encounter').map((r) => r.id)).toEqual([
+      fresh.visitId,
+    ]);
+    const outreach = await request(t.app.getHttpServer())
+      .get(`/api/fhir/export?since=${encodeURIComponent(since)}&site=${DEMO_SITES.outreach.id}`)
+      .set(bearer(supervisor.accessToken))
+      .expect(200);
+    expect(outreach.text).toBe('');
+  });
+
+  it('is for supervisors of the site only, and names a bad parameter', async () => {
+    const server = t.app.getHttpServer();
+    await request(server)
+      .get('/api/fhir/export?since=2000-01-01T00:00:00Z')
+      .set(bearer(clinician))
+      .expect(403);
+    const other = await request(server)
+      .get(`/api/fhir/export?since=2000-01-01T00:00:00Z&site=${DEMO_SITES.main.id}`)
+      .set(bearer(outreachSupervisor))
+      .expect(403);
+    expect(other.headers['content-type']).toMatch(/^application\/json/);
+    expect(JSON.stringify(other.body)).toContain(
+      `site: ${DEMO_SITES.main.id} is not one of the sites`,
+    );
+    const bad = await request(server)
+      .get('/api/fhir/export?since=yesterday')
+      .set(bearer(supervisor.accessToken))
+      .expect(400);
+    expect(JSON.stringify(bad.body)).toContain('since: give the time as ISO 8601');
   });
 });

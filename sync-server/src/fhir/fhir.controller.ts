@@ -35,7 +35,6 @@ export class FhirController {
 
   @Get('fhir/export')
   @Roles('supervisor')
-  @Header('Content-Type', 'application/fhir+ndjson')
   @Header('Cache-Control', 'no-store')
   @ApiOperation({
     summary:
