@@ -173,3 +173,35 @@ describe('the hand-off without FHIR_BASE_URL', () => {
     }
   });
 });
+
+describe('the hospital record fields on a push', () => {
+  it('refuses a tablet that writes them and names the field', async () => {
+    const t = await createTestApp();
+    try {
+      const site = await createSite(t);
+      const tablet = await tabletAt(t, 'orthoptist', [site.id]);
+      const visit = await pushSignedVisit(tablet, site.id);
+      const version = (await t.app.get(RecordStore).byId(t.em(), visit.visitId))!.version;
+      const answer = await tablet.push(
+        'visit',
+        visit.visitId,
+        { hospitalRecordState: 'sent', reason: 'Review' },
+        version,
+      );
+      expect(answer.results[0]).toMatchObject({
+        status: 'rejected',
+        error:
+          "changes.0: fields.hospitalRecordState: the hospital record's state is written by the clinic server's hand-off, never by a tablet",
+      });
+      const cleared = await tablet.push(
+        'visit',
+        visit.visitId,
+        { hospitalRecordNote: null },
+        version,
+      );
+      expect(cleared.results[0]?.status).not.toBe('rejected');
+    } finally {
+      await t.close();
+    }
+  });
+});
