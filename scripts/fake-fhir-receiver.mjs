@@ -134,7 +134,7 @@ export async function startFakeFhirReceiver({ port = 0, host = '127.0.0.1' } = {
     const chunks = [];
     req.on('data', (c) => chunks.push(c));
     req.on('end', () => {
-      let bundle = null;
+      let bundle;
       try {
         bundle = JSON.parse(Buffer.concat(chunks).toString('utf8'));
       } catch {
