@@ -46,8 +46,8 @@ describe('the hospital record on the Visit', () => {
     expect(hospitalRecordWords({}, 'UTC')).toBeNull();
   });
 
-  it('shows nothing for a draft visit', () => {
-    const { container } = render(
+  it('offers no download for a draft visit and says what signing does', () => {
+    render(
       <HospitalRecordPanel
         visitId={VISIT_ID}
         status="draft"
@@ -56,7 +56,10 @@ describe('the hospital record on the Visit', () => {
         loadFhir={() => Promise.resolve('{}')}
       />,
     );
-    expect(container.textContent).toBe('');
+    expect(screen.getByTestId('hospital-record-state').textContent).toMatch(
+      /^Once signed, this visit is sent to the hospital record/,
+    );
+    expect(screen.queryByRole('button', { name: 'Download FHIR' })).toBeNull();
   });
 
   it('downloads the FHIR export of a signed visit as a .fhir.json file', async () => {

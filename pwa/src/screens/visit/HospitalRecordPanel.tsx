@@ -1,6 +1,6 @@
 // The hospital record on the Visit: whether the signed visit reached it (written by the clinic
 // server's hand-off, so it shows offline too) and "Download FHIR", which needs the server.
-import { useEffect, useState } from 'react';
+import { memo, useEffect, useState } from 'react';
 import type { VisitStatus } from '@fuselight/shared';
 import { hospitalRecordWords, type HospitalRecordFields } from './hospital-record';
 
@@ -18,7 +18,7 @@ function useOnline(): boolean {
   return online;
 }
 
-export function HospitalRecordPanel({
+function HospitalRecordPanelView({
   visitId,
   status,
   fields,
@@ -35,8 +35,20 @@ export function HospitalRecordPanel({
   const online = useOnline();
   const [busy, setBusy] = useState(false);
   const [message, setMessage] = useState<string | null>(null);
-  if (status === 'draft') return null;
   const state = hospitalRecordWords(fields, timeZone);
+  if (status === 'draft') {
+    return (
+      <section className="flc-panel" aria-labelledby="hospital-record-title" id="section-hospital">
+        <header>
+          <h2 id="hospital-record-title">Hospital record</h2>
+        </header>
+        <p data-testid="hospital-record-state">
+          Once signed, this visit is sent to the hospital record (where the clinic server is set up
+          for it) and can be downloaded as FHIR.
+        </p>
+      </section>
+    );
+  }
 
   const download = async () => {
     setBusy(true);
@@ -84,3 +96,6 @@ export function HospitalRecordPanel({
     </section>
   );
 }
+
+/** Memoised: the Visit re-renders on every keystroke of a Section, this panel only when it changes. */
+export const HospitalRecordPanel = memo(HospitalRecordPanelView);
