@@ -70,6 +70,30 @@ describe('the hand-off of signed visits to the hospital record', () => {
     expect(receiver.received).toHaveLength(5);
   });
 
+  it('lists what the receiver accepted on its page, and it refuses what is not a valid transaction', async () => {
+    const visit = await pushSignedVisit(tablet, siteId, { clinicNumber: 'HX-PAGE-1' });
+    await handoff().runOnce();
+    const page = await (await fetch(receiver.page)).text();
+    expect(page).toContain('<td>HX-PAGE-1</td>');
+    const invalid = await fetch(receiver.url, {
+      method: 'POST',
+      headers: { 'content-type': 'application/fhir+json' },
+      body: JSON.stringify({
+        resourceType: 'Bundle',
+        type: 'transaction',
+        entry: [{ resource: { resourceType: 'Patient', gender: 'mostly' } }],
+      }),
+    });
+    expect(invalid.status).toBe(400);
+    const outcome = (await invalid.json()) as {
+      resourceType: string;
+      issue: { diagnostics: string }[];
+    };
+    expect(outcome.resourceType).toBe('OperationOutcome');
+    expect(outcome.issue[0]?.diagnostics).toMatch(/Patient\.gender: Code "mostly" not found/);
+    expect(await visitFields(visit.visitId)).toMatchObject({ hospitalRecordState: 'sent' });
+  });
+
   it('sends again when the visit is countersigned and when an Addendum is written', async () => {
     const visit = await pushSignedVisit(tablet, siteId);
     await handoff().runOnce();
