@@ -32,6 +32,8 @@ export default tseslint.config(
   {
     ignores: [
       '**/node_modules/**',
+      // Type declarations of plain-Node scripts that the server's tests import (no tsconfig).
+      'scripts/*.d.mts',
       '**/dist/**',
       '**/dev-dist/**',
       '.fuselight/**',

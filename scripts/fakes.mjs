@@ -1,10 +1,12 @@
 #!/usr/bin/env node
 // Local stand-ins for the production relays, on loopback only: an SMTP server with an inbox
-// page (maildev) and an S3-compatible store (s3rver). `npm start` runs this as a child process.
-//   SMTP_PORT (1025)  MAILDEV_WEB_PORT (1080)  S3_PORT (4569)  S3_DIR  S3_BUCKET
+// page (maildev), an S3-compatible store (s3rver) and a FHIR server standing in for the hospital
+// record (fake-fhir-receiver.mjs). `npm start` runs this as a child process.
+//   SMTP_PORT (1025)  MAILDEV_WEB_PORT (1080)  S3_PORT (4569)  S3_DIR  S3_BUCKET  FHIR_FAKE_PORT (8088)
 import { mkdirSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { join } from 'node:path';
+import { startFakeFhirReceiver } from './fake-fhir-receiver.mjs';
 import { repoRoot } from './lib.mjs';
 
 const require = createRequire(join(repoRoot, 'sync-server', 'package.json'));
@@ -38,13 +40,16 @@ const s3 = new S3rver({
 });
 await s3.run();
 
+const fhir = await startFakeFhirReceiver({ port: Number(process.env.FHIR_FAKE_PORT ?? 8088) });
+
 console.log(
-  `fakes ready: smtp 127.0.0.1:${smtpPort}, inbox http://127.0.0.1:${webPort}, s3 http://127.0.0.1:${s3Port} bucket ${bucket}`,
+  `fakes ready: smtp 127.0.0.1:${smtpPort}, inbox http://127.0.0.1:${webPort}, s3 http://127.0.0.1:${s3Port} bucket ${bucket}, fhir ${fhir.url} (page ${fhir.page})`,
 );
 
 const stop = async () => {
   await new Promise((resolve) => maildev.close(() => resolve()));
   await s3.close();
+  await fhir.close();
   process.exit(0);
 };
 process.on('SIGINT', stop);

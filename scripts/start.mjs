@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 // `npm start`: sets up and runs the whole product on this machine — npm packages, Debian's
 // PostgreSQL (a private cluster on 127.0.0.1 that keeps its data between starts), migrations and
-// the invented demo clinic, the local SMTP and S3 fakes, the built PWA and the NestJS server.
+// the invented demo clinic, the local SMTP, S3 and FHIR fakes, the built PWA and the NestJS server.
 // Ctrl-C stops everything it started, PostgreSQL included.
 import { spawn } from 'node:child_process';
 import { join } from 'node:path';
@@ -23,6 +23,7 @@ import {
 const port = Number(process.env.PORT ?? 3000);
 const pgPort = Number(process.env.FUSELIGHT_PG_PORT ?? 54329);
 const inboxPort = Number(process.env.MAILDEV_WEB_PORT ?? 1080);
+const fhirFakePort = Number(process.env.FHIR_FAKE_PORT ?? 8088);
 const pgDir = clusterDir('pg');
 const children = [];
 let clusterUp = false;
@@ -92,6 +93,8 @@ async function main() {
     PWA_DIST: join(repoRoot, 'pwa', 'dist'),
     SEED_DEMO: 'true',
     S3_DIR: join(pgDir, '..', 's3'),
+    // Signed visits are handed to the local fake hospital record unless a real one is named.
+    FHIR_BASE_URL: process.env.FHIR_BASE_URL ?? `http://127.0.0.1:${fhirFakePort}/fhir`,
   };
   await step('build the PWA and the server', async () => {
     await run('npm', ['run', 'build', '-w', 'pwa', '--silent'], {
@@ -112,12 +115,16 @@ async function main() {
   });
   const fakes = spawnChild('fakes', ['scripts/fakes.mjs'], env);
   await step(
-    'start the local SMTP and S3 fakes',
+    'start the local SMTP, S3 and FHIR fakes',
     () =>
       new Promise((resolve, reject) => {
         fakes.stdout.on('data', (d) => d.toString().includes('fakes ready') && resolve());
         fakes.on('exit', () =>
-          reject(new Error('the fakes process exited (is port 1025, 1080 or 4569 in use?)')),
+          reject(
+            new Error(
+              `the fakes process exited (is port 1025, 1080, 4569 or ${fhirFakePort} in use?)`,
+            ),
+          ),
         );
       }),
   );
@@ -132,6 +139,7 @@ Fuselight is running.
   API health                http://127.0.0.1:${port}/api/health
   API documentation         http://127.0.0.1:${port}/api/docs
   Sent e-mail (inbox page)  http://127.0.0.1:${inboxPort}
+  Hospital record (FHIR)    http://127.0.0.1:${fhirFakePort}  (what the hand-off sent)
 ${seedLines.map((l) => `  ${l}`).join('\n')}
 Press Ctrl-C to stop everything.`);
 }

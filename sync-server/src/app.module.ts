@@ -13,6 +13,7 @@ import { ZodValidationPipe } from './common/zod-validation.pipe';
 import type { AppConfig } from './config/app-config';
 import { ormOptions } from './database/orm-options';
 import { DevicesModule } from './devices/devices.module';
+import { FhirModule } from './fhir/fhir.module';
 import { HealthModule } from './health/health.module';
 import { LettersModule } from './letters/letters.module';
 import { MailModule } from './mail/mail.module';
@@ -49,6 +50,7 @@ export class AppModule {
         LettersModule,
         MailModule,
         AttachmentsModule,
+        FhirModule,
       ],
       providers: [
         { provide: APP_GUARD, useClass: JwtAuthGuard },

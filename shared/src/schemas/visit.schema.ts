@@ -12,6 +12,9 @@ export const visitStatusSchema = choice(
 );
 export type VisitStatus = z.infer<typeof visitStatusSchema>;
 
+export const HOSPITAL_RECORD_STATES = ['waiting', 'sent', 'refused'] as const;
+export type HospitalRecordState = (typeof HOSPITAL_RECORD_STATES)[number];
+
 export const visitSchema = z.object({
   siteId: id('Site'),
   patientId: id('Patient'),
@@ -25,5 +28,14 @@ export const visitSchema = z.object({
   countersignedBy: id('Countersigned by').nullish(),
   countersignedAt: instant('Countersigned at').nullish(),
   returnedComment: text('Comment on return', { max: 2000 }).nullish(),
+  // Written by the server's FHIR hand-off (docs/fhir.md), never by a tablet: whether the signed
+  // visit reached the hospital record, when that state was reached, and why it was refused.
+  hospitalRecordState: choice(
+    'Hospital record',
+    { waiting: 'Waiting to send', sent: 'Sent', refused: 'Refused' },
+    HOSPITAL_RECORD_STATES,
+  ).nullish(),
+  hospitalRecordAt: instant('Hospital record state at').nullish(),
+  hospitalRecordNote: text('Hospital record note', { max: 1000 }).nullish(),
 });
 export type VisitFields = z.infer<typeof visitSchema>;

@@ -30,6 +30,11 @@ export interface AppConfig {
   };
   /** Largest attachment accepted, in bytes. */
   attachmentMaxBytes: number;
+  /**
+   * Base URL of the hospital's FHIR server that signed visits are handed to (FHIR_BASE_URL), or
+   * null: then nothing is sent (docs/fhir.md).
+   */
+  fhirBaseUrl: string | null;
   /** Seed the invented demo clinic (never in production). */
   seedDemo: boolean;
 }
@@ -46,6 +51,20 @@ function int(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
     throw new Error(`Configuration: ${name} must be a non-negative whole number, got "${raw}"`);
   }
   return value;
+}
+
+function fhirBaseUrl(raw: string | undefined): string | null {
+  if (raw === undefined || raw.trim() === '') return null;
+  let url: URL;
+  try {
+    url = new URL(raw.trim());
+  } catch {
+    throw new Error(`Configuration: FHIR_BASE_URL must be an http(s) URL, got "${raw}"`);
+  }
+  if (url.protocol !== 'http:' && url.protocol !== 'https:') {
+    throw new Error(`Configuration: FHIR_BASE_URL must be an http(s) URL, got "${raw}"`);
+  }
+  return url.toString().replace(/\/+$/, '');
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
@@ -86,6 +105,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
       forcePathStyle: env.S3_FORCE_PATH_STYLE !== 'false',
     },
     attachmentMaxBytes: int(env, 'ATTACHMENT_MAX_BYTES', 15 * 1024 * 1024),
+    fhirBaseUrl: fhirBaseUrl(env.FHIR_BASE_URL),
     seedDemo: nodeEnv !== 'production' && env.SEED_DEMO === 'true',
   };
 }

@@ -12,6 +12,7 @@ import { Migration20261202000000SupersededHistory } from './Migration20261202000
 import { Migration20261204000000VersionOffsetAndCursorEpoch } from './Migration20261204000000VersionOffsetAndCursorEpoch';
 import { Migration20261204100000OpenDisputeOrder } from './Migration20261204100000OpenDisputeOrder';
 import { Migration20261205000000RestoreTimeline } from './Migration20261205000000RestoreTimeline';
+import { Migration20261205000000FhirHandoff } from './Migration20261205000000FhirHandoff';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -40,4 +41,5 @@ export const migrationsList: MigrationObject[] = [
     name: 'Migration20261205000000RestoreTimeline',
     class: Migration20261205000000RestoreTimeline,
   },
+  { name: 'Migration20261205000000FhirHandoff', class: Migration20261205000000FhirHandoff },
 ];

@@ -137,6 +137,49 @@ export class RecordStore {
   }
 
   /**
+   * Up to `limit` records of the collections (deleted or not) with versions after `after` and
+   * below `bound`, in version order, optionally only those of `sites` and last written at or
+   * after `since`: the FHIR bulk export's and hand-off's page (fhir/). Compared and ordered as
+   * numbers on the bigint column.
+   */
+  async changedPage(
+    em: EntityManager,
+    page: {
+      collections: readonly CollectionName[];
+      after: number;
+      bound: number | null;
+      sites: readonly string[] | null;
+      since: Date | null;
+      limit: number;
+    },
+  ): Promise<StoredRecord[]> {
+    if (page.collections.length === 0 || page.sites?.length === 0) return [];
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS_R}
+         from "sync_record" r
+        where r."collection" in (select jsonb_array_elements_text(?::jsonb))
+          and r."version" > ?
+          and (?::bigint is null or r."version" < ?::bigint)
+          and (?::jsonb is null or r."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid))
+          and (?::timestamptz is null or r."updated_at" >= ?::timestamptz)
+        order by r."version" limit ?`,
+      [
+        jsonParam(page.collections),
+        page.after,
+        page.bound,
+        page.bound,
+        page.sites ? jsonParam(page.sites) : null,
+        page.sites ? jsonParam(page.sites) : null,
+        page.since?.toISOString() ?? null,
+        page.since?.toISOString() ?? null,
+        page.limit,
+      ],
+    );
+    return rows.map(recordFromRow);
+  }
+
+  /**
    * The bound below which versions are final for any snapshot taken after this returns
    * (record-version.ts). Its own statement, outside and before the pull's transaction.
    */

@@ -22,6 +22,7 @@ import { canWriteClinical, hasSiteAccess } from '../auth/scope';
 import type { AuthUser } from '../auth/auth-user';
 import type { IdGenerator } from '../common/clock.provider';
 import { describeZodError } from '../common/zod-validation.pipe';
+import { visitPushProblem } from '../fhir/visit-push-rule';
 import { letterPushProblem } from '../letters/letter-push-rule';
 import type { VersionAllocator } from '../records/record-version';
 import type { ConflictInsert, RecordWrite } from '../records/record-store';
@@ -123,6 +124,13 @@ export class PushPlanner {
         deleting: change.deleted === true,
       });
       if (letterProblem) return rejected(`changes.${index}: ${letterProblem}`);
+    }
+    if (change.collection === 'visit') {
+      const visitProblem = visitPushProblem(
+        record && !record.deleted ? record.fields : null,
+        changedValues(record, fields),
+      );
+      if (visitProblem) return rejected(`changes.${index}: ${visitProblem}`);
     }
     return { kind: 'accepted', plan: this.merge(record, change, fields) };
   }

@@ -558,8 +558,8 @@ describe('letters and photos on the Visit', () => {
       within(jumps)
         .getAllByRole('button')
         .map((b) => b.textContent)
-        .slice(-3),
-    ).toEqual(['Sign', 'Letters', 'Photos and files']);
+        .slice(-4),
+    ).toEqual(['Sign', 'Hospital record', 'Letters', 'Photos and files']);
   });
 
   it('drafts a letter on a signed visit, whose Sections stay locked', async () => {

@@ -22,7 +22,7 @@ import {
 import { useCallback, useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router-dom';
 import { AttachmentPanel } from '../../attachments/AttachmentPanel';
-import { useAuthState } from '../../auth/SessionProvider';
+import { useAuthState, useSessionStore } from '../../auth/SessionProvider';
 import { useSession } from '../../auth/session-context';
 import { AcuityEntries } from '../../components/charting/AcuityEntries';
 import { AmblyoscopeSummary } from '../../components/charting/AmblyoscopeSummary';
@@ -47,6 +47,8 @@ import {
   useVisitBundle,
   type VisitBundle,
 } from '../../data/charting';
+import { fetchVisitFhir } from './hospital-record';
+import { HospitalRecordPanel } from './HospitalRecordPanel';
 import { PanelBoundary } from './PanelBoundary';
 import { clinicForLetters } from './visit-letterhead';
 import { personLabel } from '../../auth/person-names';
@@ -76,6 +78,7 @@ const JUMPS: readonly [string, string][] = [
   ...SECTIONS.map((s): [string, string] => [`section-${s.collection}`, s.title]),
   ['section-interpretation', 'Interpretation'],
   ['section-sign', 'Sign'],
+  ['section-hospital', 'Hospital record'],
   ['section-letters', 'Letters'],
   ['section-attachments', 'Photos and files'],
 ];
@@ -140,6 +143,16 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
   const { visit, patient, sections, addenda } = bundle;
   const { user } = useSession();
   const { sites, colleagues } = useAuthState();
+  const sessionStore = useSessionStore();
+  const loadFhir = useCallback(
+    async () =>
+      fetchVisitFhir({
+        fetch: (input, init) => fetch(input, init),
+        token: user ? await sessionStore.tokenFor(user.id) : null,
+        visitId: visit.id,
+      }),
+    [sessionStore, user, visit.id],
+  );
   const clinic = useMemo(
     () => clinicForLetters(sites, visit.fields.siteId),
     [sites, visit.fields.siteId],
@@ -246,6 +259,13 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
       })}
       <InterpretationSummary sections={values} ageYears={age} addenda={addenda} who={who} />
       <SignPanel bundle={bundle} blockedReason={blockedReason} who={who} />
+      <HospitalRecordPanel
+        visitId={visit.id}
+        status={visit.fields.status}
+        fields={visit.fields}
+        timeZone={sites[visit.fields.siteId]?.timeZone ?? 'UTC'}
+        loadFhir={loadFhir}
+      />
       <div id="section-letters">
         <PanelBoundary title="Letters">
           <LetterPanel visitId={visit.id} clinic={clinic} />
