@@ -15,6 +15,7 @@ import { ormOptions } from './database/orm-options';
 import { DevicesModule } from './devices/devices.module';
 import { HealthModule } from './health/health.module';
 import { LettersModule } from './letters/letters.module';
+import { LiveModule } from './live/live.module';
 import { MailModule } from './mail/mail.module';
 import { SeedModule } from './seed/seed.module';
 import { SitesModule } from './sites/sites.module';
@@ -44,6 +45,7 @@ export class AppModule {
         AdminModule,
         RecordsModule,
         SyncModule,
+        LiveModule,
         ConflictsModule,
         ReviewModule,
         LettersModule,

@@ -64,9 +64,19 @@ export interface TestApp {
 }
 
 export async function createTestApp(
-  options: { env?: Record<string, string>; clock?: TestClock; pushObserver?: PushObserver } = {},
+  options: {
+    env?: Record<string, string>;
+    clock?: TestClock;
+    pushObserver?: PushObserver;
+    /**
+     * Another app's database: a second server process on the same PostgreSQL (its close() leaves
+     * the database to its owner).
+     */
+    db?: TestDatabase;
+  } = {},
 ): Promise<TestApp> {
-  const db = await createTestDatabase();
+  const db = options.db ?? (await createTestDatabase());
+  const ownsDb = options.db === undefined;
   const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.url, ...options.env });
   const clock = options.clock ?? new TestClock();
   const app = await createApp(config, { clock, logger: false, pushObserver: options.pushObserver });
@@ -79,7 +89,7 @@ export async function createTestApp(
     em: () => (app.get(MikroORM).em as EntityManager).fork(),
     async close() {
       await app.close();
-      await db.drop();
+      if (ownsDb) await db.drop();
     },
   };
 }
