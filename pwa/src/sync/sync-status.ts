@@ -2,6 +2,7 @@
 // the Outbox, the progress of a long pull, and any problem in words. One small store per engine,
 // read by React through useSyncExternalStore.
 import type { FullRepull } from './full-repull';
+import type { LiveState } from './live-stream';
 
 export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
 
@@ -31,6 +32,8 @@ export interface SyncStatus {
   consecutiveFailures: number;
   /** A pull from the start the server asked for: under way (finishedAt null) or the last one done. */
   fullRepull: FullRepull | null;
+  /** The live-changes stream: 'live' while other tablets' changes arrive without waiting. */
+  live: LiveState;
 }
 
 export const INITIAL_SYNC_STATUS: SyncStatus = {
@@ -47,6 +50,7 @@ export const INITIAL_SYNC_STATUS: SyncStatus = {
   nextAttemptAt: null,
   consecutiveFailures: 0,
   fullRepull: null,
+  live: 'off',
 };
 
 export class SyncStatusStore {

@@ -1,10 +1,12 @@
 // The count on the Review desk tab: open Disputes plus visits waiting for a countersignature, from
 // GET /api/review/summary (the same query the desk's own tabs read, so they agree). It is a
 // server figure, so offline, or when the last ask failed, the tab shows no number at all rather
-// than a stale one.
+// than a stale one. It changes without a reload: the live stream's `review` event (a Dispute opened
+// or settled, a visit signed or countersigned at any tablet) has every Review desk query asked again.
 import { IonBadge } from '@ionic/react';
-import { useQuery } from '@tanstack/react-query';
-import { useSyncExternalStore } from 'react';
+import { useQuery, useQueryClient } from '@tanstack/react-query';
+import { useEffect, useSyncExternalStore } from 'react';
+import { subscribeReviewChanges } from '../../sync/sync-runtime';
 import { type ReviewApi, type ReviewSummary } from './review-api';
 import { useSessionReviewApi } from './review-context';
 import { queryKeys } from '../../data/query-keys';
@@ -30,7 +32,20 @@ export function tabCount(
   return total > 0 ? total : null;
 }
 
+/** Asks the Review desk's queries again whenever the live stream says its queues moved. */
+export function useLiveReviewRefresh(): void {
+  const queryClient = useQueryClient();
+  useEffect(
+    () =>
+      subscribeReviewChanges(() => {
+        void queryClient.invalidateQueries({ queryKey: queryKeys.review.all() });
+      }),
+    [queryClient],
+  );
+}
+
 export function ReviewTabCount({ api }: { api: ReviewApi }) {
+  useLiveReviewRefresh();
   const online = useSyncExternalStore(subscribeOnline, () => navigator.onLine);
   const summary = useQuery({
     queryKey: queryKeys.review.summary(),
