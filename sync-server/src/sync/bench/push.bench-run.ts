@@ -75,6 +75,8 @@ async function startBundle(databaseUrl: string): Promise<string> {
       HOST: '127.0.0.1',
       PORT: String(port),
       SEED_DEMO: 'false',
+      // One process, as the in-process app and the raw upsert it is compared with.
+      SERVER_PROCESSES: '1',
     },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
