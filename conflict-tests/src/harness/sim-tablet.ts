@@ -32,7 +32,15 @@ export class SimTablet {
     private readonly clinic: Clinic,
     readonly device: TestDevice,
     people: TestUser[],
-    private readonly options: { schemaVersion?: number; pageLimit?: number; dbName?: string } = {},
+    private readonly options: {
+      schemaVersion?: number;
+      pageLimit?: number;
+      dbName?: string;
+      /** The server this tablet talks to (default the clinic's first). */
+      baseUrl?: string;
+      /** Hold the live-changes stream and pull when it says so (the app does). */
+      live?: boolean;
+    } = {},
   ) {
     tabletCount += 1;
     this.people = people;
@@ -40,10 +48,12 @@ export class SimTablet {
     this.db = new FuselightDb(options.dbName ?? `tablet-${name}-${process.pid}-${tabletCount}`);
     this.records = new RecordsRepository(this.db);
     this.outbox = new OutboxRepository(this.db);
-    this.auth = new ServerSyncAuth(clinic.baseUrl, device, new Map(people.map((p) => [p.id, p])));
+    const baseUrl = options.baseUrl ?? clinic.baseUrl;
+    this.auth = new ServerSyncAuth(baseUrl, device, new Map(people.map((p) => [p.id, p])));
     this.engine = new SyncEngine({
       db: this.db,
-      baseUrl: clinic.baseUrl,
+      baseUrl,
+      live: options.live === true,
       auth: this.auth,
       deviceId: device.deviceId,
       pullAs: () => this.user.id,
@@ -66,7 +76,7 @@ export class SimTablet {
     clinic: Clinic,
     name: string,
     people: TestUser[],
-    options: { schemaVersion?: number; pageLimit?: number } = {},
+    options: { schemaVersion?: number; pageLimit?: number; baseUrl?: string; live?: boolean } = {},
   ): Promise<SimTablet> {
     const device = await clinic.device();
     return new SimTablet(name, clinic, device, people, options);
