@@ -19,6 +19,8 @@ export type LiveState = 'off' | 'connecting' | 'live' | 'waiting';
 
 export interface LiveStreamOptions {
   baseUrl: string;
+  /** The stream's route: the tablet's changes (default) or the Review desk's own. */
+  path?: '/api/sync/events' | '/api/review/events';
   fetch: typeof fetch;
   /** The token of the person using the tablet now, or null (nobody: no stream). */
   token: () => Promise<string | null>;
@@ -122,7 +124,7 @@ export class LiveStream {
     this.setState('connecting');
     let wait: number;
     try {
-      await fetchEventSource(`${this.options.baseUrl}/api/sync/events`, {
+      await fetchEventSource(`${this.options.baseUrl}${this.options.path ?? '/api/sync/events'}`, {
         signal: controller.signal,
         fetch: this.options.fetch,
         openWhenHidden: true,

@@ -7,7 +7,8 @@
 //   COALESCE_MS of a flush wait for the next one. A notice of sites a stream does not serve does
 //   nothing to it.
 // - `review` {}: to supervisors' streams, when the open disputes or the countersign queue of one
-//   of their sites may have changed.
+//   of their sites may have changed. A supervisor at a desk (no tablet) holds a stream of
+//   `review` events only (GET /api/review/events).
 // - a keep-alive comment every keepAliveMs (one timer for every stream).
 // - `closed` {reason}, then the end: the session ended, the person was deactivated or the tablet
 //   revoked (checked for all streams in one statement every LIVENESS_MS, so within a second,
@@ -55,6 +56,8 @@ interface LiveStream {
   sessionId: string;
   sites: string[];
   desk: boolean;
+  /** False for a Review desk stream, which hears `review` only. */
+  changes: boolean;
   /** The access token's expiry (ms since the epoch, by the server clock), or null. */
   expiresAt: number | null;
   /** The version last sent (or the Last-Event-ID the client came back with). */
@@ -132,7 +135,7 @@ export class LiveHub implements OnApplicationBootstrap, OnModuleDestroy {
   async open(
     sink: LiveSink,
     user: AuthUser,
-    options: { lastEventId: number | null; expiresAt: number | null },
+    options: { lastEventId: number | null; expiresAt: number | null; reviewOnly?: boolean },
   ): Promise<() => void> {
     const stream: LiveStream = {
       id: this.nextId++,
@@ -140,6 +143,7 @@ export class LiveHub implements OnApplicationBootstrap, OnModuleDestroy {
       sessionId: user.sessionId,
       sites: sitesOf(user),
       desk: user.role === 'supervisor',
+      changes: options.reviewOnly !== true,
       expiresAt: options.expiresAt,
       lastSent: options.lastEventId ?? -1,
     };
@@ -148,6 +152,7 @@ export class LiveHub implements OnApplicationBootstrap, OnModuleDestroy {
       this.streams.delete(stream.id);
     };
     this.write(stream, `retry: ${RETRY_MS}\n\n`);
+    if (!stream.changes) return forget;
     try {
       const latest = await latestVersionsOf(this.em.fork(), stream.sites);
       this.sendChanged(stream, highestOf(latest, stream.sites));
@@ -197,7 +202,9 @@ export class LiveHub implements OnApplicationBootstrap, OnModuleDestroy {
     this.lastFlushAt = performance.now();
     const hits = (sites: Set<string> | 'all', stream: LiveStream) =>
       sites === 'all' || stream.sites.some((site) => sites.has(site));
-    const changed = [...this.streams.values()].filter((stream) => hits(touched, stream));
+    const changed = [...this.streams.values()].filter(
+      (stream) => stream.changes && hits(touched, stream),
+    );
     const review = [...this.streams.values()].filter((stream) => stream.desk && hits(desk, stream));
     if (changed.length === 0 && review.length === 0) return;
     this.figures.flushes += 1;

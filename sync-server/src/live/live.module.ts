@@ -1,5 +1,5 @@
 import { Module } from '@nestjs/common';
-import { LiveController } from './live.controller';
+import { LiveController, ReviewEventsController } from './live.controller';
 import { LiveHub } from './live-hub';
 
 /**
@@ -8,7 +8,7 @@ import { LiveHub } from './live-hub';
  * records/site-versions.ts and auth/live-sessions.ts; writes nothing.
  */
 @Module({
-  controllers: [LiveController],
+  controllers: [LiveController, ReviewEventsController],
   providers: [LiveHub],
   exports: [LiveHub],
 })

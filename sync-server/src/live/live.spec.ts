@@ -35,11 +35,17 @@ async function urlOf(t: TestApp): Promise<string> {
   return `http://127.0.0.1:${address.port}`;
 }
 
-async function stream(baseUrl: string, token: string | null, headers: Record<string, string> = {}) {
-  const s = await openEventStream(baseUrl, {
-    ...(token ? { Authorization: `Bearer ${token}` } : {}),
-    ...headers,
-  });
+async function stream(
+  baseUrl: string,
+  token: string | null,
+  headers: Record<string, string> = {},
+  path?: string,
+) {
+  const s = await openEventStream(
+    baseUrl,
+    { ...(token ? { Authorization: `Bearer ${token}` } : {}), ...headers },
+    path,
+  );
   opened.push(s);
   return s;
 }
@@ -163,6 +169,31 @@ describe('live changes across two server processes', () => {
     await desk.next((e) => e.event === 'review', 2000, fromDesk);
     await orthoptist.next(changedTo(answer?.status === 'conflict' ? answer.version : 0), 2000);
     expect(orthoptist.events.filter((e) => e.event === 'review')).toEqual([]);
+  });
+
+  it('gives a supervisor at a desk (no tablet) a stream of review events only', async () => {
+    const desk = await signInAs(first, 'supervisor', [SITE_A], { desk: true });
+    const s = await stream(secondUrl, desk.token, {}, '/api/review/events');
+    expect(s.status).toBe(200);
+    await s.next((e) => e.event === 'retry', 2000);
+    const one = await tabletFor(first, 'orthoptist', [SITE_A]);
+    const two = await tabletFor(first, 'orthoptist', [SITE_A]);
+    const recordId = newId();
+    const created = (await one.pushOk([one.change({ recordId, fields: patientFields(SITE_A) })]))
+      .results[0];
+    const base = created?.status === 'applied' ? created.version : 0;
+    await one.pushOk([
+      one.change({ recordId, baseVersion: base, fields: { dateOfBirth: '2016-05-19' } }),
+    ]);
+    first.clock.advance(1000);
+    await through(second, two).pushOk([
+      two.change({ recordId, baseVersion: base, fields: { dateOfBirth: '2016-05-29' } }),
+    ]);
+    await s.next((e) => e.event === 'review', 2000);
+    expect(s.events.filter((e) => e.event === 'changed')).toEqual([]);
+
+    const orthoptist = await stream(firstUrl, one.caller.token, {}, '/api/review/events');
+    expect(orthoptist.status).toBe(403);
   });
 
   it('closes the stream of a tablet revoked through the other process within a second', async () => {

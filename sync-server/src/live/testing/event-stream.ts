@@ -27,9 +27,10 @@ export interface OpenedStream {
 export async function openEventStream(
   baseUrl: string,
   headers: Record<string, string>,
+  path = '/api/sync/events',
 ): Promise<OpenedStream> {
   const controller = new AbortController();
-  const response = await fetch(`${baseUrl}/api/sync/events`, {
+  const response = await fetch(`${baseUrl}${path}`, {
     headers: { Accept: 'text/event-stream', ...headers },
     signal: controller.signal,
   });
