@@ -21,8 +21,8 @@ export class SimTablet {
   readonly engine: SyncEngine;
   /** Milliseconds this tablet's clock is ahead of the server's (negative: behind). */
   skewMs = 0;
-  /** Every push result this tablet received, with the entry it answered. */
-  readonly acks: Array<{ entry: OutboxEntry; result: PushResult }> = [];
+  /** Every push result this tablet received, with the entry it answers and when (performance.now()). */
+  readonly acks: Array<{ entry: OutboxEntry; result: PushResult; at: number }> = [];
   /** Who is using the tablet now. */
   user: TestUser;
   private readonly people: TestUser[];
@@ -65,7 +65,7 @@ export class SimTablet {
         subscribe: () => () => undefined,
       },
       yieldToUi: () => Promise.resolve(),
-      onPushResult: (entry, result) => this.acks.push({ entry, result }),
+      onPushResult: (entry, result) => this.acks.push({ entry, result, at: performance.now() }),
       requestTimeoutMs: 30_000,
       ...(options.schemaVersion === undefined ? {} : { schemaVersion: options.schemaVersion }),
       ...(options.pageLimit === undefined ? {} : { pageLimit: options.pageLimit }),
