@@ -128,8 +128,9 @@ async function main() {
         );
       }),
   );
+  const processes = process.env.SERVER_PROCESSES ?? '2';
   spawnChild('server', [...serverNodeArgs, 'sync-server/dist/main.cjs'], env);
-  await step(`start the server on http://127.0.0.1:${port}`, () =>
+  await step(`start the server (${processes} processes) on http://127.0.0.1:${port}`, () =>
     waitForHttp(`http://127.0.0.1:${port}/api/health`),
   );
 

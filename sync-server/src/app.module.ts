@@ -16,6 +16,7 @@ import { DevicesModule } from './devices/devices.module';
 import { FhirModule } from './fhir/fhir.module';
 import { HealthModule } from './health/health.module';
 import { LettersModule } from './letters/letters.module';
+import { LiveModule } from './live/live.module';
 import { MailModule } from './mail/mail.module';
 import { SeedModule } from './seed/seed.module';
 import { SitesModule } from './sites/sites.module';
@@ -45,6 +46,7 @@ export class AppModule {
         AdminModule,
         RecordsModule,
         SyncModule,
+        LiveModule,
         ConflictsModule,
         ReviewModule,
         LettersModule,

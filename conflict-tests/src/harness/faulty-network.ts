@@ -51,6 +51,9 @@ export class FaultyNetwork {
       this.log.push({ method, path, fault: 'drop', status: null });
       throw new TypeError('fetch failed: the tablet is offline');
     }
+    // The live-changes stream is held open, not a request to fault: it goes as it is, and stops
+    // when the tablet aborts it.
+    if (path === '/api/sync/events') return globalThis.fetch(url, init);
     const fault = this.planned.shift() ?? this.chooser(method, path);
     const send = () => globalThis.fetch(url, { ...init, signal: undefined });
     // Older copies go out after this request's own delivery: their order is now shuffled.

@@ -21,8 +21,8 @@ export class SimTablet {
   readonly engine: SyncEngine;
   /** Milliseconds this tablet's clock is ahead of the server's (negative: behind). */
   skewMs = 0;
-  /** Every push result this tablet received, with the entry it answered. */
-  readonly acks: Array<{ entry: OutboxEntry; result: PushResult }> = [];
+  /** Every push result this tablet received, with the entry it answers and when (performance.now()). */
+  readonly acks: Array<{ entry: OutboxEntry; result: PushResult; at: number }> = [];
   /** Who is using the tablet now. */
   user: TestUser;
   private readonly people: TestUser[];
@@ -32,7 +32,15 @@ export class SimTablet {
     private readonly clinic: Clinic,
     readonly device: TestDevice,
     people: TestUser[],
-    private readonly options: { schemaVersion?: number; pageLimit?: number; dbName?: string } = {},
+    private readonly options: {
+      schemaVersion?: number;
+      pageLimit?: number;
+      dbName?: string;
+      /** The server this tablet talks to (default the clinic's first). */
+      baseUrl?: string;
+      /** Hold the live-changes stream and pull when it says so (the app does). */
+      live?: boolean;
+    } = {},
   ) {
     tabletCount += 1;
     this.people = people;
@@ -40,10 +48,12 @@ export class SimTablet {
     this.db = new FuselightDb(options.dbName ?? `tablet-${name}-${process.pid}-${tabletCount}`);
     this.records = new RecordsRepository(this.db);
     this.outbox = new OutboxRepository(this.db);
-    this.auth = new ServerSyncAuth(clinic.baseUrl, device, new Map(people.map((p) => [p.id, p])));
+    const baseUrl = options.baseUrl ?? clinic.baseUrl;
+    this.auth = new ServerSyncAuth(baseUrl, device, new Map(people.map((p) => [p.id, p])));
     this.engine = new SyncEngine({
       db: this.db,
-      baseUrl: clinic.baseUrl,
+      baseUrl,
+      live: options.live === true,
       auth: this.auth,
       deviceId: device.deviceId,
       pullAs: () => this.user.id,
@@ -55,7 +65,7 @@ export class SimTablet {
         subscribe: () => () => undefined,
       },
       yieldToUi: () => Promise.resolve(),
-      onPushResult: (entry, result) => this.acks.push({ entry, result }),
+      onPushResult: (entry, result) => this.acks.push({ entry, result, at: performance.now() }),
       requestTimeoutMs: 30_000,
       ...(options.schemaVersion === undefined ? {} : { schemaVersion: options.schemaVersion }),
       ...(options.pageLimit === undefined ? {} : { pageLimit: options.pageLimit }),
@@ -66,7 +76,7 @@ export class SimTablet {
     clinic: Clinic,
     name: string,
     people: TestUser[],
-    options: { schemaVersion?: number; pageLimit?: number } = {},
+    options: { schemaVersion?: number; pageLimit?: number; baseUrl?: string; live?: boolean } = {},
   ): Promise<SimTablet> {
     const device = await clinic.device();
     return new SimTablet(name, clinic, device, people, options);

@@ -1,5 +1,6 @@
 // fast-check properties over random edit schedules and network faults, asserting guarantees 1–5 of
-// docs/sync-protocol.md with three simulated tablets (real engine, real server, real PostgreSQL).
+// docs/sync-protocol.md with three simulated tablets (real engine, real server, real PostgreSQL),
+// spread over two server instances on the one database, as a clinic's several server processes.
 import { jsonEqual, type ConflictItem, type PushResult } from '@fuselight/shared';
 import type { OutboxEntry } from '@pwa/data/db';
 import type { TestDevice, TestUser } from '@server/testing/identity-factory';
@@ -111,7 +112,7 @@ let supervisorToken: string;
 let run = 0;
 
 beforeAll(async () => {
-  clinic = await startClinic();
+  clinic = await startClinic({ processes: 2 });
   people = [];
   devices = [];
   for (let i = 0; i < TABLETS; i += 1) {
@@ -151,6 +152,7 @@ async function runSchedule(ops: Op[]): Promise<void> {
     (device, i) =>
       new SimTablet(`p${run}-${i}`, clinic, device, [people[i] as TestUser, ...people], {
         pageLimit: PAGE_LIMITS[(run + i) % PAGE_LIMITS.length]!,
+        baseUrl: clinic.baseUrls[i % clinic.baseUrls.length]!,
       }),
   );
   try {

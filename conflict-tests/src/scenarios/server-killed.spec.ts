@@ -79,6 +79,8 @@ beforeAll(async () => {
   clinic = {
     t,
     baseUrl: `http://127.0.0.1:${port}`,
+    baseUrls: [`http://127.0.0.1:${port}`],
+    servers: [t],
     siteId: site.id,
     person: (role, options = {}) => createUser(t, { role, siteIds: options.siteIds ?? [site.id] }),
     device: (options = {}) => createDevice(t, { siteIds: options.siteIds ?? [site.id] }),

@@ -1,4 +1,4 @@
-import { cleanup, render, screen, waitFor } from '@testing-library/react';
+import { act, cleanup, render, screen, waitFor } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { FuselightDb } from '../data/db';
@@ -70,6 +70,22 @@ describe('the sync indicator', () => {
       expect(screen.getByRole('status').textContent).toMatch(/^Online· 1 waiting· /),
     );
     engine.stop();
+  });
+
+  it('says when changes arrive live, and when it only checks every 30 s', async () => {
+    const { engine } = engineWith({ online: true });
+    engine.status.update({ configured: true, live: 'live' });
+    render(<SyncIndicator engine={engine} />);
+    expect(screen.getByRole('status').textContent).toMatch(/^Online· Live· Outbox empty· /);
+    expect(screen.getByRole('region').getAttribute('aria-label')).toMatch(
+      /^Sync status: online, changes arrive live, Outbox empty, /,
+    );
+    act(() => engine.status.update({ live: 'waiting' }));
+    expect(screen.getByRole('status').textContent).toMatch(
+      /^Online· Checking every 30 s· Outbox empty· /,
+    );
+    act(() => engine.status.update({ online: false, live: 'off' }));
+    expect(screen.getByRole('status').textContent).toMatch(/^Offline· Outbox empty· /);
   });
 
   it('describes the last sync time in words', () => {

@@ -33,6 +33,15 @@ export function describeOutbox(status: SyncStatus): string {
   return status.rejectedCount > 0 ? `${waiting}, ${status.rejectedCount} refused` : waiting;
 }
 
+/**
+ * Whether other tablets' changes arrive as they are made (the live stream is open) or only on the
+ * 30-second check; null offline or before sync is set up.
+ */
+export function describeLive(status: SyncStatus): string | null {
+  if (!status.configured || !status.online || status.live === 'off') return null;
+  return status.live === 'live' ? 'Live' : 'Checking every 30 s';
+}
+
 /** How long the bar still says a full re-sync finished. */
 const REPULL_DONE_SHOWN_MS = 10 * 60_000;
 
@@ -79,6 +88,7 @@ export function SyncIndicator(props: {
   const progress = describeProgress(status);
   const repull = describeRepullForBar(status, nowMs, props.compact === true);
   const newer = describeNewerRecords(status.newerRecords);
+  const live = describeLive(status);
   const syncNow = () => {
     if (props.onSyncNow) void props.onSyncNow();
     else if (props.engine) void props.engine.syncNow();
@@ -86,7 +96,7 @@ export function SyncIndicator(props: {
   };
   return (
     <section
-      aria-label={`Sync status: ${status.online ? 'online' : 'offline'}, ${describeOutbox(status)}, ${describeLastSynced(status.lastSyncedAt, nowMs)}${status.error ? `. ${status.error}` : ''}${newer ? `. ${newer}` : ''}`}
+      aria-label={`Sync status: ${status.online ? 'online' : 'offline'}${live === 'Live' ? ', changes arrive live' : ''}, ${describeOutbox(status)}, ${describeLastSynced(status.lastSyncedAt, nowMs)}${status.error ? `. ${status.error}` : ''}${newer ? `. ${newer}` : ''}`}
       className="fl-sync-indicator"
       style={{
         display: 'flex',
@@ -113,6 +123,18 @@ export function SyncIndicator(props: {
           }
         />
         <strong>{status.online ? 'Online' : 'Offline'}</strong>
+        {live ? (
+          <span
+            className="fl-sync-live"
+            title={
+              live === 'Live'
+                ? 'Changes made on other tablets arrive as they are made'
+                : 'The live connection is down: this tablet checks for changes every 30 seconds'
+            }
+          >
+            · {live}
+          </span>
+        ) : null}
         <span>· {describeOutbox(status)}</span>
         {props.compact ? null : (
           <span className="fl-muted">· {describeLastSynced(status.lastSyncedAt, nowMs)}</span>

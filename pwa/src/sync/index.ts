@@ -11,11 +11,13 @@ export {
 } from './sync-engine';
 export { SyncStatusStore, type SyncPhase, type SyncProgress, type SyncStatus } from './sync-status';
 export { backoffDelay, DEFAULT_BACKOFF, type BackoffPolicy } from './backoff';
+export { LIVE_BACKOFF, LiveStream, type LiveState } from './live-stream';
 export {
   configureSync,
   getSyncEngine,
   requestSyncNow,
   stopSync,
+  subscribeReviewChanges,
   subscribeSyncEngine,
   type AppSyncOptions,
 } from './sync-runtime';

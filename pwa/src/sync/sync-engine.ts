@@ -21,7 +21,8 @@ import { subscribeDataChanges } from '../data/data-events';
 import type { BackoffPolicy } from './backoff';
 import { readFullRepull } from './full-repull';
 import { THIS_BUILD, reviewNewerRecords, type BuildSchema } from './newer-records';
-import { LAST_SYNCED_KEY } from './local-apply';
+import { LiveStream } from './live-stream';
+import { LAST_SYNCED_KEY, readCursor } from './local-apply';
 import { PagePuller } from './pull-pages';
 import { OutboxPusher } from './push-batches';
 import type { SyncAuth } from './sync-auth';
@@ -75,6 +76,15 @@ export interface SyncEngineOptions {
    * failures are its own and never the sync's.
    */
   afterSync?: () => Promise<unknown>;
+  /**
+   * Hold the live-changes stream (GET /api/sync/events) while online, and pull as soon as it
+   * says the tablet's sites hold a version above the cursor (the app does; tests opt in).
+   */
+  live?: boolean;
+  /** How long a `changed` waits for more before the pull starts (several commits, one pull). */
+  liveDebounceMs?: number;
+  /** Told when the Review desk's queues may have changed (from the live stream). */
+  onReview?: () => void;
 }
 
 export type SyncOutcome =
@@ -112,6 +122,8 @@ export class SyncEngine {
   private readonly schedule: SyncSchedule<SyncOutcome>;
   private readonly pusher: OutboxPusher;
   private readonly puller: PagePuller;
+  private readonly live: LiveStream | null;
+  private liveTimer: unknown = null;
   private afterSyncRun: Promise<void> | null = null;
   private afterSyncAgain = false;
   /** Timings of the last sync. */
@@ -166,6 +178,33 @@ export class SyncEngine {
       yieldToUi: options.yieldToUi ?? yieldToScreen,
       build: options.build ?? THIS_BUILD,
     });
+    this.live = options.live
+      ? new LiveStream({
+          baseUrl: options.baseUrl,
+          fetch: fetchFn,
+          token: async () => {
+            const person = options.pullAs();
+            return person ? options.auth.tokenFor(person) : null;
+          },
+          network: this.network,
+          timers,
+          random: options.random ?? Math.random,
+          onChanged: (version) => void this.heardVersion(version, timers),
+          onReview: () => options.onReview?.(),
+          onState: (live) => status.update({ live }),
+          onRefused: () => this.schedule.request(),
+        })
+      : null;
+  }
+
+  /** A `changed` event: pull soon when the server holds a version beyond the cursor. */
+  private async heardVersion(version: number, timers: SyncTimers): Promise<void> {
+    if (version <= (await readCursor(this.db))) return;
+    if (this.liveTimer !== null) return;
+    this.liveTimer = timers.setTimeout(() => {
+      this.liveTimer = null;
+      this.schedule.request();
+    }, this.options.liveDebounceMs ?? 50);
   }
 
   get db(): FuselightDb {
@@ -182,10 +221,12 @@ export class SyncEngine {
       ],
       () => void this.loadPersistedStatus(),
     );
+    this.live?.start();
   }
 
   stop(): void {
     this.schedule.stop();
+    this.live?.stop();
   }
 
   /** "Sync now": runs a sync (or joins the one running and runs once more after it). */

@@ -2,7 +2,9 @@
 // person is signed in (configureSync), and may call it again when that changes; screens read its
 // state with useSyncStatus() and ask for a sync with requestSyncNow(). Attachment files waiting on
 // this tablet are uploaded after every sync (on any screen, after a reconnect, after a reload):
-// after the push, so the server already has the attachment record a file belongs to.
+// after the push, so the server already has the attachment record a file belongs to. The engine
+// holds the live-changes stream, so another tablet's change is pulled within a second, and the
+// Review desk hears when its queues move (subscribeReviewChanges).
 import { getAttachmentDb } from '../attachments/attachment-db';
 import { uploadWaitingFiles } from '../attachments/attachment-transfer';
 import { getDefaultDb } from '../data/db';
@@ -11,6 +13,7 @@ import { SyncStatusStore } from './sync-status';
 
 let engine: SyncEngine | null = null;
 const listeners = new Set<() => void>();
+const reviewListeners = new Set<() => void>();
 /** Shown while no engine is configured (not enrolled, or nobody has signed in yet). */
 export const unconfiguredStatus = new SyncStatusStore({
   configured: false,
@@ -37,6 +40,10 @@ export function configureSync(options: AppSyncOptions): SyncEngine {
   engine = new SyncEngine({
     db: getDefaultDb(),
     afterSync: attachmentUploads(options),
+    live: true,
+    onReview: () => {
+      for (const listener of [...reviewListeners]) listener();
+    },
     ...options,
   });
   engine.start();
@@ -59,6 +66,17 @@ export function subscribeSyncEngine(listener: () => void): () => void {
   listeners.add(listener);
   return () => {
     listeners.delete(listener);
+  };
+}
+
+/**
+ * Told when the live stream says the Review desk's queues (open Disputes, visits to countersign)
+ * may have changed; the desk and its tab badge ask the server again.
+ */
+export function subscribeReviewChanges(listener: () => void): () => void {
+  reviewListeners.add(listener);
+  return () => {
+    reviewListeners.delete(listener);
   };
 }
 

@@ -3,6 +3,7 @@
 // read by React through useSyncExternalStore.
 import type { FullRepull } from './full-repull';
 import type { NewerRecordsNote } from './newer-records';
+import type { LiveState } from './live-stream';
 
 export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
 
@@ -34,6 +35,8 @@ export interface SyncStatus {
   fullRepull: FullRepull | null;
   /** Records from a newer build that this one keeps as they came: an update is available. */
   newerRecords: NewerRecordsNote | null;
+  /** The live-changes stream: 'live' while other tablets' changes arrive without waiting. */
+  live: LiveState;
 }
 
 export const INITIAL_SYNC_STATUS: SyncStatus = {
@@ -51,6 +54,7 @@ export const INITIAL_SYNC_STATUS: SyncStatus = {
   consecutiveFailures: 0,
   fullRepull: null,
   newerRecords: null,
+  live: 'off',
 };
 
 export class SyncStatusStore {

@@ -37,6 +37,10 @@ export interface AppConfig {
   fhirBaseUrl: string | null;
   /** Seed the invented demo clinic (never in production). */
   seedDemo: boolean;
+  /** How often an open live-changes stream gets a keep-alive comment, in ms (at most 25 s). */
+  liveKeepAliveMs: number;
+  /** Server processes `npm start` (main.ts) runs on the one port; 1 runs no cluster. */
+  serverProcesses: number;
 }
 
 export const APP_CONFIG = Symbol('APP_CONFIG');
@@ -65,6 +69,20 @@ function fhirBaseUrl(raw: string | undefined): string | null {
     throw new Error(`Configuration: FHIR_BASE_URL must be an http(s) URL, got "${raw}"`);
   }
   return url.toString().replace(/\/+$/, '');
+}
+
+function bounded(
+  env: NodeJS.ProcessEnv,
+  name: string,
+  fallback: number,
+  min: number,
+  max: number,
+): number {
+  const value = int(env, name, fallback);
+  if (value < min || value > max) {
+    throw new Error(`Configuration: ${name} must be between ${min} and ${max}, got "${value}"`);
+  }
+  return value;
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
@@ -107,5 +125,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     attachmentMaxBytes: int(env, 'ATTACHMENT_MAX_BYTES', 15 * 1024 * 1024),
     fhirBaseUrl: fhirBaseUrl(env.FHIR_BASE_URL),
     seedDemo: nodeEnv !== 'production' && env.SEED_DEMO === 'true',
+    liveKeepAliveMs: bounded(env, 'LIVE_KEEPALIVE_MS', 20_000, 50, 25_000),
+    serverProcesses: bounded(env, 'SERVER_PROCESSES', 2, 1, 64),
   };
 }

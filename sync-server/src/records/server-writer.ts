@@ -12,6 +12,7 @@
 // - the shared merge rule decides the field (the server has seen the record it locked, so its
 //   write applies), and a write of a field whose dispute is open joins that dispute as one more
 //   candidate (merge rule 3), except the dispute the write itself resolves.
+// - a notice of the write's site is sent on commit (change-notice.ts), so tablets hear of it live.
 // The caller checks its own input first and writes its own audit event in the same transaction.
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable } from '@nestjs/common';
@@ -25,6 +26,7 @@ import {
   type CollectionName,
   type JsonValue,
 } from '@fuselight/shared';
+import { ChangeTouch } from './change-notice';
 import { RecordStore } from './record-store';
 import type { VersionAllocator } from './record-version';
 import {
@@ -176,6 +178,10 @@ export class ServerWriter {
     const record: StoredRecord = { ...before, version, deleted, fields, stamps };
     await this.store.upsert(em, [record], write.now);
     await this.store.appendCandidates(em, joins);
+    await new ChangeTouch()
+      .records([record])
+      .disputes(joins.length + (write.resolving ? 1 : 0))
+      .announce(em);
     return { before, record, version, stamp, joined: joins.map((join) => join.conflictId) };
   }
 
@@ -210,6 +216,7 @@ export class ServerWriter {
       createdAt: creation.now.toISOString(),
     };
     await this.store.upsert(em, [written], creation.now);
+    await new ChangeTouch().records([written]).announce(em);
     return written;
   }
 }

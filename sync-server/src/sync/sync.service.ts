@@ -35,6 +35,7 @@ import type { AuthUser } from '../auth/auth-user';
 import { canReadClinical, sitesOf } from '../auth/scope';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { parseWith } from '../common/zod-validation.pipe';
+import { ChangeTouch } from '../records/change-notice';
 import { RecordStore, type PullHead } from '../records/record-store';
 import { CURSOR_EPOCH, VersionAllocator } from '../records/record-version';
 import { sqlRows } from '../records/sql';
@@ -123,6 +124,7 @@ export class SyncService {
       const makePlanner = () =>
         new PushPlanner(user, now, new VersionAllocator(baseVersion), this.ids, records, open);
       const answered = new Map<string, ChangeLogEntry>();
+      const touched = new ChangeTouch();
       const plans = planAll(makePlanner(), toPlan, answered);
       lap('planMs');
 
@@ -130,7 +132,7 @@ export class SyncService {
       // change by change; an attempt that cannot log all its results rolls back to it too.
       await sqlRows(em, 'savepoint "push_attempt"');
       try {
-        await this.writePlans(em, plans, now);
+        await this.writePlans(em, plans, now, touched);
       } catch (error) {
         if (!isDataError(error)) throw error;
         this.logger.warn(
@@ -138,7 +140,7 @@ export class SyncService {
         );
         await sqlRows(em, 'rollback to savepoint "push_attempt"');
         answered.clear();
-        await this.writeOneByOne(em, makePlanner(), toPlan, answered, now);
+        await this.writeOneByOne(em, makePlanner(), toPlan, answered, now, touched);
       }
       lap('writeMs');
 
@@ -147,6 +149,8 @@ export class SyncService {
       // The savepoint is not released: the commit ends it with the transaction, one round trip
       // fewer per push.
       if (logged.size === answered.size) {
+        // One notice per push, delivered on commit (docs/sync-protocol.md, "Live changes").
+        await touched.announce(em);
         return resultsInRequestOrder(changes, earlier, answered);
       }
       await sqlRows(em, 'rollback to savepoint "push_attempt"');
@@ -163,8 +167,10 @@ export class SyncService {
     em: EntityManager,
     plans: readonly ChangePlan[],
     now: Date,
+    touched: ChangeTouch,
   ): Promise<void> {
     const batch = collapsePlans(plans);
+    touched.records(batch.records).disputes(batch.newConflicts.length + batch.joined.length);
     await this.store.upsert(em, batch.records, now);
     await this.store.insertConflicts(em, batch.newConflicts, now);
     await this.store.appendCandidates(em, batch.joined);
@@ -177,6 +183,7 @@ export class SyncService {
     toPlan: readonly { index: number; raw: Record<string, unknown> }[],
     answered: Map<string, ChangeLogEntry>,
     now: Date,
+    touched: ChangeTouch,
   ): Promise<void> {
     for (const { index, raw } of toPlan) {
       const outcome = planner.plan(raw, index);
@@ -190,7 +197,7 @@ export class SyncService {
       }
       await sqlRows(em, 'savepoint "push_change"');
       try {
-        await this.writePlans(em, [outcome.plan], now);
+        await this.writePlans(em, [outcome.plan], now, touched);
         await sqlRows(em, 'release savepoint "push_change"');
         planner.commit(outcome.plan);
         answered.set(changeId, {

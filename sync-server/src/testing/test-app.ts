@@ -73,11 +73,16 @@ export async function createTestApp(
     env?: Record<string, string>;
     clock?: TestClock;
     pushObserver?: PushObserver;
-    /** Run on this database (a restored backup) instead of a fresh clone of the template. */
+    /**
+     * Run on this database instead of a fresh clone of the template: another app's (a second
+     * server process on the same PostgreSQL), a restored backup, or a cluster of a test's own.
+     * close() leaves it to its owner.
+     */
     db?: TestDatabase;
   } = {},
 ): Promise<TestApp> {
   const db = options.db ?? (await createTestDatabase());
+  const ownsDb = options.db === undefined;
   const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.url, ...options.env });
   const clock = options.clock ?? new TestClock();
   const app = await createApp(config, { clock, logger: false, pushObserver: options.pushObserver });
@@ -90,7 +95,7 @@ export async function createTestApp(
     em: () => (app.get(MikroORM).em as EntityManager).fork(),
     async close() {
       await app.close();
-      await db.drop();
+      if (ownsDb) await db.drop();
     },
   };
 }

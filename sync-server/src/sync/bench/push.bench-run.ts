@@ -18,6 +18,7 @@ import { PROTOCOL_VERSION, SCHEMA_VERSION, type PushResponse } from '@fuselight/
 import { afterAll, beforeAll, it } from 'vitest';
 import { TestClock, type TestApp } from '../../testing/test-app';
 import { emptyPushTimings, type PushObserver, type PushTimings } from '../push-observer';
+import { CHANGE_CHANNEL, encodeChangeNotice } from '../../records/change-notice';
 import {
   SITE_A,
   createSyncTestApp,
@@ -75,6 +76,8 @@ async function startBundle(databaseUrl: string): Promise<string> {
       HOST: '127.0.0.1',
       PORT: String(port),
       SEED_DEMO: 'false',
+      // One process, as the in-process app and the raw upsert it is compared with.
+      SERVER_PROCESSES: '1',
     },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
@@ -176,7 +179,11 @@ async function pushRun(pushUrl: string, tablets: Tablet[]): Promise<number> {
  * back from sync_record, under fresh ids) upserted in batches of the same size into a bare table
  * with only a primary key, by `clients` connections at once.
  */
-async function rawRun(clients: number): Promise<number> {
+async function rawRun(
+  clients: number,
+  /** Each batch in its own transaction, with (true) or without a push's one change notice. */
+  transaction?: { notify: boolean },
+): Promise<number> {
   const pool = new pg.Pool({ connectionString: t.db.url, max: clients });
   await pool.query(
     `create table if not exists "bench_raw" ("id" uuid primary key, "collection" text, "site_id" uuid, "version" bigint, "deleted" boolean, "fields" jsonb, "stamps" jsonb)`,
@@ -208,11 +215,29 @@ async function rawRun(clients: number): Promise<number> {
   await Promise.all(
     batches.map(async (mine) => {
       for (const rows of mine) {
-        await pool.query(
+        const upsert: [string, string[]] = [
           `insert into "bench_raw" select * from jsonb_to_recordset($1::jsonb) as x("id" uuid, "collection" text, "site_id" uuid, "version" bigint, "deleted" boolean, "fields" jsonb, "stamps" jsonb)
            on conflict ("id") do update set "fields" = excluded."fields", "stamps" = excluded."stamps", "version" = excluded."version"`,
           [rows],
-        );
+        ];
+        if (!transaction) {
+          await pool.query(...upsert);
+          continue;
+        }
+        const client = await pool.connect();
+        try {
+          await client.query('begin');
+          await client.query(...upsert);
+          if (transaction.notify) {
+            await client.query('select pg_notify($1, $2)', [
+              CHANGE_CHANNEL,
+              encodeChangeNotice({ sites: [SITE_A], desk: false }),
+            ]);
+          }
+          await client.query('commit');
+        } finally {
+          client.release();
+        }
       }
     }),
   );
@@ -280,6 +305,20 @@ it('measures push throughput', async () => {
   const breakdown = { ...stepTotals };
   const inProcessRaw = await rawRun(1);
 
+  // What the change notice costs: the same raw batches, each in a transaction of its own, without
+  // and with one pg_notify as a push sends it (every server process LISTENs meanwhile).
+  const notice: { plain1: number; notify1: number; plain4: number; notify4: number }[] = [];
+  for (let round = 0; round < ROUNDS; round += 1) {
+    notice.push({
+      plain1: await rawRun(1, { notify: false }),
+      notify1: await rawRun(1, { notify: true }),
+      plain4: await rawRun(4, { notify: false }),
+      notify4: await rawRun(4, { notify: true }),
+    });
+  }
+  const noticeLine = (label: string, plain: number[], notify: number[]) =>
+    `    ${label}: without ${fmt(median(plain))}/s   with one pg_notify ${fmt(median(notify))}/s   ratio ${median(notify.map((n, i) => n / (plain[i] ?? 1))).toFixed(2)}`;
+
   const inSteps = Object.values(breakdown).reduce((a, b) => a + b, 0);
   const perBatch = (ms: number) => (ms / BATCHES_PER_TABLET).toFixed(1).padStart(6);
   const lines = [
@@ -301,6 +340,18 @@ it('measures push throughput', async () => {
     ),
     `    ${'outside the transaction (HTTP, sign-in check)'.padEnd(44)} ${perBatch(oneTabletMs - inSteps)}`,
     `    ${'whole request, as the tablet waits'.padEnd(44)} ${perBatch(oneTabletMs)}`,
+    `  the live-changes notice (every push sends one NOTIFY on commit; the figures above include it):`,
+    `  raw batches of ${BATCH} upserted one transaction each, field changes/s:`,
+    noticeLine(
+      '1 client ',
+      notice.map((r) => r.plain1),
+      notice.map((r) => r.notify1),
+    ),
+    noticeLine(
+      '4 clients',
+      notice.map((r) => r.plain4),
+      notice.map((r) => r.notify4),
+    ),
   ];
   process.stdout.write(`\n${lines.join('\n')}\n\n`);
 });
