@@ -110,7 +110,15 @@ describe('a backup taken while tablets push, and a restore', () => {
     expect(restoreOut).toMatch(/Restored \d+ records/);
     const t = await createTestApp({ db, clock: clinic.t.clock });
     await t.app.listen(address.port, '127.0.0.1');
-    restored = { ...clinic, t, servers: [t], close: () => t.close() };
+    restored = {
+      ...clinic,
+      t,
+      servers: [t],
+      close: async () => {
+        await t.close();
+        await db.drop();
+      },
+    };
     await clinic.t.db.drop();
 
     // Every change acknowledged before the backup began is there, at its version or a later one.

@@ -95,6 +95,7 @@ afterAll(async () => {
   server?.kill('SIGKILL');
   for (const tablet of tablets) await tablet.close();
   await t?.close();
+  await t?.db.drop();
   rmSync(bundleDir, { recursive: true, force: true });
 });
 
