@@ -23,7 +23,6 @@ import {
 import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
-import { SyncIndicator } from '../components/SyncIndicator';
 import { UpdatePrompt } from '../components/UpdatePrompt';
 import { canSee } from '../auth/access';
 import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
@@ -32,6 +31,7 @@ import { SessionProvider } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
 import { ReviewTabBadge } from '../screens/review/ReviewTabCount';
 import { SyncRuntime } from '../sync/SyncRuntime';
+import { SyncDock } from './SyncDock';
 import {
   BenchScreen,
   ChartScreen,
@@ -81,21 +81,10 @@ function AppTabs() {
   const role = useSession().user?.role;
   // The Bench is full screen and carries its own sync indicator.
   const onBench = useLocation().pathname.startsWith('/bench/');
-  return (
-    <>
-      <AppTabsInner role={role} />
-      {/* Always visible on clinical screens: Ionic's tab bar shows only tab buttons, so the
-          sync indicator docks just above it instead. */}
-      {canSee(role, 'clinical') && !onBench ? (
-        <div className="fl-sync-dock">
-          <SyncIndicator compact />
-        </div>
-      ) : null}
-    </>
-  );
+  return <AppTabsInner role={role} dock={canSee(role, 'clinical') && !onBench} />;
 }
 
-function AppTabsInner({ role }: { role: Role | undefined }) {
+function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean }) {
   return (
     <IonTabs>
       <IonRouterOutlet>
@@ -126,6 +115,7 @@ function AppTabsInner({ role }: { role: Role | undefined }) {
         <Route path="/" element={<HomeRedirect />} />
         <Route path="*" element={<HomeRedirect />} />
       </IonRouterOutlet>
+      {dock ? <SyncDock /> : null}
       <IonTabBar
         slot="bottom"
         aria-label="Fuselight sections"
