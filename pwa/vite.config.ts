@@ -61,9 +61,19 @@ export default defineConfig({
       },
       output: {
         // The letter PDF engine loads only when a letter is drawn; its two parts are chunks of
-        // their own so that none is over the limit below (pdf-lib with its deflate, fontkit).
+        // their own (pdf-lib with its deflate, fontkit), as is React, so that no chunk is over the limit below.
         codeSplitting: {
           groups: [
+            // What every screen runs on, in a chunk of its own that stays cached across updates
+            // of the app's code: React with the router. (Ionic's components are left to the
+            // routes that render them.)
+            {
+              name: 'react',
+              test: /node_modules[\\/](react|react-dom|scheduler|react-router|react-router-dom|@remix-run[\\/]router)[\\/]/,
+            },
+            // The tablet's IndexedDB and the schemas' validation, read from the first screen on.
+            { name: 'dexie', test: /node_modules[\\/]dexie[\\/]/ },
+            { name: 'zod', test: /node_modules[\\/]zod[\\/]/ },
             { name: 'letter-fontkit', test: /node_modules[\\/]@pdf-lib[\\/]fontkit[\\/]/ },
             {
               name: 'letter-pdf',

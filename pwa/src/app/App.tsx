@@ -23,15 +23,11 @@ import {
 import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
-import { UpdatePrompt } from '../components/UpdatePrompt';
 import { canSee } from '../auth/access';
 import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
 import { SessionProvider } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
-import { ReviewTabBadge } from '../screens/review/ReviewTabCount';
-import { SyncRuntime } from '../sync/SyncRuntime';
-import { SyncDock } from './SyncDock';
 import {
   BenchScreen,
   ChartScreen,
@@ -42,11 +38,15 @@ import {
   PersonScreen,
   PinSetupScreen,
   ReviewDeskScreen,
+  ReviewTabBadge,
   SignInScreen,
   SitesScreen,
+  SyncDock,
+  SyncRuntime,
   TabletErasedScreen,
   TodayScreen,
   UnlockScreen,
+  UpdatePrompt,
   VisitScreen,
 } from './routes';
 
@@ -115,7 +115,11 @@ function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean })
         <Route path="/" element={<HomeRedirect />} />
         <Route path="*" element={<HomeRedirect />} />
       </IonRouterOutlet>
-      {dock ? <SyncDock /> : null}
+      {dock ? (
+        <Suspense fallback={<div slot="bottom" className="fl-sync-dock" />}>
+          <SyncDock />
+        </Suspense>
+      ) : null}
       <IonTabBar
         slot="bottom"
         aria-label="Fuselight sections"
@@ -137,7 +141,9 @@ function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean })
           <IonTabButton tab="review" href="/review">
             <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
             <IonLabel>Review desk</IonLabel>
-            <ReviewTabBadge />
+            <Suspense fallback={null}>
+              <ReviewTabBadge />
+            </Suspense>
           </IonTabButton>
         ) : null}
         {canSee(role, 'admin') ? (
@@ -167,6 +173,17 @@ function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean })
   );
 }
 
+/** The sync engine runs once the tablet is enrolled and someone is signed in. */
+function SignedInSync() {
+  const { user, deviceId } = useSession();
+  if (!user || !deviceId) return null;
+  return (
+    <Suspense fallback={null}>
+      <SyncRuntime />
+    </Suspense>
+  );
+}
+
 export function App() {
   return (
     <QueryClientProvider client={queryClient}>
@@ -180,9 +197,11 @@ export function App() {
               <AppTabs />
             </IdentityGate>
             <SignInPrompt />
-            <SyncRuntime />
+            <SignedInSync />
           </IonReactRouter>
-          <UpdatePrompt />
+          <Suspense fallback={null}>
+            <UpdatePrompt />
+          </Suspense>
         </IonApp>
       </SessionProvider>
     </QueryClientProvider>
