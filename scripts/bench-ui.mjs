@@ -12,14 +12,17 @@
 //     bulkGet of their records from the app's database, measured in the same run.
 // The tablet's session and the patients are written straight into IndexedDB with Dexie (its
 // UMD build injected into the page), in the shapes the app's own stores use.
-//   node scripts/bench-ui.mjs [--no-build] [--patients 20000] [--runs 7] [--searches 15]
+//   node scripts/bench-ui.mjs [--no-build] [--no-lighthouse] [--patients 20000] [--runs 7]
+//                             [--searches 15]
 /* global window, document, HTMLInputElement, MutationObserver, requestAnimationFrame -- code run inside the page */
-import { spawnSync } from 'node:child_process';
-import { createReadStream, existsSync, mkdtempSync, statSync } from 'node:fs';
+import { spawn, spawnSync } from 'node:child_process';
+import { createReadStream, existsSync, mkdtempSync, readFileSync, statSync } from 'node:fs';
 import { createServer } from 'node:http';
 import { tmpdir } from 'node:os';
 import { extname, join, normalize, resolve } from 'node:path';
+import { createGzip } from 'node:zlib';
 import { chromium } from 'playwright-core';
+import { chromiumPath } from './lib.mjs';
 
 const root = resolve(import.meta.dirname, '..');
 const dist = join(root, 'pwa', 'dist');
@@ -53,10 +56,18 @@ const TYPES = {
   '.map': 'application/json',
 };
 
-// Static files with the single-page fallback; /api answers 503 (no clinic server here).
+// Static files with the single-page fallback; /api answers 503 (no clinic server here), or,
+// for Lighthouse, is unreachable as for a tablet out of the clinic's network. Text is gzipped
+// and hashed assets are cacheable for a year, as the clinic server sends them.
+let apiUnreachable = false;
+const COMPRESSED = new Set(['.html', '.js', '.css', '.json', '.webmanifest', '.svg', '.map']);
 const server = createServer((req, res) => {
   const path = decodeURIComponent(new URL(req.url ?? '/', 'http://x').pathname);
   if (path.startsWith('/api/')) {
+    if (apiUnreachable) {
+      req.socket.destroy();
+      return;
+    }
     res.writeHead(503, { 'content-type': 'application/json' });
     res.end('{"message":"no clinic server in the UI benchmark"}');
     return;
@@ -65,33 +76,39 @@ const server = createServer((req, res) => {
   if (!file.startsWith(dist) || !existsSync(file) || statSync(file).isDirectory()) {
     file = join(dist, 'index.html');
   }
+  const gzip =
+    COMPRESSED.has(extname(file)) && /\bgzip\b/.test(String(req.headers['accept-encoding'] ?? ''));
   res.writeHead(200, {
     'content-type': TYPES[extname(file)] ?? 'application/octet-stream',
-    'cache-control': 'no-cache',
+    'cache-control': file.startsWith(join(dist, 'assets'))
+      ? 'public, max-age=31536000, immutable'
+      : 'no-cache',
+    vary: 'Accept-Encoding',
+    ...(gzip ? { 'content-encoding': 'gzip' } : {}),
   });
-  createReadStream(file).pipe(res);
+  const stream = createReadStream(file);
+  if (gzip) stream.pipe(createGzip()).pipe(res);
+  else stream.pipe(res);
 });
 await new Promise((done) => server.listen(0, '127.0.0.1', done));
 const origin = `http://127.0.0.1:${server.address().port}`;
 
-const context = await chromium.launchPersistentContext(
-  mkdtempSync(join(tmpdir(), 'fl-bench-ui-')),
-  {
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    headless: true,
-    viewport: { width: 1280, height: 800 },
-    args: [
-      '--headless',
-      '--no-sandbox',
-      '--disable-gpu',
-      '--disable-quic',
-      '--no-first-run',
-      '--disable-background-networking',
-      '--disable-component-update',
-      '--disable-sync',
-    ],
-  },
-);
+const profileDir = mkdtempSync(join(tmpdir(), 'fl-bench-ui-'));
+const context = await chromium.launchPersistentContext(profileDir, {
+  executablePath: chromiumPath(),
+  headless: true,
+  viewport: { width: 1280, height: 800 },
+  args: [
+    '--headless',
+    '--no-sandbox',
+    '--disable-gpu',
+    '--disable-quic',
+    '--no-first-run',
+    '--disable-background-networking',
+    '--disable-component-update',
+    '--disable-sync',
+  ],
+});
 
 const SITE = '0190c6a0-0000-7000-8000-00000000b001';
 const USER = {
@@ -444,5 +461,85 @@ try {
   }
 } finally {
   await context.close();
+}
+
+// Lighthouse: the scores and timings of a first visit to /signin, and of Today on the tablet
+// enrolled above (its profile, storage kept), against the aims.
+const AIMS = { performance: 90, accessibility: 100, 'best-practices': 95 };
+const TIMINGS = [
+  ['first-contentful-paint', 'first contentful paint'],
+  ['largest-contentful-paint', 'largest contentful paint'],
+  ['interactive', 'time to interactive'],
+  ['total-blocking-time', 'total blocking time'],
+  ['cumulative-layout-shift', 'layout shift'],
+];
+
+async function lighthouseRun(url, { profile } = {}) {
+  const out = join(mkdtempSync(join(tmpdir(), 'fl-lighthouse-')), 'report.json');
+  const chromeFlags = [
+    '--headless=new',
+    '--no-sandbox',
+    '--disable-gpu',
+    '--no-first-run',
+    '--disable-background-networking',
+    '--disable-component-update',
+    '--disable-sync',
+    ...(profile ? [`--user-data-dir=${profile}`] : []),
+  ];
+  // Beside this process's static server (a synchronous spawn would stop it answering).
+  const child = spawn(
+    process.execPath,
+    [
+      join(root, 'node_modules', 'lighthouse', 'cli', 'index.js'),
+      url,
+      '--only-categories=performance,accessibility,best-practices',
+      '--output=json',
+      `--output-path=${out}`,
+      '--quiet',
+      `--chrome-flags=${chromeFlags.join(' ')}`,
+      ...(profile ? ['--disable-storage-reset'] : []),
+    ],
+    { cwd: root, env: { ...process.env, CHROME_PATH: chromiumPath() } },
+  );
+  let output = '';
+  child.stdout.on('data', (chunk) => (output += chunk));
+  child.stderr.on('data', (chunk) => (output += chunk));
+  const status = await new Promise((done) => child.on('exit', done));
+  if (status !== 0 || !existsSync(out)) {
+    throw new Error(`Lighthouse failed on ${url}: ${output.trim().slice(-400)}`);
+  }
+  return JSON.parse(readFileSync(out, 'utf8'));
+}
+
+function printLighthouse(name, report) {
+  console.log(
+    `  Lighthouse ${report.lighthouseVersion} on ${name} (mobile, simulated throttling):`,
+  );
+  for (const [id, aim] of Object.entries(AIMS)) {
+    const score = Math.round((report.categories[id]?.score ?? 0) * 100);
+    console.log(
+      `    ${report.categories[id]?.title ?? id}: ${score} (aim ${aim === 100 ? '100' : `≥ ${aim}`}: ${score >= aim ? 'met' : 'NOT met'})`,
+    );
+  }
+  console.log(
+    `    ${TIMINGS.map(([id, label]) => `${label} ${report.audits[id]?.displayValue ?? '?'}`).join(', ')}, ` +
+      `${((report.audits['total-byte-weight']?.numericValue ?? 0) / 1024).toFixed(0)} KiB transferred`,
+  );
+  const failing = Object.values(report.audits)
+    .filter((audit) => audit.scoreDisplayMode === 'binary' && audit.score === 0)
+    .map((audit) => audit.id);
+  if (failing.length > 0) console.log(`    audits not passed: ${failing.join(', ')}`);
+}
+
+try {
+  if (!args.includes('--no-lighthouse')) {
+    apiUnreachable = true;
+    printLighthouse('/signin (first visit)', await lighthouseRun(`${origin}/signin`));
+    printLighthouse(
+      '/today (enrolled tablet, signed in)',
+      await lighthouseRun(`${origin}/today`, { profile: profileDir }),
+    );
+  }
+} finally {
   server.close();
 }

@@ -115,6 +115,8 @@ export function findPostgresBin() {
 
 export const ensurePostgres = () =>
   ensureDebianPackage('postgresql', () => findPostgresBin() !== null);
+/** Debian's Chromium, or the one CHROMIUM_PATH names (tests, benchmarks, Lighthouse). */
+export const chromiumPath = () => process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 export const ensureChromium = () =>
   ensureDebianPackage('chromium', () => existsSync('/usr/bin/chromium'));
 

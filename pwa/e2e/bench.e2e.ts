@@ -293,7 +293,7 @@ describe('the Bench on an enrolled tablet', () => {
       throw error;
     });
     const slide = second.getByLabel('Slide used');
-    await slide.fill('Rabbit pair');
+    await slide.fill('Keeper’s hut pair');
     await slide.press('Enter');
     await savedHere(second);
 
@@ -306,7 +306,7 @@ describe('the Bench on an enrolled tablet', () => {
     await until('both edits on the server', async () => {
       const [fusion] = await serverFields('fusion', visitId);
       const [setup] = await serverFields('amblyoscopeSetup', visitId);
-      return fusion?.slideUsed === 'Rabbit pair' && setup?.extraLensesRight === '+3.00 DS';
+      return fusion?.slideUsed === 'Keeper’s hut pair' && setup?.extraLensesRight === '+3.00 DS';
     });
     const [fusion] = await serverFields('fusion', visitId);
     expect(fusion?.result).toBe('present');

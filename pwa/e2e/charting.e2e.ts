@@ -74,9 +74,26 @@ describe('the charting screens on an enrolled tablet', () => {
 
   it('saves a Section on the Visit, shows the interpretation with its caution and signs', async () => {
     const npc = page.getByRole('region', { name: 'Near point of convergence' });
+    // Each Section is listed folded to one line; its heading opens it in place.
+    expect(await npc.locator('.flc-fold-summary').textContent()).toBe('Nothing recorded yet');
+    await npc.getByRole('button', { name: 'Near point of convergence' }).click();
     await npc.getByLabel('Near point of convergence, break').fill('12');
-    await npc.getByLabel('Near point of convergence, recovery').fill('15');
+    const recovery = npc.getByLabel('Near point of convergence, recovery');
+    await recovery.fill('15');
     await npc.getByText('Saved on this tablet').waitFor();
+    // The sync indicator sits in its own strip above the tab bar: a field scrolled to the bottom
+    // of the screen can be tapped, nothing floats over it.
+    const covered = await recovery.evaluate((input) => {
+      input.scrollIntoView({ block: 'end' });
+      const box = input.getBoundingClientRect();
+      const hit = document.elementFromPoint(box.right - 4, box.bottom - 4);
+      return hit === input || input.contains(hit) ? null : (hit?.outerHTML.slice(0, 120) ?? 'none');
+    });
+    expect(covered).toBeNull();
+    await npc.getByRole('button', { name: 'Near point of convergence' }).click();
+    expect(await npc.locator('.flc-fold-summary').textContent()).toMatch(
+      /^Near point of convergence, break 12 cm · Near point of convergence, recovery 15 cm/,
+    );
     const interpretation = page.getByRole('region', { name: 'Interpretation' });
     await interpretation.getByText(/receded/).waitFor();
     expect(await interpretation.getByRole('note').textContent()).toContain(
@@ -100,6 +117,11 @@ describe('the charting screens on an enrolled tablet', () => {
       .getByRole('list', { name: 'Search results' })
       .getByText(`${patient.given} ${patient.family}`)
       .waitFor();
-    await page.getByRole('list', { name: 'Today’s visits' }).getByText('Signed').waitFor();
+    const badge = page.getByRole('list', { name: 'Today’s visits' }).getByText('Signed');
+    await badge.waitFor();
+    // A pill of one line beside the name, not stretched to the height of the row's buttons.
+    const box = (await badge.boundingBox())!;
+    expect(box.height).toBeLessThan(36);
+    expect(box.width).toBeGreaterThan(box.height);
   });
 });

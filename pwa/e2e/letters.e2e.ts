@@ -11,6 +11,7 @@ import {
   exampleVisits,
 } from '@fuselight/shared';
 import type { BrowserContext } from 'playwright-core';
+import { resolve } from 'node:path';
 import { letterFonts } from '../src/letters/letter-fonts';
 import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
 import { launchTablet, screenshot } from './support/browser';
@@ -38,12 +39,26 @@ document.body.dataset.rendered = String(doc.numPages);
 
 describe('letters in Chromium', () => {
   let browser: BrowserContext;
+  // The app fetches its font files from the server; here they are read from the repository.
+  const fontFromRepository = async (url: string) =>
+    new Uint8Array(
+      readFileSync(
+        resolve(
+          import.meta.dirname,
+          '../../shared/src/letters/fonts',
+          url.split('/').at(-1)!.split('?')[0]!,
+        ),
+      ),
+    );
   const pdfs = new Map<string, Uint8Array>();
 
   beforeAll(async () => {
     pdfs.set(
       'letter.pdf',
-      await renderLetterPdf(buildClinicLetter(exampleLetterInput), letterFonts()),
+      await renderLetterPdf(
+        buildClinicLetter(exampleLetterInput),
+        await letterFonts(fontFromRepository),
+      ),
     );
     pdfs.set(
       'handout.pdf',
@@ -57,7 +72,7 @@ describe('letters in Chromium', () => {
           clinician: exampleLetterInput.clinician,
           issuedOn: '2026-12-01',
         }),
-        letterFonts(),
+        await letterFonts(fontFromRepository),
       ),
     );
     browser = await launchTablet({ width: 900, height: 1200 });

@@ -23,15 +23,11 @@ import {
 import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
-import { SyncIndicator } from '../components/SyncIndicator';
-import { UpdatePrompt } from '../components/UpdatePrompt';
 import { canSee } from '../auth/access';
 import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
 import { SessionProvider } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
-import { ReviewTabBadge } from '../screens/review/ReviewTabCount';
-import { SyncRuntime } from '../sync/SyncRuntime';
 import {
   BenchScreen,
   ChartScreen,
@@ -42,11 +38,15 @@ import {
   PersonScreen,
   PinSetupScreen,
   ReviewDeskScreen,
+  ReviewTabBadge,
   SignInScreen,
   SitesScreen,
+  SyncDock,
+  SyncRuntime,
   TabletErasedScreen,
   TodayScreen,
   UnlockScreen,
+  UpdatePrompt,
   VisitScreen,
 } from './routes';
 
@@ -81,21 +81,10 @@ function AppTabs() {
   const role = useSession().user?.role;
   // The Bench is full screen and carries its own sync indicator.
   const onBench = useLocation().pathname.startsWith('/bench/');
-  return (
-    <>
-      <AppTabsInner role={role} />
-      {/* Always visible on clinical screens: Ionic's tab bar shows only tab buttons, so the
-          sync indicator docks just above it instead. */}
-      {canSee(role, 'clinical') && !onBench ? (
-        <div className="fl-sync-dock">
-          <SyncIndicator compact />
-        </div>
-      ) : null}
-    </>
-  );
+  return <AppTabsInner role={role} dock={canSee(role, 'clinical') && !onBench} />;
 }
 
-function AppTabsInner({ role }: { role: Role | undefined }) {
+function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean }) {
   return (
     <IonTabs>
       <IonRouterOutlet>
@@ -126,6 +115,11 @@ function AppTabsInner({ role }: { role: Role | undefined }) {
         <Route path="/" element={<HomeRedirect />} />
         <Route path="*" element={<HomeRedirect />} />
       </IonRouterOutlet>
+      {dock ? (
+        <Suspense fallback={<div slot="bottom" className="fl-sync-dock" />}>
+          <SyncDock />
+        </Suspense>
+      ) : null}
       <IonTabBar
         slot="bottom"
         aria-label="Fuselight sections"
@@ -147,7 +141,9 @@ function AppTabsInner({ role }: { role: Role | undefined }) {
           <IonTabButton tab="review" href="/review">
             <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
             <IonLabel>Review desk</IonLabel>
-            <ReviewTabBadge />
+            <Suspense fallback={null}>
+              <ReviewTabBadge />
+            </Suspense>
           </IonTabButton>
         ) : null}
         {canSee(role, 'admin') ? (
@@ -177,6 +173,17 @@ function AppTabsInner({ role }: { role: Role | undefined }) {
   );
 }
 
+/** The sync engine runs once the tablet is enrolled and someone is signed in. */
+function SignedInSync() {
+  const { user, deviceId } = useSession();
+  if (!user || !deviceId) return null;
+  return (
+    <Suspense fallback={null}>
+      <SyncRuntime />
+    </Suspense>
+  );
+}
+
 export function App() {
   return (
     <QueryClientProvider client={queryClient}>
@@ -190,9 +197,11 @@ export function App() {
               <AppTabs />
             </IdentityGate>
             <SignInPrompt />
-            <SyncRuntime />
+            <SignedInSync />
           </IonReactRouter>
-          <UpdatePrompt />
+          <Suspense fallback={null}>
+            <UpdatePrompt />
+          </Suspense>
         </IonApp>
       </SessionProvider>
     </QueryClientProvider>

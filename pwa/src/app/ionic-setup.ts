@@ -4,8 +4,7 @@ import '@ionic/react/css/normalize.css';
 import '@ionic/react/css/structure.css';
 import '@ionic/react/css/typography.css';
 import '@ionic/react/css/padding.css';
-import '@ionic/react/css/flex-utils.css';
-import '@ionic/react/css/display.css';
+// Ionic's flex and display utility classes are left out: no screen uses them (first-screen size).
 import '@ionic/react/css/palettes/dark.system.css';
 import '../theme/fonts';
 import '../theme/variables.css';

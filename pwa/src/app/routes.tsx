@@ -16,3 +16,18 @@ export const PersonScreen = lazy(() => import('../screens/unlock/PersonScreen'))
 export const PeopleScreen = lazy(() => import('../screens/admin/PeopleScreen'));
 export const SitesScreen = lazy(() => import('../screens/admin/SitesScreen'));
 export const BenchScreen = lazy(() => import('../screens/bench/BenchScreen'));
+
+// Parts of the shell that only a signed-in person on an enrolled tablet sees: the sync engine
+// and its indicator, and the Review desk's count (they bring the records database, the sync
+// engine and the shared schemas, which sign-in does not need).
+export const SyncRuntime = lazy(() =>
+  import('../sync/SyncRuntime').then((m) => ({ default: m.SyncRuntime })),
+);
+export const SyncDock = lazy(() => import('./SyncDock').then((m) => ({ default: m.SyncDock })));
+export const ReviewTabBadge = lazy(() =>
+  import('../screens/review/ReviewTabCount').then((m) => ({ default: m.ReviewTabBadge })),
+);
+// The update prompt (Ionic's toast) registers the service worker once the first screen is up.
+export const UpdatePrompt = lazy(() =>
+  import('../components/UpdatePrompt').then((m) => ({ default: m.UpdatePrompt })),
+);

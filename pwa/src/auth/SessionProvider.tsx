@@ -11,8 +11,8 @@ import {
   type ReactNode,
 } from 'react';
 import { version as appVersion } from '../../package.json';
-// The sync engine itself is started by pwa/src/sync/SyncRuntime.tsx with SessionSyncAuth.
-import { getSyncEngine, subscribeSyncEngine } from '../sync/sync-runtime';
+// The sync engine itself is started by pwa/src/sync/SyncRuntime.tsx with SessionSyncAuth; it is
+// reached here through a dynamic import so that sign-in does not load it (bench:bundle).
 import { SessionContext, type TabletSession } from './session-context';
 import { SessionStore, type AuthSnapshot } from './session-store';
 
@@ -79,25 +79,31 @@ export function SessionProvider({
     if (!background) return;
     let lastSyncedAt: number | null = null;
     let unsubscribeStatus: (() => void) | null = null;
-    const watch = () => {
-      unsubscribeStatus?.();
-      const engine = getSyncEngine();
-      unsubscribeStatus =
-        engine?.status.subscribe(() => {
-          const status = engine.status.getSnapshot();
-          if (status.lastSyncedAt !== null && status.lastSyncedAt !== lastSyncedAt) {
-            lastSyncedAt = status.lastSyncedAt;
-            store.heartbeat(appVersion).catch(() => undefined);
-            if (store.getSnapshot().tablet?.state === 'retired') {
-              store.continueRetirement().catch(() => undefined);
+    let unsubscribeEngine: (() => void) | null = null;
+    let ended = false;
+    void import('../sync/sync-runtime').then(({ getSyncEngine, subscribeSyncEngine }) => {
+      if (ended) return;
+      const watch = () => {
+        unsubscribeStatus?.();
+        const engine = getSyncEngine();
+        unsubscribeStatus =
+          engine?.status.subscribe(() => {
+            const status = engine.status.getSnapshot();
+            if (status.lastSyncedAt !== null && status.lastSyncedAt !== lastSyncedAt) {
+              lastSyncedAt = status.lastSyncedAt;
+              store.heartbeat(appVersion).catch(() => undefined);
+              if (store.getSnapshot().tablet?.state === 'retired') {
+                store.continueRetirement().catch(() => undefined);
+              }
             }
-          }
-        }) ?? null;
-    };
-    watch();
-    const unsubscribeEngine = subscribeSyncEngine(watch);
+          }) ?? null;
+      };
+      watch();
+      unsubscribeEngine = subscribeSyncEngine(watch);
+    });
     return () => {
-      unsubscribeEngine();
+      ended = true;
+      unsubscribeEngine?.();
       unsubscribeStatus?.();
     };
   }, [store, background]);

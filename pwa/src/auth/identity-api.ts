@@ -1,20 +1,24 @@
 // The identity routes of the clinic server (auth, devices, admin), over the tablet's one API
 // client (net/api-client.ts: an injectable fetch, one error wording). Errors carry the server's
 // words and its `erase` flag (a revoked tablet); nothing here logs a token or a secret.
+// The identity and admin views from their own modules, not the package's index: sign-in then
+// loads these few schemas, not every record schema and the clinical core (bench:bundle).
 import {
   adminUserListSchema,
   adminUserSchema,
   fleetDeviceListSchema,
   fleetDeviceSchema,
   invitedPersonSchema,
-  sessionUserSchema,
   type AdminUser,
   type FleetDevice,
   type InvitedPerson,
+} from '@fuselight/shared/admin-views';
+import {
+  sessionUserSchema,
   type LoginRequest,
   type Role,
   type SessionUser,
-} from '@fuselight/shared';
+} from '@fuselight/shared/identity';
 import { z } from 'zod';
 import { ApiClient, type ApiClientOptions } from '../net/api-client';
 

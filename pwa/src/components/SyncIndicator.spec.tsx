@@ -5,6 +5,7 @@ import { FuselightDb } from '../data/db';
 import { RecordsRepository } from '../data/records-repository';
 import { CLINICIAN_ID, DEVICE_ID, patientFields } from '../data/test-fixtures';
 import { SyncEngine } from '../sync/sync-engine';
+import { SyncStatusStore } from '../sync/sync-status';
 import { describeLastSynced, describeRepullForBar, SyncIndicator } from './SyncIndicator';
 
 const dbs: FuselightDb[] = [];
@@ -31,6 +32,10 @@ function engineWith(options: { online: boolean; fetch?: typeof fetch }) {
   });
   return { db, engine };
 }
+
+/** Which of the bar's icons is drawn (cloud done, cloud, cloud offline, warning). */
+const shownIcon = () =>
+  document.querySelector('.fl-sync-indicator ion-icon')?.getAttribute('data-look');
 
 describe('the sync indicator', () => {
   it('shows offline, what waits in the Outbox, and never-synced, in words', async () => {
@@ -64,6 +69,7 @@ describe('the sync indicator', () => {
     await waitFor(() =>
       expect(screen.getByRole('alert').textContent).toMatch(/could not be reached/),
     );
+    expect(shownIcon()).toBe('problem');
     expect(fetch).toHaveBeenCalled();
     // The Outbox count is refreshed after the failure is shown.
     await waitFor(() =>
@@ -86,6 +92,25 @@ describe('the sync indicator', () => {
     );
     act(() => engine.status.update({ online: false, live: 'off' }));
     expect(screen.getByRole('status').textContent).toMatch(/^Offline· Outbox empty· /);
+  });
+
+  it('draws no warning sign while online with an empty Outbox before sync has started', () => {
+    // No engine yet: the tablet is not enrolled or nobody is signed in.
+    render(<SyncIndicator engine={null} compact />);
+    expect(shownIcon()).toBe('not-started');
+    expect(screen.getByRole('status').textContent).toBe('Online· Sync not started');
+    expect(screen.queryByRole('alert')).toBeNull();
+    expect(screen.getByText(/^Sync starts once this tablet is enrolled/).className).toBe(
+      'fl-muted',
+    );
+  });
+
+  it('draws the synced cloud, not a warning, while online with an empty Outbox', () => {
+    const status = new SyncStatusStore({ configured: true, lastSyncedAt: Date.now() - 5_000 });
+    render(<SyncIndicator engine={{ status } as unknown as SyncEngine} compact />);
+    expect(shownIcon()).toBe('ok');
+    expect(screen.getByRole('status').textContent).toBe('Online· Outbox empty');
+    expect(screen.queryByRole('alert')).toBeNull();
   });
 
   it('describes the last sync time in words', () => {

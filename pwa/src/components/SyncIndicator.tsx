@@ -2,7 +2,13 @@
 // a long pull's progress and any problem in words, with a "Sync now" button; and that an update
 // of the app is available when it holds records from a newer build (sync/newer-records.ts).
 import { IonIcon, IonSpinner } from '@ionic/react';
-import { cloudDoneOutline, cloudOfflineOutline, syncOutline, warningOutline } from 'ionicons/icons';
+import {
+  cloudDoneOutline,
+  cloudOfflineOutline,
+  cloudOutline,
+  syncOutline,
+  warningOutline,
+} from 'ionicons/icons';
 import { useEffect, useState } from 'react';
 import {
   describeFullRepull,
@@ -65,6 +71,25 @@ export function describeRepullForBar(
   return describeFullRepull(repull, clockTime);
 }
 
+/**
+ * What the bar's icon says. A sync that has not started (no enrolment or nobody signed in yet) is
+ * a state to explain, not a problem: only a failure of a running sync gets the warning sign.
+ */
+export type SyncLook = 'offline' | 'not-started' | 'problem' | 'ok';
+
+export function syncLookOf(status: SyncStatus): SyncLook {
+  if (!status.online) return 'offline';
+  if (!status.configured) return 'not-started';
+  return status.error ? 'problem' : 'ok';
+}
+
+const LOOK_ICONS: Record<SyncLook, string> = {
+  offline: cloudOfflineOutline,
+  'not-started': cloudOutline,
+  problem: warningOutline,
+  ok: cloudDoneOutline,
+};
+
 function describeProgress(status: SyncStatus): string | null {
   const progress = status.progress;
   if (!progress) return null;
@@ -85,6 +110,10 @@ export function SyncIndicator(props: {
     return () => clearInterval(timer);
   }, []);
   const busy = status.phase === 'pushing' || status.phase === 'pulling';
+  const look = syncLookOf(status);
+  // Why sync has not started is said in muted words; only a running sync's failure is an alert.
+  const problem = look === 'problem' ? status.error : null;
+  const note = look === 'not-started' ? status.error : null;
   const progress = describeProgress(status);
   const repull = describeRepullForBar(status, nowMs, props.compact === true);
   const newer = describeNewerRecords(status.newerRecords);
@@ -116,12 +145,7 @@ export function SyncIndicator(props: {
         aria-live="polite"
         style={{ display: 'flex', alignItems: 'center', gap: 6 }}
       >
-        <IonIcon
-          aria-hidden="true"
-          icon={
-            status.online ? (status.error ? warningOutline : cloudDoneOutline) : cloudOfflineOutline
-          }
-        />
+        <IonIcon aria-hidden="true" icon={LOOK_ICONS[look]} data-look={look} />
         <strong>{status.online ? 'Online' : 'Offline'}</strong>
         {live ? (
           <span
@@ -135,7 +159,7 @@ export function SyncIndicator(props: {
             · {live}
           </span>
         ) : null}
-        <span>· {describeOutbox(status)}</span>
+        <span>· {look === 'not-started' ? 'Sync not started' : describeOutbox(status)}</span>
         {props.compact ? null : (
           <span className="fl-muted">· {describeLastSynced(status.lastSyncedAt, nowMs)}</span>
         )}
@@ -147,11 +171,28 @@ export function SyncIndicator(props: {
           </span>
         ) : null}
       </span>
-      {props.compact ? (
-        status.error ? (
+      {note ? (
+        <span
+          className="fl-muted"
+          title={note}
+          style={
+            props.compact
+              ? {
+                  maxWidth: '16rem',
+                  overflow: 'hidden',
+                  textOverflow: 'ellipsis',
+                  whiteSpace: 'nowrap',
+                }
+              : { flex: '1 1 16rem' }
+          }
+        >
+          {note}
+        </span>
+      ) : props.compact ? (
+        problem ? (
           <span
             role="alert"
-            title={status.error}
+            title={problem}
             style={{
               maxWidth: '16rem',
               overflow: 'hidden',
@@ -159,12 +200,12 @@ export function SyncIndicator(props: {
               whiteSpace: 'nowrap',
             }}
           >
-            {status.error}
+            {problem}
           </span>
         ) : null
-      ) : status.error ? (
+      ) : problem ? (
         <span role="alert" style={{ flex: '1 1 16rem', color: 'var(--ion-color-danger, #b00020)' }}>
-          {status.error}
+          {problem}
         </span>
       ) : (
         <span style={{ flex: '1 1 0' }} />

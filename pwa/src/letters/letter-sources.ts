@@ -44,7 +44,10 @@ export async function layoutOfLetter(
   return letterLayoutOf({ letter, visit, patient, patientVisits, sections }, context);
 }
 
-/** The letter as PDF bytes, drawn on the tablet (the renderer loads with its fonts on demand). */
+/**
+ * The letter as PDF bytes, drawn on the tablet. The renderer (pdf-lib with fontkit) and the font
+ * files load only now, when a letter is first drawn.
+ */
 export async function letterPdfOnTablet(
   records: RecordsRepository,
   letterId: string,
@@ -55,5 +58,5 @@ export async function letterPdfOnTablet(
     import('@fuselight/shared/letter-pdf'),
     import('./letter-fonts'),
   ]);
-  return renderLetterPdf(layout, letterFonts());
+  return renderLetterPdf(layout, await letterFonts());
 }

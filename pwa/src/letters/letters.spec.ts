@@ -1,5 +1,7 @@
 import { PDFDocument } from 'pdf-lib';
-import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { resolve } from 'node:path';
+import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
 import {
   exampleLetterInput,
   exampleLetterRecords,
@@ -23,7 +25,7 @@ import {
   LetterRuleError,
   requestSend,
 } from './letter-actions';
-import { letterFonts } from './letter-fonts';
+import { LETTER_FONT_URLS, letterFonts } from './letter-fonts';
 import { layoutOfLetter, letterPdfOnTablet, type LetterContext } from './letter-sources';
 
 const SITE = exampleVisits.first.visit.id.replace(/b0001$/, 'a0009');
@@ -43,12 +45,23 @@ const context: LetterContext = {
   today: '2026-12-01',
 };
 
+/** Who asked for which address: the tablet fetches the font files when it first draws a letter. */
+const fetched: string[] = [];
+const FONTS_DIR = resolve(import.meta.dirname, '../../../shared/src/letters/fonts');
+
 beforeEach(() => {
+  // The build serves the font files as assets; here they are read from the repository.
+  vi.stubGlobal('fetch', async (url: string) => {
+    fetched.push(url);
+    const file = url.split('/').at(-1)!.split('?')[0]!;
+    return new Response(readFileSync(resolve(FONTS_DIR, file)));
+  });
   db = new FuselightDb(`letters-${crypto.randomUUID()}`);
   records = new RecordsRepository(db);
   outbox = new OutboxRepository(db);
 });
 afterEach(async () => {
+  vi.unstubAllGlobals();
   db.close();
   await db.delete();
 });
@@ -133,6 +146,31 @@ describe('letters on the tablet', () => {
     expect(doc.getPageCount()).toBeGreaterThanOrEqual(1);
     expect(doc.getTitle()).toBe('Orthoptic assessment of Tamsin Orrery, 1 December 2026');
     expect(Buffer.from(bytes).toString('latin1')).toMatch(/\/BaseFont \/Lato-Regular-\d+/);
+    // The fonts are files of their own, fetched when a letter is first drawn (once per page).
+    expect(new Set(fetched)).toEqual(new Set([LETTER_FONT_URLS.regular, LETTER_FONT_URLS.bold]));
+    expect(LETTER_FONT_URLS.regular).toMatch(/Lato-Regular[^/]*\.ttf/);
+  });
+
+  it('says what to do when a font file cannot be fetched, and fetches it again next time', async () => {
+    let calls = 0;
+    const failing = async (url: string) => {
+      calls += 1;
+      throw new Error(`offline: ${url}`);
+    };
+    vi.resetModules();
+    const fresh = await import('./letter-fonts');
+    await expect(fresh.letterFonts(failing)).rejects.toThrow(/^offline: /);
+    const bytes = new Uint8Array([1, 2, 3]);
+    const fonts = await fresh.letterFonts(async () => bytes);
+    expect(fonts).toEqual({ regular: bytes, bold: bytes });
+    expect(calls).toBe(2);
+
+    vi.resetModules();
+    const again = await import('./letter-fonts');
+    vi.stubGlobal('fetch', async () => new Response('gone', { status: 404 }));
+    await expect(again.letterFonts()).rejects.toThrow(
+      /^The letter font could not be loaded \(404 for .*Lato-Regular.*\); reload the app while connected and try again$/,
+    );
   });
 
   it('renders the exercise handout from the prescribed exercises', async () => {
@@ -223,7 +261,7 @@ describe('letters on the tablet', () => {
     const onTablet = await pdfText(
       await letterPdfOnTablet(records, fixture.records.letter.id, context),
     );
-    const ofModel = await pdfText(await renderLetterPdf(model, letterFonts()));
+    const ofModel = await pdfText(await renderLetterPdf(model, await letterFonts()));
     expect(onTablet.all).toBe(ofModel.all);
     expect(onTablet.all).toContain('Harbourside Eye Clinic');
     expect(onTablet.all).not.toMatch(/exo (30|25|40)\.0°/);

@@ -73,6 +73,13 @@ interface DemoPatient {
 
 // --- Section builders: small helpers so each story reads as findings, not as field names. ---
 
+// The demo clinic's amblyoscope slides are invented subjects of its own: a pair of dissimilar
+// pictures for simultaneous perception (a kite flown into a window frame), and a pair of similar
+// pictures each with its own check mark for fusion (a lighthouse keeper's hut, with a lamp on one
+// side and a bell on the other).
+const SP_SLIDE = 'Kite and window frame';
+const FUSION_SLIDE = 'Keeper’s hut with lamp and bell';
+
 function angles(objectiveDeg: number, subjectiveDeg: number, verticalPd = 0): Sections {
   return {
     amblyoscopeSetup: {
@@ -87,7 +94,7 @@ function angles(objectiveDeg: number, subjectiveDeg: number, verticalPd = 0): Se
       subjectiveHorizontalDeg: subjectiveDeg,
       objectiveVerticalPd: verticalPd,
       subjectiveVerticalPd: verticalPd,
-      slideUsed: 'Lion and cage',
+      slideUsed: SP_SLIDE,
     },
   };
 }
@@ -97,12 +104,12 @@ function bsv(sp: 'present' | 'absent', fusion: 'present' | 'absent' | 'notTested
     simultaneousPerception: {
       result: sp,
       ...(sp === 'absent' ? { suppressingEye: 'left' } : {}),
-      slideUsed: 'Lion and cage',
+      slideUsed: SP_SLIDE,
     },
     fusion: {
       result: fusion,
       ...(fusion === 'present' ? { rightMarkSeen: true, leftMarkSeen: true } : {}),
-      slideUsed: 'Rabbit with tail and flowers',
+      slideUsed: FUSION_SLIDE,
     },
   };
 }

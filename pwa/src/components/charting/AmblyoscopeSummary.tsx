@@ -7,37 +7,27 @@ import { BENCH_COLLECTIONS } from '../../data/bench/bench-sections';
 import type { VisitSectionRecords } from '../../data/charting';
 import { DisputeMark } from './ScreenState';
 import { SaveIndicator, metaOf, sectionFieldNames } from './SectionForm';
+import { SectionPanel } from './SectionPanel';
+import { shownValue } from './section-summary';
 import { useSectionAutosave, type SaveStatus } from './useSectionAutosave';
 
 const AMBLYOSCOPE_SECTIONS: readonly [SectionCollectionName, string][] = BENCH_COLLECTIONS.map(
   (collection) => [collection, collectionLabel(collection)],
 );
 
-function shown(collection: SectionCollectionName, field: string, value: unknown): string | null {
-  if (value === null || value === undefined) return null;
-  const meta = metaOf(collection, field);
-  if (typeof value === 'boolean') return value ? 'Yes' : 'No';
-  if (typeof value === 'number') {
-    const sign = value > 0 && (meta.min ?? 0) < 0 ? '+' : '';
-    return `${sign}${value}${meta.unit ? ` ${meta.unit}` : ''}`;
-  }
-  if (typeof value === 'string') {
-    return meta.options?.find((o) => o.value === value)?.label ?? value;
-  }
-  if (Array.isArray(value)) return `${value.length} recorded`;
-  return null;
-}
-
 export function AmblyoscopeSummary({
   visitId,
   sections,
   locked,
   onStatus,
+  folding,
 }: {
   visitId: string;
   sections: VisitSectionRecords;
   locked: boolean;
   onStatus?: (status: SaveStatus) => void;
+  /** Fold to a one-line summary (the Visit screen); absent: always open. */
+  folding?: { open: boolean; onToggle: (open: boolean) => void };
 }) {
   const angles = sections.amblyoscopeAngles;
   const autosave = useSectionAutosave(visitId, 'amblyoscopeAngles', angles?.fields, onStatus);
@@ -48,7 +38,7 @@ export function AmblyoscopeSummary({
           .map((field) => ({
             field,
             label: metaOf(collection, field).label,
-            value: shown(collection, field, (record.fields as Record<string, unknown>)[field]),
+            value: shownValue(collection, field, (record.fields as Record<string, unknown>)[field]),
           }))
           .filter((row) => row.value !== null)
       : [];
@@ -60,12 +50,31 @@ export function AmblyoscopeSummary({
     return typeof value === 'number' ? value : null;
   };
 
+  const angleWords = (['objectiveHorizontalDeg', 'subjectiveHorizontalDeg'] as const)
+    .map((field) => {
+      const value = shownValue('amblyoscopeAngles', field, angleValue(field));
+      return value === null ? null : `${metaOf('amblyoscopeAngles', field).label} ${value}`;
+    })
+    .filter((part): part is string => part !== null);
+  const summary =
+    [
+      ...angleWords,
+      ...(recorded.length > 0
+        ? [`On the Bench: ${recorded.map((group) => group.title).join(', ')}`]
+        : []),
+    ].join(' · ') || 'Nothing recorded at the amblyoscope yet';
+  const mustShow = autosave.status === 'invalid' || autosave.status === 'error';
   return (
-    <section className="flc-panel" aria-labelledby="amblyoscope-title" id="section-amblyoscope">
-      <header>
-        <h2 id="amblyoscope-title">Amblyoscope</h2>
-        <SaveIndicator status={autosave.status} error={autosave.saveError} />
-      </header>
+    <SectionPanel
+      id="section-amblyoscope"
+      title="Amblyoscope"
+      aside={<SaveIndicator status={autosave.status} error={autosave.saveError} />}
+      folding={
+        folding
+          ? { open: folding.open || mustShow, onToggle: folding.onToggle, summary }
+          : undefined
+      }
+    >
       <p>
         The full amblyoscope capture is on the Bench.{' '}
         <Link className="flc-button" to={`/bench/${visitId}`}>
@@ -110,6 +119,6 @@ export function AmblyoscopeSummary({
           </div>
         ))
       )}
-    </section>
+    </SectionPanel>
   );
 }

@@ -10,6 +10,8 @@ import {
 import { useId, type ReactNode } from 'react';
 import { ChoiceGroup, YesNoChoice } from '../controls';
 import { DisputeMark } from './ScreenState';
+import { SectionPanel } from './SectionPanel';
+import { sectionSummary } from './section-summary';
 import {
   saveStatusWords,
   useSectionAutosave,
@@ -31,6 +33,8 @@ export interface SectionFormProps {
   /** Extra content above the fields (e.g. a custom entry). */
   children?: (autosave: SectionAutosave) => ReactNode;
   intro?: ReactNode;
+  /** Fold to a one-line summary (the Visit screen); absent: always open. */
+  folding?: { open: boolean; onToggle: (open: boolean) => void };
 }
 
 const placement: ReadonlySet<string> = new Set(SECTION_PLACEMENT_KEYS);
@@ -276,16 +280,27 @@ export function SectionForm({
   onStatus,
   children,
   intro,
+  folding,
 }: SectionFormProps) {
   const autosave = useSectionAutosave(visitId, collection, record?.fields, onStatus);
   const names = fields ?? sectionFieldNames(collection);
-  const headingId = useId();
+  // A refused or unsaved value keeps its Section open, where its message is.
+  const mustShow = autosave.status === 'invalid' || autosave.status === 'error';
   return (
-    <section className="flc-panel" aria-labelledby={headingId} id={`section-${collection}`}>
-      <header>
-        <h2 id={headingId}>{title}</h2>
-        <SaveIndicator status={autosave.status} error={autosave.saveError} />
-      </header>
+    <SectionPanel
+      id={`section-${collection}`}
+      title={title}
+      aside={<SaveIndicator status={autosave.status} error={autosave.saveError} />}
+      folding={
+        folding
+          ? {
+              open: folding.open || mustShow,
+              onToggle: folding.onToggle,
+              summary: sectionSummary(collection, record?.fields, names),
+            }
+          : undefined
+      }
+    >
       {intro}
       {children?.(autosave)}
       <div className="flc-grid">
@@ -300,6 +315,6 @@ export function SectionForm({
           />
         ))}
       </div>
-    </section>
+    </SectionPanel>
   );
 }

@@ -1,3 +1,5 @@
+import { readFileSync } from 'node:fs';
+import { resolve } from 'node:path';
 import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
@@ -156,6 +158,45 @@ describe('the Fleet', () => {
       label: 'Outreach bag 1',
       siteIds: [SITE_A],
     });
+  });
+
+  it('keeps a tablet’s actions on one line and asks for confirmation in a row beneath it', async () => {
+    // The screen's own stylesheet, so the computed style is what Chromium applies.
+    const style = document.createElement('style');
+    style.textContent = readFileSync(resolve(import.meta.dirname, 'fleet.css'), 'utf8');
+    document.head.append(style);
+    try {
+      await renderFleet([tablet, { ...tablet, id: crypto.randomUUID(), label: 'Outreach bag 1' }]);
+      const user = userEvent.setup();
+      const row = await screen.findByRole('row', { name: /Orthoptics room 2/ });
+      const actions = row.children[6] as HTMLElement;
+      expect(
+        within(actions)
+          .getAllByRole('button')
+          .map((b) => b.textContent),
+      ).toEqual(['Retire', 'Revoke']);
+      const buttons = actions.querySelector('.fl-fleet-actions__buttons') as HTMLElement;
+      expect([getComputedStyle(actions).whiteSpace, getComputedStyle(buttons).flexWrap]).toEqual([
+        'nowrap',
+        'nowrap',
+      ]);
+
+      await user.click(within(actions).getByRole('button', { name: 'Revoke Orthoptics room 2' }));
+      const dialog = screen.getByRole('alertdialog', { name: 'Revoke Orthoptics room 2?' });
+      // The Actions cell still holds its two buttons only; the question spans the table in the
+      // next row, before the other tablet's row.
+      expect(actions.contains(dialog)).toBe(false);
+      expect(within(actions).getAllByRole('button')).toHaveLength(2);
+      const followUp = dialog.closest('tr') as HTMLTableRowElement;
+      expect(followUp.previousElementSibling).toBe(row);
+      expect((followUp.firstElementChild as HTMLTableCellElement).colSpan).toBe(7);
+      expect(followUp.nextElementSibling?.querySelector('th')?.textContent).toBe('Outreach bag 1');
+      await user.click(within(dialog).getByRole('button', { name: 'Cancel' }));
+      expect(screen.queryByRole('alertdialog')).toBeNull();
+      expect(row.nextElementSibling?.querySelector('th')?.textContent).toBe('Outreach bag 1');
+    } finally {
+      style.remove();
+    }
   });
 
   it('revokes a tablet only after the admin confirms', async () => {

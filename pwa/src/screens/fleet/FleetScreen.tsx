@@ -8,6 +8,7 @@ import { Controller, useForm } from 'react-hook-form';
 import type { RegisteredDevice } from '../../auth/identity-api';
 import { Button, Confirmation, Notice, TextField, describeError } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
+import './fleet.css';
 import { registerTabletSchema, type RegisterTabletForm } from '../admin/admin-forms.schema';
 import { SiteChecklist, siteNames } from '../admin/SiteChecklist';
 import { useFleet, useRegisterTablet, useSites, useTabletAction } from '../admin/useAdminQueries';
@@ -106,60 +107,83 @@ function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: stri
   const action = useTabletAction();
   const [confirming, setConfirming] = useState<'revoke' | 'retire' | null>(null);
   const ended = tablet.state === 'revoked' || tablet.state === 'retired';
+  // The buttons stay on one line; a confirmation or a refusal opens in a row of its own beneath
+  // the tablet's, across the table, so the Actions column never grows and pushes rows apart.
+  const followUp = confirming !== null || action.isError;
   return (
-    <tr>
-      <th scope="row">{tablet.label}</th>
-      <td>{STATE_WORDS[tablet.state]}</td>
-      <td>{sitesText}</td>
-      <td>{when(tablet.lastSeenAt)}</td>
-      <td>{tablet.appVersion ?? 'not reported'}</td>
-      <td>{tablet.outboxSize ?? 'not reported'}</td>
-      <td>
-        {ended ? null : (
-          <div className="fl-id-row">
-            <Button
-              tone="quiet"
-              onClick={() => setConfirming('retire')}
-              aria-label={`Retire ${tablet.label}`}
-            >
-              Retire
-            </Button>
-            <Button
-              tone="danger"
-              onClick={() => setConfirming('revoke')}
-              aria-label={`Revoke ${tablet.label}`}
-            >
-              Revoke
-            </Button>
-          </div>
-        )}
-        {confirming ? (
-          <Confirmation
-            title={confirming === 'revoke' ? `Revoke ${tablet.label}?` : `Retire ${tablet.label}?`}
-            confirmLabel={confirming === 'revoke' ? 'Revoke now' : 'Retire'}
-            busy={action.isPending}
-            onCancel={() => setConfirming(null)}
-            onConfirm={() =>
-              action.mutate(
-                { id: tablet.id, action: confirming },
-                { onSuccess: () => setConfirming(null) },
-              )
-            }
-          >
-            {confirming === 'revoke'
-              ? `The tablet is refused at once and erases everything on it the next time it reaches the server. ${
-                  tablet.outboxSize
-                    ? `${tablet.outboxSize} changes it has not sent will be lost.`
-                    : ''
-                } Use this for a lost or stolen tablet.`
-              : 'The tablet sends the changes it still holds, then erases itself. Use this for a tablet leaving service.'}
-          </Confirmation>
-        ) : null}
-        {action.isError ? <Notice tone="error">{describeError(action.error)}</Notice> : null}
-      </td>
-    </tr>
+    <>
+      <tr className={followUp ? 'fl-fleet-row--open' : undefined}>
+        <th scope="row">{tablet.label}</th>
+        <td>{STATE_WORDS[tablet.state]}</td>
+        <td>{sitesText}</td>
+        <td>{when(tablet.lastSeenAt)}</td>
+        <td>{tablet.appVersion ?? 'not reported'}</td>
+        <td>{tablet.outboxSize ?? 'not reported'}</td>
+        <td className="fl-fleet-actions">
+          {ended ? null : (
+            <div className="fl-fleet-actions__buttons">
+              <Button
+                tone="quiet"
+                onClick={() => setConfirming('retire')}
+                aria-label={`Retire ${tablet.label}`}
+              >
+                Retire
+              </Button>
+              <Button
+                tone="danger"
+                onClick={() => setConfirming('revoke')}
+                aria-label={`Revoke ${tablet.label}`}
+              >
+                Revoke
+              </Button>
+            </div>
+          )}
+        </td>
+      </tr>
+      {followUp ? (
+        <tr className="fl-fleet-followup">
+          <td colSpan={FLEET_COLUMNS.length}>
+            {confirming ? (
+              <Confirmation
+                title={
+                  confirming === 'revoke' ? `Revoke ${tablet.label}?` : `Retire ${tablet.label}?`
+                }
+                confirmLabel={confirming === 'revoke' ? 'Revoke now' : 'Retire'}
+                busy={action.isPending}
+                onCancel={() => setConfirming(null)}
+                onConfirm={() =>
+                  action.mutate(
+                    { id: tablet.id, action: confirming },
+                    { onSuccess: () => setConfirming(null) },
+                  )
+                }
+              >
+                {confirming === 'revoke'
+                  ? `The tablet is refused at once and erases everything on it the next time it reaches the server. ${
+                      tablet.outboxSize
+                        ? `${tablet.outboxSize} changes it has not sent will be lost.`
+                        : ''
+                    } Use this for a lost or stolen tablet.`
+                  : 'The tablet sends the changes it still holds, then erases itself. Use this for a tablet leaving service.'}
+              </Confirmation>
+            ) : null}
+            {action.isError ? <Notice tone="error">{describeError(action.error)}</Notice> : null}
+          </td>
+        </tr>
+      ) : null}
+    </>
   );
 }
+
+const FLEET_COLUMNS = [
+  'Tablet',
+  'State',
+  'Sites',
+  'Last contact',
+  'App version',
+  'Outbox',
+  'Actions',
+] as const;
 
 export default function FleetScreen() {
   const fleet = useFleet();
@@ -180,28 +204,28 @@ export default function FleetScreen() {
         ) : null}
         {fleet.data && fleet.data.length === 0 ? <p>No tablets are registered yet.</p> : null}
         {fleet.data && fleet.data.length > 0 ? (
-          <table className="fl-id-table">
-            <thead>
-              <tr>
-                <th scope="col">Tablet</th>
-                <th scope="col">State</th>
-                <th scope="col">Sites</th>
-                <th scope="col">Last contact</th>
-                <th scope="col">App version</th>
-                <th scope="col">Outbox</th>
-                <th scope="col">Actions</th>
-              </tr>
-            </thead>
-            <tbody>
-              {fleet.data.map((tablet) => (
-                <TabletRow
-                  key={tablet.id}
-                  tablet={tablet}
-                  sitesText={siteNames(sites.data, tablet.siteIds)}
-                />
-              ))}
-            </tbody>
-          </table>
+          <div className="fl-fleet-scroll">
+            <table className="fl-id-table fl-fleet-table">
+              <thead>
+                <tr>
+                  {FLEET_COLUMNS.map((column) => (
+                    <th key={column} scope="col">
+                      {column}
+                    </th>
+                  ))}
+                </tr>
+              </thead>
+              <tbody>
+                {fleet.data.map((tablet) => (
+                  <TabletRow
+                    key={tablet.id}
+                    tablet={tablet}
+                    sitesText={siteNames(sites.data, tablet.siteIds)}
+                  />
+                ))}
+              </tbody>
+            </table>
+          </div>
         ) : null}
       </section>
     </IdentityPage>

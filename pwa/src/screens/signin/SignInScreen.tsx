@@ -1,7 +1,7 @@
 // Full online sign-in with e-mail and password. On an enrolled tablet the session is bound to
 // the tablet; afterwards the person is offered a PIN for offline unlock.
 import { zodResolver } from '@hookform/resolvers/zod';
-import { loginRequestSchema } from '@fuselight/shared';
+import { loginRequestSchema } from '@fuselight/shared/identity';
 import { useMutation } from '@tanstack/react-query';
 import { useForm } from 'react-hook-form';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';

@@ -1,3 +1,5 @@
+import { readFileSync } from 'node:fs';
+import { resolve } from 'node:path';
 import { screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { afterEach, describe, expect, it } from 'vitest';
@@ -233,6 +235,52 @@ describe('the Today screen', () => {
     const resume = within(list).getByRole('link', { name: 'Resume visit: Wren Altamira' });
     expect(resume.getAttribute('href')).toBe(`/visit/${visitId}`);
     expect(resume.closest('li')?.querySelector('.flc-badge')?.textContent).toBe('Draft');
+  });
+});
+
+describe('the visit state badge on Today', () => {
+  it('reads Draft beside the patient’s name on one line, not stretched among the row’s buttons', async () => {
+    // The screen's own stylesheet, so the computed style is what Chromium applies.
+    const style = document.createElement('style');
+    style.textContent = readFileSync(
+      resolve(import.meta.dirname, '../../components/charting/charting.css'),
+      'utf8',
+    );
+    document.head.append(style);
+    try {
+      const repos = setup();
+      const patientId = await addPatient(repos, OSWIN);
+      await repos.records.create(
+        'visit',
+        {
+          siteId: TEST_SITE_ID,
+          patientId,
+          date: localDate(),
+          clinicianId: '0190c6a0-0000-7000-8000-00000000d001',
+          status: 'draft',
+          reason: 'Diplopia on reading',
+        },
+        editContext(),
+      );
+      renderScreen(<TodayScreen />, { repositories: repos });
+      const list = await screen.findByRole('list', { name: 'Today’s visits' });
+      const row = within(list).getByRole('listitem');
+      const badge = row.querySelector('.flc-badge') as HTMLElement;
+      expect(badge.textContent).toBe('Draft');
+      // It shares the heading line with the name and is not one of the actions.
+      expect(badge.parentElement?.querySelector('.flc-row__title')?.textContent).toBe(
+        'Oswin Belgrave',
+      );
+      expect(badge.closest('.flc-actions')).toBeNull();
+      const drawn = getComputedStyle(badge);
+      expect([drawn.alignSelf, drawn.whiteSpace, drawn.display]).toEqual([
+        'center',
+        'nowrap',
+        'inline-flex',
+      ]);
+    } finally {
+      style.remove();
+    }
   });
 });
 

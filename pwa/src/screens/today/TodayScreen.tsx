@@ -56,14 +56,18 @@ function TodayRow({ entry }: { entry: TodayEntry }) {
   return (
     <li className="flc-row">
       <div className="flc-row__main">
-        <span className="flc-row__title">{name}</span>
+        {/* The visit's state reads with the name, not among the buttons, where the row's
+            48 px controls would stretch it. */}
+        <span className="flc-row__heading">
+          <span className="flc-row__title">{name}</span>
+          <VisitStatusBadge status={entry.visit.fields.status} />
+        </span>
         <span className="fl-muted">
           {entry.visit.fields.reason ?? 'No reason recorded'}
           {entry.patient ? ` · ${entry.patient.fields.clinicNumber}` : ''}
         </span>
       </div>
       <div className="flc-actions">
-        <VisitStatusBadge status={entry.visit.fields.status} />
         <Link
           className={`flc-button${draft ? ' flc-button--primary' : ''}`}
           to={`/visit/${entry.visit.id}`}

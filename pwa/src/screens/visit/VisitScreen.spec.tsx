@@ -1,4 +1,6 @@
-import { CLINICAL_CAUTION } from '@fuselight/shared';
+import { readFileSync } from 'node:fs';
+import { resolve } from 'node:path';
+import { CLINICAL_CAUTION, collectionLabel } from '@fuselight/shared';
 import { render, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { afterEach, describe, expect, it } from 'vitest';
@@ -75,6 +77,18 @@ function renderVisit(repos: Repos, visitId: string, user = ORTHOPTIST, authDb?: 
   );
 }
 
+/**
+ * A Section opened as a clinician opens it: the Visit lists each folded to one line, and its
+ * heading opens it in place.
+ */
+async function openedSection(name: string): Promise<HTMLElement> {
+  const section = await screen.findByRole('region', { name });
+  const heading = within(section).getByRole('button', { name });
+  if (heading.getAttribute('aria-expanded') !== 'true') await userEvent.click(heading);
+  expect(heading.getAttribute('aria-expanded')).toBe('true');
+  return section;
+}
+
 function sectionNamed(name: string): HTMLElement {
   return screen.getByRole('region', { name });
 }
@@ -111,7 +125,7 @@ describe('a Visit Section form', () => {
     const { repos, visitId, patientId } = await setupVisit();
     const user = userEvent.setup();
     renderVisit(repos, visitId);
-    const npc = await screen.findByRole('region', { name: 'Near point of convergence' });
+    const npc = await openedSection('Near point of convergence');
     await user.type(within(npc).getByLabelText('Near point of convergence, break'), '8');
     await user.tab();
     await waitFor(() => expect(saveStateOf(npc)).toBe('Saved on this tablet'));
@@ -132,7 +146,7 @@ describe('a Visit Section form', () => {
     const { repos, visitId } = await setupVisit();
     const user = userEvent.setup();
     renderVisit(repos, visitId);
-    const npc = await screen.findByRole('region', { name: 'Near point of convergence' });
+    const npc = await openedSection('Near point of convergence');
     const input = within(npc).getByLabelText('Near point of convergence, break');
     expect(within(npc).getAllByText('cm').length).toBeGreaterThan(0);
 
@@ -161,7 +175,7 @@ describe('a Visit Section form', () => {
     const { repos, visitId } = await setupVisit();
     const user = userEvent.setup();
     renderVisit(repos, visitId);
-    const acuity = await screen.findByRole('region', { name: 'Visual acuity' });
+    const acuity = await openedSection('Visual acuity');
     await user.type(within(acuity).getByLabelText('Right eye, distance, corrected'), '6/12');
     expect(messageOf(within(acuity).getByLabelText('Right eye, distance, corrected'))).toBe(
       '0.30 logMAR (Snellen 6/12)',
@@ -177,7 +191,7 @@ describe('a Visit Section form', () => {
     const { repos, visitId } = await setupVisit();
     const user = userEvent.setup();
     renderVisit(repos, visitId);
-    const npc = await screen.findByRole('region', { name: 'Near point of convergence' });
+    const npc = await openedSection('Near point of convergence');
     const input = within(npc).getByLabelText<HTMLInputElement>('Near point of convergence, break');
     await user.type(input, '8');
     await user.tab();
@@ -211,7 +225,7 @@ describe('a Visit Section form', () => {
       conflicts: ['nearFinding'],
     });
     renderVisit(repos, visitId);
-    const cover = await screen.findByRole('region', { name: 'Cover test' });
+    const cover = await openedSection('Cover test');
     const group = within(cover).getByRole('group', { name: 'Near cover test' });
     // One mark in the Section, and it sits with the near cover test.
     const marks = [...cover.querySelectorAll('.flc-dispute')];
@@ -219,6 +233,102 @@ describe('a Visit Section form', () => {
       ['Disputed', true],
     ]);
     expect(marks[0]!.getAttribute('title')).toMatch(/a supervisor settles it in Disputes/);
+  });
+});
+
+describe('the Visit at a glance', () => {
+  /** The one line a folded Section shows. */
+  const summaryOf = (section: HTMLElement) =>
+    section.querySelector('.flc-fold-summary')?.textContent ?? null;
+
+  it('lists each Section folded to one line of what is recorded, or why it was not done', async () => {
+    const { repos, visitId, charting } = await setupVisit({ reason: 'Intermittent diplopia' });
+    await charting.saveSection(
+      visitId,
+      'coverTest',
+      { nearFinding: 'phoria', nearHorizontalDirection: 'exo', nearControl: 'good' },
+      editContext(),
+    );
+    await charting.saveSection(
+      visitId,
+      'stereoacuity',
+      { skippedReason: 'Too tired after the amblyoscope' },
+      editContext(),
+    );
+    renderVisit(repos, visitId);
+    const cover = await screen.findByRole('region', { name: 'Cover test' });
+    await waitFor(() =>
+      expect(summaryOf(cover)).toBe(
+        'Near cover test Phoria · Near horizontal direction Exo · Near recovery or control Good',
+      ),
+    );
+    const stereo = sectionNamed(collectionLabel('stereoacuity'));
+    expect(summaryOf(stereo)).toBe('Not done: Too tired after the amblyoscope');
+    expect(summaryOf(sectionNamed('Near point of convergence'))).toBe('Nothing recorded yet');
+    expect(summaryOf(sectionNamed('Visit'))).toBe('Reason: Intermittent diplopia');
+    expect(summaryOf(sectionNamed('Amblyoscope'))).toBe('Nothing recorded at the amblyoscope yet');
+    // Folded: the fields are not on screen until the Section is opened.
+    expect(
+      within(cover).getByRole('button', { name: 'Cover test' }).getAttribute('aria-expanded'),
+    ).toBe('false');
+    expect(within(cover).queryByRole('radiogroup')).toBeNull();
+    expect(within(cover).queryByRole('group', { name: 'Near cover test' })).toBeNull();
+  });
+
+  it('opens a Section in place from its heading or its jump link, which stay in view', async () => {
+    const style = document.createElement('style');
+    style.textContent = readFileSync(
+      resolve(import.meta.dirname, '../../components/charting/charting.css'),
+      'utf8',
+    );
+    document.head.append(style);
+    try {
+      const { repos, visitId } = await setupVisit();
+      const user = userEvent.setup();
+      renderVisit(repos, visitId);
+      const cover = await screen.findByRole('region', { name: 'Cover test' });
+      await user.click(within(cover).getByRole('button', { name: 'Cover test' }));
+      expect(within(cover).getByRole('group', { name: 'Near cover test' })).not.toBeNull();
+      expect(summaryOf(cover)).toBeNull();
+      await user.click(within(cover).getByRole('button', { name: 'Cover test' }));
+      expect(within(cover).queryByRole('group', { name: 'Near cover test' })).toBeNull();
+
+      const jumps = screen.getByRole('navigation', { name: 'Sections of this visit' });
+      expect(getComputedStyle(jumps).position).toBe('sticky');
+      await user.click(within(jumps).getByRole('button', { name: 'Near point of convergence' }));
+      const npc = sectionNamed('Near point of convergence');
+      expect(within(npc).getByLabelText('Near point of convergence, break')).not.toBeNull();
+      expect(
+        within(npc)
+          .getByRole('button', { name: 'Near point of convergence' })
+          .getAttribute('aria-expanded'),
+      ).toBe('true');
+
+      await user.click(within(jumps).getByRole('button', { name: 'Open all Sections' }));
+      expect(
+        screen
+          .queryAllByRole('button', { expanded: false })
+          .filter((b) => b.classList.contains('flc-fold')),
+      ).toEqual([]);
+      await user.click(within(jumps).getByRole('button', { name: 'Fold all Sections' }));
+      expect(summaryOf(npc)).toBe('Nothing recorded yet');
+    } finally {
+      style.remove();
+    }
+  });
+
+  it('keeps a Section open while it holds a refused value', async () => {
+    const { repos, visitId } = await setupVisit();
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    const npc = await openedSection('Near point of convergence');
+    const input = within(npc).getByLabelText('Near point of convergence, break');
+    await user.type(input, 'abc');
+    await waitFor(() => expect(messageOf(input)).toMatch(/must be a number/));
+    const heading = within(npc).getByRole('button', { name: 'Near point of convergence' });
+    await user.click(heading);
+    expect(heading.getAttribute('aria-expanded')).toBe('true');
+    expect(within(npc).getByLabelText('Near point of convergence, break')).toBe(input);
   });
 });
 
@@ -558,6 +668,7 @@ describe('letters and photos on the Visit', () => {
       within(jumps)
         .getAllByRole('button')
         .map((b) => b.textContent)
+        .filter((label) => !/ all Sections$/.test(label ?? ''))
         .slice(-4),
     ).toEqual(['Sign', 'Hospital record', 'Letters', 'Photos and files']);
   });

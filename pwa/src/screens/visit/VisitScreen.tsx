@@ -28,6 +28,7 @@ import { AcuityEntries } from '../../components/charting/AcuityEntries';
 import { AmblyoscopeSummary } from '../../components/charting/AmblyoscopeSummary';
 import { InterpretationSummary } from '../../components/charting/InterpretationSummary';
 import { SectionForm } from '../../components/charting/SectionForm';
+import { SectionPanel } from '../../components/charting/SectionPanel';
 import { SignPanel } from '../../components/charting/SignPanel';
 import {
   DisputeMark,
@@ -83,7 +84,17 @@ const JUMPS: readonly [string, string][] = [
   ['section-attachments', 'Photos and files'],
 ];
 
-function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean }) {
+type FoldingProps = { open: boolean; onToggle: (open: boolean) => void };
+
+function VisitDetails({
+  bundle,
+  locked,
+  folding,
+}: {
+  bundle: VisitBundle;
+  locked: boolean;
+  folding: FoldingProps;
+}) {
   const charting = useCharting();
   const editContext = useEditContext();
   const { visit } = bundle;
@@ -99,13 +110,16 @@ function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean
     }
   };
   return (
-    <section className="flc-panel" aria-labelledby="details-title" id="section-details">
-      <header>
-        <h2 id="details-title">Visit</h2>
+    <SectionPanel
+      id="section-details"
+      title="Visit"
+      aside={
         <span className="flc-saved" role="status" aria-live="polite">
           {message}
         </span>
-      </header>
+      }
+      folding={{ ...folding, summary: detailsSummary(visit.fields) }}
+    >
       <div className="flc-grid">
         <div className="flc-field">
           <label htmlFor="visit-reason">
@@ -135,9 +149,30 @@ function VisitDetails({ bundle, locked }: { bundle: VisitBundle; locked: boolean
           <DisputeMark field="needsCountersign" conflicts={visit.conflicts} />
         </div>
       </div>
-    </section>
+    </SectionPanel>
   );
 }
+
+function detailsSummary(fields: VisitBundle['visit']['fields']): string {
+  const countersign =
+    fields.needsCountersign === true
+      ? 'needs countersigning'
+      : fields.needsCountersign === false
+        ? 'no countersigning needed'
+        : null;
+  return (
+    [fields.reason ? `Reason: ${fields.reason}` : 'No reason recorded', countersign]
+      .filter(Boolean)
+      .join(' · ') || 'Nothing recorded yet'
+  );
+}
+
+/** The panels that fold to one line, in the order of the jump links. */
+const FOLDING_IDS: readonly string[] = [
+  'section-details',
+  'section-amblyoscope',
+  ...SECTIONS.map((s) => `section-${s.collection}`),
+];
 
 function VisitBody({ bundle }: { bundle: VisitBundle }) {
   const { visit, patient, sections, addenda } = bundle;
@@ -184,9 +219,34 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
     : states.some((s) => s === 'waiting' || s === 'saving')
       ? 'Saving the last changes…'
       : null;
+  // Every Section starts folded to its one-line summary, so the visit reads at a glance; a
+  // heading or a jump link opens one in place to edit.
+  const [openIds, setOpenIds] = useState<ReadonlySet<string>>(() => new Set());
+  const folding = useCallback(
+    (id: string): FoldingProps => ({
+      open: openIds.has(id),
+      onToggle: (open) =>
+        setOpenIds((current) => {
+          const next = new Set(current);
+          if (open) next.add(id);
+          else next.delete(id);
+          return next;
+        }),
+    }),
+    [openIds],
+  );
   const jump = useCallback((id: string) => {
-    document.getElementById(id)?.scrollIntoView({ behavior: 'smooth', block: 'start' });
+    if (FOLDING_IDS.includes(id)) setOpenIds((current) => new Set(current).add(id));
+    // After the opened Section is drawn.
+    requestAnimationFrame(() => {
+      const target = document.getElementById(id);
+      // (jsdom, where the screen's tests run, draws nothing and has no scrolling.)
+      if (typeof target?.scrollIntoView === 'function') {
+        target.scrollIntoView({ behavior: 'smooth', block: 'start' });
+      }
+    });
   }, []);
+  const allOpen = FOLDING_IDS.every((id) => openIds.has(id));
 
   return (
     <main className="flc-page">
@@ -216,20 +276,29 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
             Addendum below.
           </p>
         ) : null}
-        <nav aria-label="Sections of this visit" className="flc-nav">
-          {JUMPS.map(([id, label]) => (
-            <button key={id} type="button" className="flc-button" onClick={() => jump(id)}>
-              {label}
-            </button>
-          ))}
-        </nav>
       </section>
-      <VisitDetails bundle={bundle} locked={locked} />
+      {/* Kept in view while the Sections scroll beneath it. */}
+      <nav aria-label="Sections of this visit" className="flc-nav flc-nav--sticky">
+        {JUMPS.map(([id, label]) => (
+          <button key={id} type="button" className="flc-button" onClick={() => jump(id)}>
+            {label}
+          </button>
+        ))}
+        <button
+          type="button"
+          className="flc-button flc-button--quiet"
+          onClick={() => setOpenIds(allOpen ? new Set() : new Set(FOLDING_IDS))}
+        >
+          {allOpen ? 'Fold all Sections' : 'Open all Sections'}
+        </button>
+      </nav>
+      <VisitDetails bundle={bundle} locked={locked} folding={folding('section-details')} />
       <AmblyoscopeSummary
         visitId={visit.id}
         sections={sections}
         locked={locked}
         onStatus={reporters.amblyoscope}
+        folding={folding('section-amblyoscope')}
       />
       {SECTIONS.map((spec) => {
         const record = sections[spec.collection] as
@@ -243,6 +312,7 @@ function VisitBody({ bundle }: { bundle: VisitBundle }) {
             record={record}
             locked={locked}
             onStatus={reporters[spec.collection]}
+            folding={folding(`section-${spec.collection}`)}
             {...(spec.fields ? { fields: spec.fields } : {})}
           >
             {spec.collection === 'visualAcuity'
