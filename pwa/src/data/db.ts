@@ -4,6 +4,10 @@
 import Dexie, { type EntityTable, type Transaction } from 'dexie';
 import type { CollectionName } from '@fuselight/shared';
 import { PatientDirectory } from './patient-directory';
+import { tabletVault, type DataKeyVault } from './crypto/data-key-vault';
+import type { KeySlot } from './crypto/key-slots';
+import { sealingMiddleware } from './crypto/sealing-middleware';
+import type { TableSealing } from './crypto/value-codec';
 
 /** Name of the tombstone pseudo-field in `pendingFields` and `serverFields`. */
 export const TOMBSTONE = 'deleted';
@@ -66,17 +70,39 @@ export interface MetaEntry {
   value: unknown;
 }
 
+/**
+ * What stays in the clear of each sealed table: the fields its indexes read, never a name, a
+ * date of birth, a clinic number or a finding (docs/threat-model.md). `meta` holds counters,
+ * clocks and cursors only, and `keySlots` holds wrapped keys.
+ */
+export const SEALED_TABLES: Readonly<Record<string, TableSealing>> = {
+  records: { plain: ['collection', 'id', 'version', 'fields.visitId', 'fields.patientId'] },
+  outbox: {
+    plain: ['changeId', 'seq', 'collection', 'recordId', 'state', 'authorId', 'createdAt'],
+  },
+};
+
 export class FuselightDb extends Dexie {
   records!: EntityTable<StoredRecord, 'id'>;
   outbox!: EntityTable<OutboxEntry, 'changeId'>;
   meta!: EntityTable<MetaEntry, 'key'>;
+  /** The tablet's data key wrapped once per person (and once for the server's share). */
+  keySlots!: EntityTable<KeySlot, 'id'>;
   /** The patient search, held in memory and kept current by a middleware on this connection. */
   readonly patientDirectory: PatientDirectory;
 
-  constructor(name = 'fuselight') {
+  constructor(
+    name = 'fuselight',
+    readonly vault: DataKeyVault = tabletVault,
+  ) {
     super(name);
     this.patientDirectory = new PatientDirectory(this);
     this.use(this.patientDirectory.middleware());
+    this.use(sealingMiddleware(vault, SEALED_TABLES));
+    // A database with key slots is protected: nothing may be written to it in the clear.
+    this.on('ready', async () => {
+      if ((await this.keySlots.count()) > 0) vault.markProtected();
+    });
     this.on('close', () => this.patientDirectory.reset());
     this.version(1).stores({
       records: '[collection+id], collection, id, version, updatedAt',
@@ -105,6 +131,11 @@ export class FuselightDb extends Dexie {
     // Version 4 drops the persisted search rows: the patient search is answered from memory
     // (patient-directory.ts), built from the patient records themselves. Nothing else changes.
     this.version(4).stores({ patientSearch: null });
+    // Version 5 adds the key slots of the protected tablet. Nothing is rewritten on upgrade
+    // (there is no key yet): the first PIN set afterwards makes the data key and seals every
+    // record and Outbox entry in place (crypto/seal-in-place.ts); until then values stay readable
+    // as they are.
+    this.version(5).stores({ keySlots: 'id, userId' });
   }
 }
 
@@ -177,7 +208,7 @@ export function newStoredRecord(
   };
 }
 
-export const DEXIE_SCHEMA_VERSION = 4;
+export const DEXIE_SCHEMA_VERSION = 5;
 
 let defaultDb: FuselightDb | null = null;
 
