@@ -60,7 +60,7 @@ export async function signInClinician(page: Page, clinician: Pick<Person, 'email
 
 /** On the PIN offer, sets the PIN and waits for the clinician's Today. */
 export async function setPin(page: Page, pin: string) {
-  await page.getByLabel('New PIN (4 to 8 digits)').fill(pin);
+  await page.getByLabel('New PIN (at least 6 digits)').fill(pin);
   await page.getByLabel('The same PIN again').fill(pin);
   await page.getByRole('button', { name: 'Save PIN' }).click();
   await page.getByRole('heading', { name: 'Today' }).first().waitFor();

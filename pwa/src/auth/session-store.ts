@@ -338,6 +338,9 @@ export class SessionStore {
     await this.pinLock.setPin(person.userId, pin);
     this.state.pinOfferFor = null;
     this.publish();
+    // The first PIN made the data key: keep it under the server's share too, so that an online
+    // sign-in can always open it (another person, or too many wrong PINs).
+    await this.openKeyAfterSignIn(await this.tokens.tokenFor(person.userId));
   }
 
   async unlock(userId: string, pin: string): Promise<UnlockResult> {
@@ -348,6 +351,12 @@ export class SessionStore {
     state.activeUserId = userId;
     this.publish();
     this.refreshSites().catch(() => undefined);
+    // Online, a tablet whose key has no server slot yet (sealed before the server gave shares)
+    // gets one; offline this waits for the next unlock.
+    this.tokens
+      .tokenFor(userId)
+      .then((token) => this.openKeyAfterSignIn(token))
+      .catch(() => undefined);
     return result;
   }
 

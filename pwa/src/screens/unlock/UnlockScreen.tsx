@@ -8,6 +8,7 @@ import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Notice, TextField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { PIN_RULE, pinSchema } from '../../auth/pin-hash';
 
 function whyNoPin(person: KnownPerson): string {
   if (person.signInRequired) return person.signInRequired.reason;
@@ -29,8 +30,8 @@ export default function UnlockScreen() {
   const submit = async (event: FormEvent) => {
     event.preventDefault();
     if (!person) return;
-    if (!/^\d{4,8}$/.test(pin)) {
-      setMessage('A PIN is 4 to 8 digits');
+    if (!pinSchema.safeParse(pin).success) {
+      setMessage(PIN_RULE);
       return;
     }
     setBusy(true);
