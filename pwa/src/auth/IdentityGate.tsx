@@ -17,12 +17,17 @@ export function IdentityGate({
   loading: ReactNode;
   children: ReactNode;
 }) {
-  const { loaded, erasure } = useAuthState();
+  const { loaded, erasure, activeUser } = useAuthState();
   const queryClient = useQueryClient();
   useEffect(() => {
     // Nothing read from the server may outlive an erasure in memory either.
     if (erasure) queryClient.clear();
   }, [erasure, queryClient]);
+  const someoneActive = activeUser !== null;
+  useEffect(() => {
+    // Locked, or handed to someone else: no patient data stays in the screens' cache.
+    if (!someoneActive) queryClient.clear();
+  }, [someoneActive, queryClient]);
   if (!loaded) return <>{loading}</>;
   if (erasure) return <>{erased(erasure)}</>;
   return <>{children}</>;

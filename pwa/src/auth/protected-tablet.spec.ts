@@ -125,6 +125,21 @@ describe('a protected tablet', () => {
     expect((await records.list('patient')).map((p) => p.fields.familyName)).toEqual(['Okafor']);
   });
 
+  it('locks when idle: the key and the patient directory leave memory, and the PIN unlocks again', async () => {
+    const { store, server } = setUp();
+    await signedInWithPin(store, server);
+    await records.create('patient', patientFields(), ctx(AMARA.id));
+    expect((await records.searchPatients('okafor')).length).toBe(1);
+    expect(store.getSnapshot().policy.idleLockMinutes).toBe(5);
+    store.lock();
+    expect(store.getSnapshot().activeUser).toBeNull();
+    expect(tabletVault.unlocked).toBe(false);
+    expect(getDefaultDb().patientDirectory.isReady).toBe(false);
+    await expect(records.searchPatients('okafor')).rejects.toBeInstanceOf(TabletLockedError);
+    expect(await store.unlock(AMARA.id, '482913')).toEqual({ ok: true });
+    expect((await records.searchPatients('okafor')).length).toBe(1);
+  });
+
   it('destroys every key slot before deleting the data when the clinic revokes it', async () => {
     const seen: number[] = [];
     const { store, server } = setUp({

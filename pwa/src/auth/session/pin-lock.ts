@@ -226,6 +226,13 @@ export class PinLock {
     if (policy.maxPinAttempts !== undefined && policy.maxPinAttempts >= 1) {
       next.maxPinAttempts = Math.floor(policy.maxPinAttempts);
     }
+    if (
+      policy.idleLockMinutes !== undefined &&
+      policy.idleLockMinutes >= 1 &&
+      policy.idleLockMinutes <= 60
+    ) {
+      next.idleLockMinutes = policy.idleLockMinutes;
+    }
     this.current = next;
     await this.options.db().settings.put({ key: POLICY_KEY, value: next });
   }
