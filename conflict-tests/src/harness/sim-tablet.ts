@@ -1,6 +1,7 @@
 // One simulated tablet: its own Dexie database on fake-indexeddb, its own controllable clock, the
 // real PWA repositories and sync engine, a faulty network to the real server, and a real SyncAuth.
 import type { CollectionName, PushResult, RecordFieldsInput } from '@fuselight/shared';
+import type { DataKeyVault } from '@pwa/data/crypto/data-key-vault';
 import { FuselightDb, type OutboxEntry, type StoredRecord } from '@pwa/data/db';
 import { OutboxRepository } from '@pwa/data/outbox-repository';
 import { RecordsRepository, type EditContext } from '@pwa/data/records-repository';
@@ -32,12 +33,21 @@ export class SimTablet {
     private readonly clinic: Clinic,
     readonly device: TestDevice,
     people: TestUser[],
-    private readonly options: { schemaVersion?: number; pageLimit?: number; dbName?: string } = {},
+    private readonly options: {
+      schemaVersion?: number;
+      pageLimit?: number;
+      dbName?: string;
+      /** A protected tablet's vault (holding its data key); default: the shared one. */
+      vault?: DataKeyVault;
+    } = {},
   ) {
     tabletCount += 1;
     this.people = people;
     this.user = people[0] as TestUser;
-    this.db = new FuselightDb(options.dbName ?? `tablet-${name}-${process.pid}-${tabletCount}`);
+    this.db = new FuselightDb(
+      options.dbName ?? `tablet-${name}-${process.pid}-${tabletCount}`,
+      options.vault,
+    );
     this.records = new RecordsRepository(this.db);
     this.outbox = new OutboxRepository(this.db);
     this.auth = new ServerSyncAuth(clinic.baseUrl, device, new Map(people.map((p) => [p.id, p])));
@@ -66,7 +76,7 @@ export class SimTablet {
     clinic: Clinic,
     name: string,
     people: TestUser[],
-    options: { schemaVersion?: number; pageLimit?: number } = {},
+    options: { schemaVersion?: number; pageLimit?: number; vault?: DataKeyVault } = {},
   ): Promise<SimTablet> {
     const device = await clinic.device();
     return new SimTablet(name, clinic, device, people, options);
