@@ -56,6 +56,8 @@ export async function createApp(
           'img-src': ["'self'", 'data:', 'blob:'],
           'media-src': ["'self'", 'blob:'],
           'worker-src': ["'self'", 'blob:'],
+          // The tablet derives key-slot keys with argon2id in WebAssembly (hash-wasm).
+          'script-src': ["'self'", "'wasm-unsafe-eval'"],
         },
       },
       crossOriginEmbedderPolicy: false,

@@ -266,15 +266,13 @@ export class SessionStore {
   }
 
   /**
-   * After an online sign-in on an enrolled tablet: the server's share opens the tablet's data key
-   * when it is locked (a person new to this tablet, or one who typed too many wrong PINs), and is
-   * kept as a slot of its own when unlocked. Offline, or on a server without the share, nothing
-   * changes: the PIN of someone who has one still unlocks.
+   * After an online sign-in on an enrolled tablet: the server's share makes the tablet's data
+   * key (first sign-in), opens it when locked (a person new to this tablet, or one who typed too
+   * many wrong PINs), and is kept as a slot of its own when unlocked. Offline, or on a server
+   * without the share, nothing changes: the PIN of someone who has one still unlocks.
    */
   private async openKeyAfterSignIn(token: string | null): Promise<void> {
     if (!this.state.tablet || !token) return;
-    const vault = this.keyRing.vault;
-    if (!vault.isProtected && !vault.unlocked) return;
     try {
       await this.keyRing.useServerShare(await this.api.keyShare(token));
     } catch (error) {
@@ -338,8 +336,8 @@ export class SessionStore {
     await this.pinLock.setPin(person.userId, pin);
     this.state.pinOfferFor = null;
     this.publish();
-    // The first PIN made the data key: keep it under the server's share too, so that an online
-    // sign-in can always open it (another person, or too many wrong PINs).
+    // Keep the key under the server's share too (if the PIN made it), so that an online sign-in
+    // can always open it (another person, or too many wrong PINs).
     await this.openKeyAfterSignIn(await this.tokens.tokenFor(person.userId));
   }
 

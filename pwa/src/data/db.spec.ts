@@ -313,7 +313,12 @@ describe('the tablet database', () => {
     await db.open();
     expect(db.verno).toBe(DEXIE_SCHEMA_VERSION);
     expect(db.tables.map((t) => t.name).sort()).toEqual(['keySlots', 'meta', 'outbox', 'records']);
-    expect([...db.backendDB().objectStoreNames].sort()).toEqual(['keySlots', 'meta', 'outbox', 'records']);
+    expect([...db.backendDB().objectStoreNames].sort()).toEqual([
+      'keySlots',
+      'meta',
+      'outbox',
+      'records',
+    ]);
     // Every record, Outbox entry and meta row reads back exactly as version 3 held it.
     expect(await db.records.toArray()).toEqual(
       [...rows].sort((a, b) =>

@@ -132,7 +132,7 @@ export class FuselightDb extends Dexie {
     // (patient-directory.ts), built from the patient records themselves. Nothing else changes.
     this.version(4).stores({ patientSearch: null });
     // Version 5 adds the key slots of the protected tablet. Nothing is rewritten on upgrade
-    // (there is no key yet): the first PIN set afterwards makes the data key and seals every
+    // (there is no key yet): the first online sign-in or PIN afterwards makes the data key and seals every
     // record and Outbox entry in place (crypto/seal-in-place.ts); until then values stay readable
     // as they are.
     this.version(5).stores({ keySlots: 'id, userId' });

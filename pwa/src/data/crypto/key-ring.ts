@@ -1,5 +1,6 @@
-// The tablet's key slots and its data key: makes the key when the first person sets a PIN (and
-// then seals what the tablet already holds, in place), adds a slot per person, opens a slot with
+// The tablet's key slots and its data key: makes the key at the first online sign-in on an
+// enrolled tablet (under the server's share) or the first PIN, whichever comes first, and then
+// seals what the tablet already holds, in place; adds a slot per person, opens a slot with
 // a PIN, locks (drops the key and every plain value held in memory) and crypto-erases (destroys
 // every slot first, so the data is unreadable at once, before it is deleted).
 // docs/threat-model.md says what this protects and what it does not.
@@ -114,11 +115,20 @@ export class KeyRing {
 
   /**
    * After an online sign-in: keeps a slot under the server's share for this tablet (made when
-   * unlocked), or opens it when locked. False when there is no such slot to open.
+   * unlocked), or opens it when locked. A tablet not protected yet is protected here: the data
+   * key is made before anything is pulled, so no patient value is ever written in the clear
+   * (the storage engine's log would keep it). False when there is no slot to open.
    */
   async useServerShare(share: Uint8Array): Promise<boolean> {
     const { vault } = this.options;
     const db = this.options.db();
+    if (!vault.dataKey && (await db.keySlots.count()) === 0) {
+      const key = await newDataKey();
+      await db.keySlots.put(await makeServerSlot(key, share, this.now()));
+      vault.hold(key);
+      await this.finishSealing();
+      return true;
+    }
     const slot = await db.keySlots.get('server');
     if (vault.dataKey) {
       if (!slot) await db.keySlots.put(await makeServerSlot(vault.dataKey, share, this.now()));
