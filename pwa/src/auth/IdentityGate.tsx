@@ -39,7 +39,9 @@ export function SignedOutLanding() {
   const location = useLocation();
   const target = people.some((p) => p.canUnlockWithPin) ? '/unlock' : '/signin';
   if (location.pathname === target) return null;
-  return <Navigate to={{ pathname: target, search: location.search }} replace />;
+  // The unlock screen goes back to the screen that was open (locked there, or reloaded).
+  const from = `${location.pathname}${location.search}`;
+  return <Navigate to={{ pathname: target, search: location.search }} state={{ from }} replace />;
 }
 
 /** Renders `children` only for roles that see `area`; others go to their own home. */

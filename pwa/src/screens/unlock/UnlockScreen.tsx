@@ -1,7 +1,7 @@
 // The person switcher on a shared tablet: everyone who signed in here, unlocked with their PIN
 // (offline too, within the clinic's window) or by signing in again.
 import { useState, type FormEvent } from 'react';
-import { Link, useNavigate } from 'react-router-dom';
+import { Link, useLocation, useNavigate } from 'react-router-dom';
 import type { KnownPerson } from '../../auth/session-store';
 import { useAuthState } from '../../auth/SessionProvider';
 import { siteLabel } from '../../auth/site-names';
@@ -21,6 +21,8 @@ export default function UnlockScreen() {
   const { people, loaded, sites } = useAuthState();
   const actions = useAuthActions();
   const navigate = useNavigate();
+  // Locked while on a screen (idle, or a reload): unlocking goes back to it.
+  const from = (useLocation().state as { from?: string } | null)?.from;
   const [chosen, setChosen] = useState<string | null>(null);
   const [pin, setPin] = useState('');
   const [message, setMessage] = useState<string | null>(null);
@@ -38,7 +40,10 @@ export default function UnlockScreen() {
     const result = await actions.unlock(person.user.id, pin);
     setBusy(false);
     setPin('');
-    if (result.ok) navigate('/', { replace: true });
+    if (result.ok)
+      navigate(from?.startsWith('/') && !from.startsWith('/unlock') ? from : '/', {
+        replace: true,
+      });
     else setMessage(result.message);
   };
 
