@@ -238,3 +238,30 @@ export async function waitForHttp(url, timeoutMs = 30_000) {
   }
   throw new Error(`${url} did not answer in time (${lastError})`);
 }
+
+/** A PostgreSQL client program (pg_dump, pg_restore) of the newest installed major version. */
+export function pgProgram(name) {
+  const bin = findPostgresBin();
+  if (bin && existsSync(join(bin, name))) return join(bin, name);
+  return name;
+}
+
+/** Is the private cluster in `dir` running? */
+export function clusterRunning(dir) {
+  const data = join(dir, 'data');
+  if (!existsSync(join(data, 'PG_VERSION'))) return false;
+  return spawnSync(...pgCommand('pg_ctl', ['-D', data, 'status'])).status === 0;
+}
+
+/** The database `npm start` runs on: DATABASE_URL, or the private cluster's "fuselight". */
+export function productDatabase() {
+  if (process.env.DATABASE_URL) return { url: process.env.DATABASE_URL, local: false };
+  const port = Number(process.env.FUSELIGHT_PG_PORT ?? 54329);
+  return {
+    url: `postgres://postgres@127.0.0.1:${port}/fuselight`,
+    adminUrl: `postgres://postgres@127.0.0.1:${port}/postgres`,
+    port,
+    dir: clusterDir('pg'),
+    local: true,
+  };
+}

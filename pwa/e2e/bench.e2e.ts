@@ -75,6 +75,8 @@ async function goStep(page: Page, title: string) {
 }
 
 async function typeAngle(page: Page, label: string, text: string) {
+  // A step's readings share one stepper: choose the reading first.
+  await page.getByRole('button', { name: new RegExp(`^${label}: `) }).click();
   const box = page.getByRole('textbox', { name: `Type ${label}`, exact: true });
   await box.fill(text);
   await box.press('Enter');
@@ -278,7 +280,7 @@ describe('the Bench on an enrolled tablet', () => {
       .getByRole('region', { name: /^Sync status/ })
       .getByText('Outbox empty')
       .waitFor({ timeout: 45_000 });
-  });
+  }, 180_000);
 
   it('keeps both tablets’ edits to different fields of the same visit', async () => {
     expect(visitId).not.toBe('');

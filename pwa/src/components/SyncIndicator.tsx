@@ -1,11 +1,14 @@
 // Always visible: whether the tablet is online, what waits in the Outbox, when it last synced,
-// a long pull's progress and any problem in words, with a "Sync now" button.
+// a long pull's progress and any problem in words, with a "Sync now" button; and that an update
+// of the app is available when it holds records from a newer build (sync/newer-records.ts).
 import { IonIcon, IonSpinner } from '@ionic/react';
 import { cloudDoneOutline, cloudOfflineOutline, syncOutline, warningOutline } from 'ionicons/icons';
 import { useEffect, useState } from 'react';
 import {
   describeFullRepull,
+  describeNewerRecords,
   requestSyncNow,
+  UPDATE_AVAILABLE_SHORT,
   useSyncStatus,
   type SyncEngine,
   type SyncStatus,
@@ -75,6 +78,7 @@ export function SyncIndicator(props: {
   const busy = status.phase === 'pushing' || status.phase === 'pulling';
   const progress = describeProgress(status);
   const repull = describeRepullForBar(status, nowMs, props.compact === true);
+  const newer = describeNewerRecords(status.newerRecords);
   const syncNow = () => {
     if (props.onSyncNow) void props.onSyncNow();
     else if (props.engine) void props.engine.syncNow();
@@ -82,7 +86,7 @@ export function SyncIndicator(props: {
   };
   return (
     <section
-      aria-label={`Sync status: ${status.online ? 'online' : 'offline'}, ${describeOutbox(status)}, ${describeLastSynced(status.lastSyncedAt, nowMs)}${status.error ? `. ${status.error}` : ''}`}
+      aria-label={`Sync status: ${status.online ? 'online' : 'offline'}, ${describeOutbox(status)}, ${describeLastSynced(status.lastSyncedAt, nowMs)}${status.error ? `. ${status.error}` : ''}${newer ? `. ${newer}` : ''}`}
       className="fl-sync-indicator"
       style={{
         display: 'flex',
@@ -115,6 +119,11 @@ export function SyncIndicator(props: {
         )}
         {progress ? <span>· {progress}</span> : null}
         {repull ? <span className="fl-sync-repull">· {repull}</span> : null}
+        {newer ? (
+          <span className="fl-sync-update" title={newer}>
+            · {UPDATE_AVAILABLE_SHORT}
+          </span>
+        ) : null}
       </span>
       {props.compact ? (
         status.error ? (

@@ -12,7 +12,13 @@ import type { TableSealing } from './crypto/value-codec';
 /** Name of the tombstone pseudo-field in `pendingFields` and `serverFields`. */
 export const TOMBSTONE = 'deleted';
 
-/** A synced record as the tablet holds it: the server's envelope plus local bookkeeping. */
+/**
+ * A synced record as the tablet holds it: the server's envelope plus local bookkeeping. A record
+ * made by a newer build may be of a collection, or carry fields, that this build does not know:
+ * it is stored as it came (docs/sync-protocol.md, Records a device does not know), so
+ * `collection` is then not one of this build's names; screens read records by collection and
+ * never meet it.
+ */
 export interface StoredRecord {
   collection: CollectionName;
   id: string;
@@ -82,6 +88,62 @@ export const SEALED_TABLES: Readonly<Record<string, TableSealing>> = {
   },
 };
 
+/**
+ * One Dexie schema version as it shipped: its store declarations (Dexie's diff from the version
+ * before) and the upgrade that moves the data of the version before it. Every version ever
+ * shipped stays in DEXIE_SCHEMA_HISTORY: a tablet may open this build with any of them, and
+ * Dexie needs the chain to upgrade it. The upgrade fixtures (db-upgrade.fixtures.ts) hold one
+ * database of each version and check that every row survives to the current one.
+ */
+export interface DexieSchemaDeclaration {
+  version: number;
+  stores: Record<string, string | null>;
+  upgrade?: (tx: Transaction) => Promise<void>;
+}
+
+export const DEXIE_SCHEMA_HISTORY: readonly DexieSchemaDeclaration[] = [
+  {
+    version: 1,
+    stores: {
+      records: '[collection+id], collection, id, version, updatedAt',
+      outbox: 'changeId, [collection+recordId], state, authorId, createdAt',
+      meta: 'key',
+    },
+  },
+  {
+    version: 2,
+    stores: {
+      records:
+        '[collection+id], collection, id, version, updatedAt, [collection+fields.visitId], [collection+fields.patientId]',
+      outbox: 'changeId, &seq, [collection+recordId], state, authorId, createdAt',
+      meta: 'key',
+      patientSearch: 'id, *terms, siteId',
+    },
+    upgrade: (tx) => upgradeToVersion2(tx),
+  },
+  // Version 3 keeps only the indexes something reads: a first sync writes every record once
+  // per index, and `id`, `version`, `updatedAt` and the search rows' `siteId` were never
+  // queried, while `collection` is served by the primary key's own range. Dropping an index
+  // moves no data: every record, Outbox entry and search row stays as it is.
+  {
+    version: 3,
+    stores: {
+      records: '[collection+id], [collection+fields.visitId], [collection+fields.patientId]',
+      outbox: 'changeId, &seq, [collection+recordId], state, authorId, createdAt',
+      meta: 'key',
+      patientSearch: 'id, *terms',
+    },
+  },
+  // Version 4 drops the persisted search rows: the patient search is answered from memory
+  // (patient-directory.ts), built from the patient records themselves. Nothing else changes.
+  { version: 4, stores: { patientSearch: null } },
+  // Version 5 adds the key slots of the protected tablet. Nothing is rewritten on upgrade
+  // (there is no key yet): the first online sign-in or PIN afterwards makes the data key and
+  // seals every record and Outbox entry in place (crypto/seal-in-place.ts); until then values
+  // stay readable as they are.
+  { version: 5, stores: { keySlots: 'id, userId' } },
+];
+
 export class FuselightDb extends Dexie {
   records!: EntityTable<StoredRecord, 'id'>;
   outbox!: EntityTable<OutboxEntry, 'changeId'>;
@@ -104,38 +166,10 @@ export class FuselightDb extends Dexie {
       if ((await this.keySlots.count()) > 0) vault.markProtected();
     });
     this.on('close', () => this.patientDirectory.reset());
-    this.version(1).stores({
-      records: '[collection+id], collection, id, version, updatedAt',
-      outbox: 'changeId, [collection+recordId], state, authorId, createdAt',
-      meta: 'key',
-    });
-    this.version(2)
-      .stores({
-        records:
-          '[collection+id], collection, id, version, updatedAt, [collection+fields.visitId], [collection+fields.patientId]',
-        outbox: 'changeId, &seq, [collection+recordId], state, authorId, createdAt',
-        meta: 'key',
-        patientSearch: 'id, *terms, siteId',
-      })
-      .upgrade(upgradeToVersion2);
-    // Version 3 keeps only the indexes something reads: a first sync writes every record once
-    // per index, and `id`, `version`, `updatedAt` and the search rows' `siteId` were never
-    // queried, while `collection` is served by the primary key's own range. Dropping an index
-    // moves no data: every record, Outbox entry and search row stays as it is.
-    this.version(3).stores({
-      records: '[collection+id], [collection+fields.visitId], [collection+fields.patientId]',
-      outbox: 'changeId, &seq, [collection+recordId], state, authorId, createdAt',
-      meta: 'key',
-      patientSearch: 'id, *terms',
-    });
-    // Version 4 drops the persisted search rows: the patient search is answered from memory
-    // (patient-directory.ts), built from the patient records themselves. Nothing else changes.
-    this.version(4).stores({ patientSearch: null });
-    // Version 5 adds the key slots of the protected tablet. Nothing is rewritten on upgrade
-    // (there is no key yet): the first online sign-in or PIN afterwards makes the data key and seals every
-    // record and Outbox entry in place (crypto/seal-in-place.ts); until then values stay readable
-    // as they are.
-    this.version(5).stores({ keySlots: 'id, userId' });
+    for (const declaration of DEXIE_SCHEMA_HISTORY) {
+      const version = this.version(declaration.version).stores(declaration.stores);
+      if (declaration.upgrade) version.upgrade(declaration.upgrade);
+    }
   }
 }
 
@@ -208,7 +242,9 @@ export function newStoredRecord(
   };
 }
 
-export const DEXIE_SCHEMA_VERSION = 5;
+export const DEXIE_SCHEMA_VERSION = Math.max(
+  ...DEXIE_SCHEMA_HISTORY.map((declaration) => declaration.version),
+);
 
 let defaultDb: FuselightDb | null = null;
 

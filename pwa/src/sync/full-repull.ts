@@ -1,6 +1,6 @@
 // A full re-pull: the server asked this tablet to pull again from the start (its cursor is behind
-// the tombstone horizon, or was handed out before the server's cursor epoch, when pull pages
-// could skip records). Nothing local is dropped: the Outbox and every pending edit stay, and
+// the tombstone horizon, was handed out before the server's cursor epoch, when pull pages could
+// skip records, or is above what a restore of the server from a backup kept). Nothing local is dropped: the Outbox and every pending edit stay, and
 // what arrives merges as in any pull (local-apply.ts). The state is kept in `meta` so a re-pull
 // cut short by a reload or a lost network still shows as under way, and its end is recorded.
 import { PULL_RESET_REASONS, type PullResetReason } from '@fuselight/shared';
@@ -101,7 +101,9 @@ export function describeFullRepull(
       ? 'the clinic server asked this tablet to fetch everything again to make sure nothing was missed'
       : repull.reason === 'horizon'
         ? 'this tablet was offline longer than the clinic server keeps deletions'
-        : 'the clinic server asked this tablet to start over';
+        : repull.reason === 'restored'
+          ? 'the clinic server was restored from a backup'
+          : 'the clinic server asked this tablet to start over';
   const count = `${repull.received.toLocaleString()} record${repull.received === 1 ? '' : 's'}`;
   if (repull.finishedAt === null) {
     return `Full re-sync under way (${why}): ${count} received so far. Your edits and Outbox are kept.`;

@@ -21,3 +21,8 @@ export {
 } from './sync-runtime';
 export { useSyncStatus } from './useSyncStatus';
 export { describeFullRepull, type FullRepull, type FullRepullReason } from './full-repull';
+export {
+  describeNewerRecords,
+  UPDATE_AVAILABLE_SHORT,
+  type NewerRecordsNote,
+} from './newer-records';

@@ -8,13 +8,16 @@
 //   pending marks that no later entry still holds; rejected keeps the entry, marked, with its
 //   error, for its author to fix or discard;
 // - the pull cursor advances in the same transaction as the last records of its page, so a page
-//   is either stored with its cursor or pulled again (guarantee 4 on the device).
+//   is either stored with its cursor or pulled again (guarantee 4 on the device);
+// - a record of a collection or with fields this build does not know is stored as it came, and
+//   noted (newer-records.ts) in the same transaction as the cursor.
 // Every Outbox transition and pending mark is written by data/outbox-transitions.ts (the push
 // result, claiming for sending, the merge of a pulled record); this file stores pull pages.
 import type { CollectionName, PulledRecord } from '@fuselight/shared';
 import type { FuselightDb, StoredRecord } from '../data/db';
 import { receiveIntoDeviceClock } from '../data/device-clock';
 import { mergePulled } from '../data/outbox-transitions';
+import { noteNewerContent, type NewerContent } from './newer-records';
 
 export {
   applyPushResults,
@@ -59,6 +62,8 @@ export interface PullApplyOptions {
   yieldToUi: () => Promise<void>;
   now: () => number;
   onChunk?: (stored: number) => void;
+  /** What the page held that this build does not know (pull-page.ts), noted with the cursor. */
+  newer?: NewerContent | null;
 }
 
 function greatestStamp(records: readonly PulledRecord[]): string | null {
@@ -134,6 +139,7 @@ export async function applyPullPage(
           );
         }
         writes.push(writeCursor(db, cursor));
+        if (options.newer) writes.push(noteNewerContent(db, options.newer, options.nowMs));
       }
       timings.cursorMs += options.now() - started;
       started = options.now();

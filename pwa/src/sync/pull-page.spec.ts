@@ -63,7 +63,12 @@ const cases: Array<[string, (body: Record<string, unknown>) => void, string | nu
   ['a fractional cursor', (body) => (body.cursor = 1.5), 'cursor'],
   ['more as a string', (body) => (body.more = 'no'), 'more'],
   ['a record that is a list', (body) => ((body.records as unknown[])[1] = []), 'records.1'],
-  ['an unknown collection', (body) => (record(body).collection = 'orders'), 'records.1.collection'],
+  [
+    'a collection that is not a name',
+    (body) => (record(body).collection = 7),
+    'records.1.collection',
+  ],
+  ['an empty collection', (body) => (record(body).collection = ''), 'records.1.collection'],
   ['an id that is not a UUID', (body) => (record(body).id = 'patient-2'), 'records.1.id'],
   ['a negative version', (body) => (record(body).version = -2), 'records.1.version'],
   ['a version as a string', (body) => (record(body).version = '2'), 'records.1.version'],
@@ -119,9 +124,29 @@ describe('reading a pull page', () => {
   });
 
   it('names the field in its message', () => {
-    expect(() => readPullResponse(mutated((body) => (record(body).collection = 'orders')))).toThrow(
-      'records.1.collection: unknown collection orders',
+    expect(() =>
+      readPullResponse(mutated((body) => (record(body).collection = 'drop table'))),
+    ).toThrow(
+      'records.1.collection: collection must be a name of letters and digits, not "drop table"',
     );
+  });
+
+  it('reads a record of a collection, or with a field, this build does not know, and names them', () => {
+    // The shared schema (this build's view of protocol 1) refuses it; the tablet keeps it.
+    const json = mutated((body) => {
+      record(body, 0).fields = { ...(record(body, 0).fields as object), eyePreference: 'left' };
+      record(body).collection = 'orthoptistNote';
+    });
+    expect(pullResponseSchema.safeParse(json).success).toBe(false);
+    const read = readPullResponse(json);
+    if ('reset' in read) throw new Error('read a reset');
+    expect(read.records).toHaveLength(2);
+    expect(read.newer).toEqual({
+      collections: ['orthoptistNote'],
+      fields: { patient: ['eyePreference'] },
+    });
+    const known = readPullResponse(mutated(() => undefined));
+    expect('reset' in known ? 'reset' : known.newer).toBeNull();
   });
 });
 

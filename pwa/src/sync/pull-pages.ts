@@ -8,6 +8,7 @@ import type { FuselightDb } from '../data/db';
 import { notifyDataChange } from '../data/data-events';
 import { beginFullRepull, finishFullRepull, noteFullRepullPage } from './full-repull';
 import { applyPullPage, readCursor } from './local-apply';
+import { reviewNewerRecords, type BuildSchema } from './newer-records';
 import { PullPageError, isReadPullReset, readPullResponse } from './pull-page';
 import type { SyncAuth } from './sync-auth';
 import type { SyncStatusStore } from './sync-status';
@@ -27,6 +28,8 @@ export interface PagePullerOptions {
   pageLimit: number;
   chunkSize: number;
   yieldToUi: () => Promise<void>;
+  /** What this build knows of the record schemas (another build's in tests). */
+  build: BuildSchema;
 }
 
 /** A pull request's answer: a session to renew, or the page's parsed JSON. */
@@ -68,7 +71,7 @@ export class PagePuller {
       let page;
       try {
         // The whole page is checked before any of it is written.
-        page = readPullResponse(answer.json);
+        page = readPullResponse(answer.json, this.options.build);
       } catch (error) {
         if (!(error instanceof PullPageError)) throw error;
         throw new TransientSyncError(
@@ -102,6 +105,7 @@ export class PagePuller {
         chunkSize: this.options.chunkSize,
         freshDevice,
         yieldToUi: this.options.yieldToUi,
+        newer: page.newer,
         now: () => clock.now(),
         onChunk: (stored) => {
           received += stored;
@@ -119,6 +123,10 @@ export class PagePuller {
         notifyDataChange({ collections: applied.collections as CollectionName[], outbox: false });
       }
       cursor = page.cursor;
+      if (page.newer) {
+        // Stored as they came; the person is told that an update is available.
+        status.update({ newerRecords: await reviewNewerRecords(db, this.options.build) });
+      }
       await this.noteFullRepull(page.records.length, page.more);
       if (!page.more) return received;
       await this.options.yieldToUi();

@@ -20,6 +20,7 @@ import type { FuselightDb, OutboxEntry } from '../data/db';
 import { subscribeDataChanges } from '../data/data-events';
 import type { BackoffPolicy } from './backoff';
 import { readFullRepull } from './full-repull';
+import { THIS_BUILD, reviewNewerRecords, type BuildSchema } from './newer-records';
 import { LAST_SYNCED_KEY } from './local-apply';
 import { PagePuller } from './pull-pages';
 import { OutboxPusher } from './push-batches';
@@ -63,6 +64,8 @@ export interface SyncEngineOptions {
   requestTimeoutMs?: number;
   schemaVersion?: number;
   yieldToUi?: () => Promise<void>;
+  /** What the build knows of the record schemas (default: this build's; tests stand in another). */
+  build?: BuildSchema;
   /** Told of every push result the server sent, with the entry it answers (tests, audit). */
   onPushResult?: (entry: OutboxEntry, result: PushResult) => void;
   /**
@@ -161,6 +164,7 @@ export class SyncEngine {
       pageLimit: Math.min(options.pageLimit ?? MAX_PULL_LIMIT, MAX_PULL_LIMIT),
       chunkSize: options.chunkSize ?? 500,
       yieldToUi: options.yieldToUi ?? yieldToScreen,
+      build: options.build ?? THIS_BUILD,
     });
   }
 
@@ -195,7 +199,10 @@ export class SyncEngine {
     if (typeof lastSynced === 'number' && this.status.getSnapshot().lastSyncedAt === null) {
       this.status.update({ lastSyncedAt: lastSynced });
     }
-    this.status.update({ fullRepull: await readFullRepull(this.db) });
+    this.status.update({
+      fullRepull: await readFullRepull(this.db),
+      newerRecords: await reviewNewerRecords(this.db, this.options.build ?? THIS_BUILD),
+    });
     await this.refreshCounts();
   }
 

@@ -2,6 +2,7 @@
 // the Outbox, the progress of a long pull, and any problem in words. One small store per engine,
 // read by React through useSyncExternalStore.
 import type { FullRepull } from './full-repull';
+import type { NewerRecordsNote } from './newer-records';
 
 export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
 
@@ -31,6 +32,8 @@ export interface SyncStatus {
   consecutiveFailures: number;
   /** A pull from the start the server asked for: under way (finishedAt null) or the last one done. */
   fullRepull: FullRepull | null;
+  /** Records from a newer build that this one keeps as they came: an update is available. */
+  newerRecords: NewerRecordsNote | null;
 }
 
 export const INITIAL_SYNC_STATUS: SyncStatus = {
@@ -47,6 +50,7 @@ export const INITIAL_SYNC_STATUS: SyncStatus = {
   nextAttemptAt: null,
   consecutiveFailures: 0,
   fullRepull: null,
+  newerRecords: null,
 };
 
 export class SyncStatusStore {

@@ -172,14 +172,16 @@ export type PullPage = z.infer<typeof pullPageSchema>;
 
 /**
  * Pull again from 0, keeping the Outbox and local edits: the device's cursor is behind the
- * tombstone horizon (`horizon`), or was handed out before the server's cursor epoch, when pages
- * could skip records (`cursor-epoch`). Servers before the epoch send no reason.
+ * tombstone horizon (`horizon`), was handed out before the server's cursor epoch, when pages
+ * could skip records (`cursor-epoch`), or is above what a restore from a backup kept
+ * (`restored`). Servers before the epoch send no reason. A reason a device does not know is
+ * still a reset (a later server may add reasons): the schema takes any text.
  */
-export const PULL_RESET_REASONS = ['horizon', 'cursor-epoch'] as const;
+export const PULL_RESET_REASONS = ['horizon', 'cursor-epoch', 'restored'] as const;
 export type PullResetReason = (typeof PULL_RESET_REASONS)[number];
 export const pullResetSchema = z.object({
   reset: z.literal(true),
-  reason: z.enum(PULL_RESET_REASONS).optional(),
+  reason: z.string().max(100).optional(),
 });
 export type PullReset = z.infer<typeof pullResetSchema>;
 

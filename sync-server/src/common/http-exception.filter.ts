@@ -1,6 +1,7 @@
 // Turns every failure into a JSON answer a person can act on, and never leaks internals:
-// HttpExceptions keep their status and message; body-parser errors become 400/413; anything
-// else is logged and answered with a plain 500.
+// HttpExceptions keep their status and message; body-parser errors become 400/413; a database
+// that cannot be reached is a 503 with Retry-After (database-unavailable.ts); anything else is
+// logged and answered with a plain 500.
 import {
   Catch,
   HttpException,
@@ -10,6 +11,7 @@ import {
   type ExceptionFilter,
 } from '@nestjs/common';
 import type { Response } from 'express';
+import { DATABASE_UNAVAILABLE_MESSAGE, isDatabaseUnavailable } from './database-unavailable';
 
 interface BodyParserError {
   type?: string;
@@ -54,6 +56,18 @@ export class AllExceptionsFilter implements ExceptionFilter {
         error: HttpStatus[status] ?? 'Error',
         message: Array.isArray(message) ? message.join('; ') : message,
         ...(typeof body === 'object' && body !== null ? extraFields(body) : {}),
+      });
+      return;
+    }
+    if (isDatabaseUnavailable(exception)) {
+      this.logger.warn(
+        `database unavailable: ${exception instanceof Error ? exception.message : String(exception)}`,
+      );
+      response.setHeader('Retry-After', '5');
+      response.status(503).json({
+        statusCode: 503,
+        error: 'Service Unavailable',
+        message: DATABASE_UNAVAILABLE_MESSAGE,
       });
       return;
     }

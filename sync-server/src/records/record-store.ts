@@ -41,6 +41,15 @@ export interface ConflictInsert {
   candidates: StoredCandidate[];
 }
 
+/** What a pull reads first (RecordStore.pullHead). */
+export interface PullHead {
+  horizon: number;
+  epoch: number | null;
+  deviceGeneration: number | null;
+  generation: number;
+  restoredThrough: number | null;
+}
+
 /** How a supervisor's resolution closes a conflict. */
 export interface ConflictResolution {
   conflictId: string;
@@ -75,8 +84,9 @@ export async function recordsByIds(
 @Injectable()
 export class RecordStore {
   /**
-   * First statement of a writing transaction (record-version.ts): the transaction's version
-   * base, and the statement timeout that bounds how long it may hold pulls back.
+   * First statement of a writing transaction (record-version.ts): registers the writer, and
+   * returns the transaction's version base; sets the statement timeout that bounds how long it
+   * may hold pulls back.
    */
   async beginVersionedWrite(em: EntityManager): Promise<VersionAllocator> {
     const [begin] = await sqlRows<{ base: string }>(em, BEGIN_VERSIONED_WRITE_SQL);
@@ -127,25 +137,62 @@ export class RecordStore {
   }
 
   /**
-   * The first statement of a pull's snapshot: the version bound below which records are final
-   * (record-version.ts), the tombstone horizon, and the tablet's cursor epoch (null for a desk
-   * session or an unknown device).
+   * The bound below which versions are final for any snapshot taken after this returns
+   * (record-version.ts). Its own statement, outside and before the pull's transaction.
    */
-  async pullHead(
-    em: EntityManager,
-    deviceId: string | null,
-  ): Promise<{ bound: number; horizon: number; epoch: number | null }> {
-    const [head] = await sqlRows<{ bound: string; horizon: string; epoch: number | null }>(
+  async safeVersionBound(em: EntityManager): Promise<number> {
+    const [row] = await sqlRows<{ bound: string }>(em, SAFE_VERSION_BOUND_SQL);
+    if (!row) throw new Error('the safe version bound could not be read');
+    return Number(row.bound);
+  }
+
+  /**
+   * The first statement of a pull's snapshot: the tombstone horizon, the tablet's cursor epoch and
+   * timeline generation (null for a desk session or an unknown device), and the server's
+   * timeline (restores, see the migration RestoreTimeline).
+   */
+  async pullHead(em: EntityManager, deviceId: string | null): Promise<PullHead> {
+    const [head] = await sqlRows<{
+      horizon: string;
+      epoch: number | null;
+      device_generation: number | null;
+      generation: number;
+      restored_through: string | null;
+    }>(
       em,
-      `select (${SAFE_VERSION_BOUND_SQL})::text as "bound", (select "horizon_version" from "sync_horizon")::text as "horizon",
-              (select d."pull_epoch" from "device" d where d."id" = ?::uuid) as "epoch"`,
+      `select (select "horizon_version" from "sync_horizon")::text as "horizon",
+              d."pull_epoch" as "epoch", d."timeline_generation" as "device_generation",
+              t."generation", t."restored_through"::text as "restored_through"
+         from "sync_timeline" t left join "device" d on d."id" = ?::uuid`,
       [deviceId],
     );
     return {
-      bound: Number(head?.bound ?? 0),
       horizon: Number(head?.horizon ?? 0),
       epoch: head?.epoch ?? null,
+      deviceGeneration: head?.device_generation ?? null,
+      generation: head?.generation ?? 0,
+      restoredThrough: head?.restored_through == null ? null : Number(head.restored_through),
     };
+  }
+
+  /**
+   * Marks the tablet's cursor current: in this server's cursor epoch when it pulls from the start,
+   * and in the server's timeline generation (it is at or below what a restore kept, or pulls from
+   * the start). Outside the pull's read-only snapshot.
+   */
+  async markDeviceCursor(
+    em: EntityManager,
+    deviceId: string,
+    mark: { epoch: number | null; generation: number },
+  ): Promise<void> {
+    await sqlRows(
+      em,
+      `update "device" set "pull_epoch" = greatest("pull_epoch", coalesce(?::int, "pull_epoch")),
+              "timeline_generation" = greatest("timeline_generation", ?::int)
+        where "id" = ?::uuid
+          and ("pull_epoch" < coalesce(?::int, "pull_epoch") or "timeline_generation" < ?::int)`,
+      [mark.epoch, mark.generation, deviceId, mark.epoch, mark.generation],
+    );
   }
 
   /**

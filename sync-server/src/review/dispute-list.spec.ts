@@ -186,7 +186,7 @@ describe('the Disputes list past 5,000 open disputes', () => {
     // Walked again, the same pages.
     const again = await walk(supervisorA, { pageSize: 100 });
     expect(again.rows.map((r) => r.id)).toEqual(expected);
-  });
+  }, 120_000);
 
   it('walks newest first, and by patient, section and site, each dispute once and in order', async () => {
     const expected = await openIdsInOrder(siteA);
@@ -232,7 +232,7 @@ describe('the Disputes list past 5,000 open disputes', () => {
     expect(byAge.rows.map((r) => r.id)).toEqual(
       await openIdsInOrder(siteA, `and c."collection" = 'patient'`),
     );
-  });
+  }, 120_000);
 
   it('applies the filters to every page and to the count', async () => {
     // Section: a third of the section disputes are cover tests.
@@ -276,7 +276,7 @@ describe('the Disputes list past 5,000 open disputes', () => {
     expect(onlyB.rows.every((r) => r.siteId === siteB)).toBe(true);
     const notMine = (await list(supervisorA, { siteId: siteB })).body as DisputePageView;
     expect(notMine).toMatchObject({ items: [], total: 0, next: null, openTotal: OPEN_A });
-  });
+  }, 120_000);
 
   it('shows a supervisor of one site only that site’s disputes, and both sites in the filter choices of a supervisor of both', async () => {
     const b = await walk(supervisorB, { pageSize: 100 });

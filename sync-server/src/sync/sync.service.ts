@@ -7,8 +7,8 @@
 // one more (change-log.ts). If PostgreSQL refuses a value (a data error), the batch is rolled
 // back to that savepoint and the changes are written again one by one, each in its own
 // savepoint, so only the offending change is rejected.
-// Pull: one REPEATABLE READ read-only snapshot, bounded by the transaction-id watermark
-// (records/record-version.ts).
+// Pull: one REPEATABLE READ read-only snapshot, bounded by the server's own open writes (the writer
+// registry, records/record-version.ts); no one else's transaction holds it back.
 import { EntityManager } from '@mikro-orm/postgresql';
 import { IsolationLevel } from '@mikro-orm/core';
 import {
@@ -35,7 +35,7 @@ import type { AuthUser } from '../auth/auth-user';
 import { canReadClinical, sitesOf } from '../auth/scope';
 import { CLOCK, IDS, type Clock, type IdGenerator } from '../common/clock.provider';
 import { parseWith } from '../common/zod-validation.pipe';
-import { RecordStore } from '../records/record-store';
+import { RecordStore, type PullHead } from '../records/record-store';
 import { CURSOR_EPOCH, VersionAllocator } from '../records/record-version';
 import { sqlRows } from '../records/sql';
 import { wireStamps } from '../records/stored-record';
@@ -217,27 +217,17 @@ export class SyncService {
     const { after, limit } = parseWith(pullQuerySchema, query, 'query');
     if (!canReadClinical(user)) return { records: [], cursor: after, more: false };
     const sites = sitesOf(user);
-    // A pull from the start puts the tablet's cursors in this server's epoch (see CURSOR_EPOCH).
-    if (after === 0 && user.deviceId !== null) {
-      await sqlRows(this.em.fork(), MARK_CURSOR_EPOCH_SQL, [
-        CURSOR_EPOCH,
-        user.deviceId,
-        CURSOR_EPOCH,
-      ]);
-    }
-    return this.em.fork().transactional(
-      async (em): Promise<PullResponse> => {
-        // The first statement fixes the snapshot; the bound and the rows come from the same one.
+    // The bound is read before the snapshot is taken (records/record-version.ts).
+    const bound = await this.store.safeVersionBound(this.em.fork());
+    const answer = await this.em.fork().transactional(
+      async (em): Promise<{ response: PullResponse; head: PullHead }> => {
+        // The first statement fixes the snapshot; the rows come from the same one.
         const head = await this.store.pullHead(em, user.deviceId);
-        const { bound, horizon } = head;
-        if (after > 0 && after < horizon) return { reset: true, reason: 'horizon' };
-        // A cursor handed out before CURSOR_EPOCH may have skipped records: start over once.
-        if (after > 0 && head.epoch !== null && head.epoch < CURSOR_EPOCH) {
-          return { reset: true, reason: 'cursor-epoch' };
-        }
+        const reset = cursorReset(after, head);
+        if (reset) return { response: reset, head };
         const rows = await this.store.pullPage(em, { after, bound, sites, limit: limit + 1 });
-        // A committed change beyond the watermark (an older transaction is still open) is not
-        // sent yet, but `more` tells the device to come back for it rather than think it is done.
+        // A committed change at or beyond the bound (one of the server's own writes that began
+        // earlier is still open) is not sent yet, but `more` tells the device to come back for it.
         const more =
           rows.length > limit || (await this.store.heldBack(em, { after, bound, sites }));
         const page = rows.slice(0, limit);
@@ -258,14 +248,47 @@ export class SyncService {
           conflicts: (openByRecord.get(r.id) ?? []).sort(),
         }));
         const last = page.at(-1);
-        return { records, cursor: last ? last.version : after, more };
+        return {
+          response: { records, cursor: last ? last.version : after, more },
+          head,
+        };
       },
       { isolationLevel: IsolationLevel.REPEATABLE_READ, readOnly: true },
     );
+    // A pull that was not told to start over puts the tablet's cursor in this server's epoch (when
+    // from the start) and timeline (see cursorReset).
+    if (user.deviceId !== null && !('reset' in answer.response)) {
+      await this.store.markDeviceCursor(this.em.fork(), user.deviceId, {
+        epoch: after === 0 ? CURSOR_EPOCH : null,
+        generation: answer.head.generation,
+      });
+    }
+    return answer.response;
   }
 }
 
-const MARK_CURSOR_EPOCH_SQL = `update "device" set "pull_epoch" = ? where "id" = ?::uuid and "pull_epoch" < ?`;
+/**
+ * Whether a tablet's cursor must start over: below the tombstone horizon (deletions it would
+ * miss were pruned); handed out before CURSOR_EPOCH (pages ordered as text may have skipped
+ * records); or above what a restore from a backup kept, before the tablet pulled since (it saw
+ * changes the restored server lost, and new changes will reuse those versions).
+ */
+export function cursorReset(after: number, head: PullHead): PullResponse | null {
+  if (after === 0) return null;
+  if (after < head.horizon) return { reset: true, reason: 'horizon' };
+  if (head.epoch !== null && head.epoch < CURSOR_EPOCH) {
+    return { reset: true, reason: 'cursor-epoch' };
+  }
+  if (
+    head.deviceGeneration !== null &&
+    head.deviceGeneration < head.generation &&
+    head.restoredThrough !== null &&
+    after > head.restoredThrough
+  ) {
+    return { reset: true, reason: 'restored' };
+  }
+  return null;
+}
 
 /** One result per change of the request, in its order; a repeated id is a replay of its first. */
 function resultsInRequestOrder(

@@ -19,13 +19,18 @@ export interface TestDatabase {
   drop(): Promise<void>;
 }
 
-export async function createTestDatabase(): Promise<TestDatabase> {
+/** A fresh database cloned from the migrated template, or an empty one (to restore into). */
+export async function createTestDatabase(options: { empty?: boolean } = {}): Promise<TestDatabase> {
   const admin = inject('adminDatabaseUrl');
   const template = inject('templateDatabase');
   const name = `t_${process.pid}_${Date.now()}_${counter++}`;
   const client = new pg.Client({ connectionString: admin });
   await client.connect();
-  await client.query(`create database "${name}" template "${template}"`);
+  await client.query(
+    options.empty
+      ? `create database "${name}"`
+      : `create database "${name}" template "${template}"`,
+  );
   await client.end();
   return {
     url: databaseUrl(admin, name),
@@ -64,9 +69,15 @@ export interface TestApp {
 }
 
 export async function createTestApp(
-  options: { env?: Record<string, string>; clock?: TestClock; pushObserver?: PushObserver } = {},
+  options: {
+    env?: Record<string, string>;
+    clock?: TestClock;
+    pushObserver?: PushObserver;
+    /** Run on this database (a restored backup) instead of a fresh clone of the template. */
+    db?: TestDatabase;
+  } = {},
 ): Promise<TestApp> {
-  const db = await createTestDatabase();
+  const db = options.db ?? (await createTestDatabase());
   const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.url, ...options.env });
   const clock = options.clock ?? new TestClock();
   const app = await createApp(config, { clock, logger: false, pushObserver: options.pushObserver });

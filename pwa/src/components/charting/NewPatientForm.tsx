@@ -4,6 +4,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { fieldMeta, patientSchemaAsOf, type RecordFieldsInput } from '@fuselight/shared';
 import { useMemo, useState } from 'react';
 import { useForm } from 'react-hook-form';
+import { useUnsavedEdits } from '../../app/unsaved-edits';
 import { useEditContext } from '../../data';
 import { useCharting } from '../../data/charting';
 import './charting.css';
@@ -27,7 +28,7 @@ export function NewPatientForm({ siteId, today, onCreated, onCancel }: NewPatien
   const {
     register,
     handleSubmit,
-    formState: { errors, isSubmitting },
+    formState: { errors, isSubmitting, isDirty },
   } = useForm<PatientInput>({
     resolver: zodResolver(schema) as never,
     defaultValues: {
@@ -41,6 +42,8 @@ export function NewPatientForm({ siteId, today, onCreated, onCancel }: NewPatien
     },
     mode: 'onTouched',
   });
+  // A patient being registered and not saved: an app update waits (app/update-gate.ts).
+  useUnsavedEdits(isDirty);
 
   const submit = handleSubmit(async (fields) => {
     setSaveError(null);

@@ -4,6 +4,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { fieldMeta, patientSchemaAsOf, type RecordFieldsInput } from '@fuselight/shared';
 import { useMemo, useState } from 'react';
 import { useForm } from 'react-hook-form';
+import { useUnsavedEdits } from '../../app/unsaved-edits';
 import { useEditContext, type LocalRecord } from '../../data';
 import { useCharting } from '../../data/charting';
 import { DisputeMark } from './ScreenState';
@@ -42,6 +43,8 @@ export function PatientDetailsForm({
     },
     mode: 'onTouched',
   });
+  // Changed and not saved: an app update waits (app/update-gate.ts).
+  useUnsavedEdits(isDirty);
   const submit = handleSubmit(async (fields) => {
     setMessage('Saving…');
     const changed = Object.fromEntries(

@@ -9,6 +9,7 @@
 import { validateFields, type SectionCollectionName } from '@fuselight/shared';
 import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useEffect, useRef, useState } from 'react';
+import { useUnsavedEdits } from '../../app/unsaved-edits';
 import { useEditContext } from '../../data';
 import { useCharting } from '../../data/charting';
 import { refreshAfterWrite } from '../../data/query-invalidation';
@@ -58,6 +59,8 @@ export function useSectionAutosave(
   const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
   const inFlight = useRef(0);
   const invalid = useRef(new Set<string>());
+  // Typed and not yet written, or refused and still on screen: no app update now.
+  useUnsavedEdits(status !== 'idle' && status !== 'saved');
 
   const report = useCallback(
     (next: SaveStatus) => {

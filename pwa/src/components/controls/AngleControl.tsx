@@ -2,7 +2,7 @@
 // also on the dials: big step buttons, a sign toggle in the trade's words, typed entry and undo.
 // It holds no clinical rules; conversions come from @fuselight/shared through angle-format.
 import { type ConversionMethod, describeRange } from '@fuselight/shared';
-import { type KeyboardEvent, useContext, useId, useState } from 'react';
+import { type KeyboardEvent, useContext, useId, useRef, useState } from 'react';
 import {
   type AngleAxis,
   type AngleUnit,
@@ -14,6 +14,7 @@ import {
   parseTypedReading,
   spokenReading,
 } from './angle-format';
+import { useBenchAction } from './bench-action';
 import { ConversionContext } from './conversion-context';
 import './controls.css';
 
@@ -90,23 +91,25 @@ export function AngleControl({
     onChange(next);
   };
 
-  const step = (delta: number) => {
+  const step = (delta: number): number => {
     const nextMagnitude = Math.min(limit, Math.max(0, round(magnitude + delta)));
     commit(sign * nextMagnitude);
+    return sign * nextMagnitude;
   };
 
-  const chooseSign = (next: 1 | -1) => {
+  /** Sets the sign; returns the refusal in words when the value would leave the scale. */
+  const chooseSign = (next: 1 | -1): string | null => {
     setChosenSign(next);
     if (value !== null && value !== 0 && Math.sign(value) !== next) {
       const flipped = -value;
       if (flipped < min || flipped > max) {
-        setEntryError(
-          `${label}: ${describeReading(words, unit, flipped)} is outside the scale; it must be ${describeRange(min, max, UNIT_SYMBOL[unit], { signed: true })}`,
-        );
-        return;
+        const problem = `${label}: ${describeReading(words, unit, flipped)} is outside the scale; it must be ${describeRange(min, max, UNIT_SYMBOL[unit], { signed: true })}`;
+        setEntryError(problem);
+        return problem;
       }
       commit(flipped);
     }
+    return null;
   };
 
   const undo = () => {
@@ -134,6 +137,36 @@ export function AngleControl({
     if (parsed.value !== 0) setChosenSign(parsed.value > 0 ? 1 : -1);
     commit(parsed.value);
   };
+
+  // Keys of the Bench (foot pedal, clicker, keypad) reach the control as actions.
+  const readoutRef = useRef<HTMLDivElement>(null);
+  useBenchAction(readoutRef, (action) => {
+    if (disabled) return undefined;
+    const [small, medium, large] = steps;
+    const deltas: Record<string, number> = {
+      stepUpSmall: small,
+      stepDownSmall: -small,
+      stepUpMedium: medium,
+      stepDownMedium: -medium,
+      stepUpLarge: large,
+      stepDownLarge: -large,
+    };
+    const delta = deltas[action];
+    if (delta !== undefined) {
+      const next = step(delta);
+      return `${label}: ${spokenReading(words, unit, next)}`;
+    }
+    if (action === 'toggleSign' && signed) {
+      const next = sign > 0 ? -1 : 1;
+      const refused = chooseSign(next);
+      if (refused) return refused;
+      const shown = value !== null && value !== 0 ? -value : 0;
+      return value !== null && value !== 0
+        ? `${label}: ${spokenReading(words, unit, shown)}`
+        : `${label}: ${(next > 0 ? words.positive : words.negative).spoken}`;
+    }
+    return undefined;
+  });
 
   const onReadoutKey = (event: KeyboardEvent<HTMLDivElement>) => {
     if (disabled) return;
@@ -224,6 +257,7 @@ export function AngleControl({
         <div
           className="fl-angle__readout"
           role="spinbutton"
+          ref={readoutRef}
           tabIndex={disabled ? -1 : 0}
           aria-labelledby={labelId}
           aria-valuenow={value === null ? undefined : magnitude}

@@ -2,7 +2,8 @@
 // them, a save that resolves only when the edit and its Outbox entry are in IndexedDB, and a
 // save state the screen shows ("Saving…", "Saved", or what went wrong, keeping the entry).
 import { useQueryClient } from '@tanstack/react-query';
-import { useCallback, useRef, useState } from 'react';
+import { createContext, useCallback, useContext, useLayoutEffect, useRef, useState } from 'react';
+import { useUnsavedEdits } from '../../app/unsaved-edits';
 import { type VisitBundle, useCharting, useVisitBundle } from '../charting';
 import { useEditContext } from '../hooks/useRecordMutations';
 import { refreshAfterWrite } from '../query-invalidation';
@@ -15,11 +16,22 @@ export type SaveState =
   | { state: 'saved'; atMs: number }
   | { state: 'error'; message: string; field: string | null };
 
+/** One saved entry of a Bench sitting, with the values it replaced, so Undo can put them back. */
+export interface BenchJournalEntry {
+  collection: BenchCollection;
+  /** The fields' values before the entry (null: not recorded). */
+  previous: Record<string, unknown>;
+  revert: () => Promise<boolean>;
+}
+
+/** Where the Bench keeps its sitting's entries for Undo (absent outside the Bench). */
+export const BenchJournalContext = createContext<((entry: BenchJournalEntry) => void) | null>(null);
+
 export interface BenchSection<C extends BenchCollection> {
   /** Stored fields with unconfirmed edits laid over them (what the clinician just entered). */
   fields: BenchFields<C>;
   /** Saves changed fields; resolves true once they are in IndexedDB, false if refused. */
-  save: (changes: Partial<BenchFields<C>>) => Promise<boolean>;
+  save: (changes: Partial<BenchFields<C>>, options?: { journal?: boolean }) => Promise<boolean>;
   saveState: SaveState;
   recordId: string | null;
   /** The whole visit (patient, other Sections) for cross-step checks; undefined while loading. */
@@ -45,12 +57,37 @@ export function useBenchSection<C extends BenchCollection>(
   const [overlay, setOverlay] = useState<Partial<BenchFields<C>>>({});
   const [saveState, setSaveState] = useState<SaveState>({ state: 'idle' });
   const inFlight = useRef(0);
+  // A save on its way, or one refused with the values still on screen: no app update now.
+  useUnsavedEdits(saveState.state === 'saving' || saveState.state === 'error');
+  const journal = useContext(BenchJournalContext);
 
   const stored = benchFields(bundle.data, collection);
   const fields = { ...stored, ...overlay } as BenchFields<C>;
+  // The values an entry replaces are those on screen when it is made (for Undo).
+  const latestFields = useRef(fields);
+  useLayoutEffect(() => {
+    latestFields.current = fields;
+  });
+  const saveRef = useRef<BenchSection<C>['save'] | null>(null);
 
   const save = useCallback(
-    async (changes: Partial<BenchFields<C>>): Promise<boolean> => {
+    async (
+      changes: Partial<BenchFields<C>>,
+      options: { journal?: boolean } = {},
+    ): Promise<boolean> => {
+      if (journal && options.journal !== false) {
+        const before = latestFields.current as Record<string, unknown>;
+        const previous = Object.fromEntries(
+          Object.keys(changes).map((name) => [name, before[name] ?? null]),
+        );
+        journal({
+          collection,
+          previous,
+          revert: () =>
+            saveRef.current?.(previous as Partial<BenchFields<C>>, { journal: false }) ??
+            Promise.resolve(false),
+        });
+      }
       setOverlay((current) => ({ ...current, ...changes }));
       setSaveState({ state: 'saving' });
       inFlight.current += 1;
@@ -82,8 +119,11 @@ export function useBenchSection<C extends BenchCollection>(
         return false;
       }
     },
-    [charting, collection, editContext, queryClient, visitId],
+    [charting, collection, editContext, journal, queryClient, visitId],
   );
+  useLayoutEffect(() => {
+    saveRef.current = save;
+  }, [save]);
 
   return {
     fields,

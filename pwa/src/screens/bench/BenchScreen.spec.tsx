@@ -21,6 +21,9 @@ const alerts = () =>
     .map((a) => a.textContent)
     .join(' ');
 const saved = () => screen.findByText('Saved on this tablet');
+/** Chooses a reading in a step's list of readings, so the stepper edits it. */
+const chooseReading = async (user: ReturnType<typeof userEvent.setup>, label: string) =>
+  user.click(await screen.findByRole('button', { name: new RegExp(`^${label}: `) }));
 
 describe('the Bench', () => {
   it('opens at the step named in the address and lists every step in the trade’s order', async () => {
@@ -156,6 +159,7 @@ describe('the Bench', () => {
       /Compared with: Amblyoscope fusional amplitudes \(Fuselight defaults\), version 1\.0\.0/,
     );
     await user.type(screen.getByRole('textbox', { name: 'Type Divergence break' }), 'exo 4{Enter}');
+    await chooseReading(user, 'Convergence break');
     await user.type(
       screen.getByRole('textbox', { name: 'Type Convergence break' }),
       'eso 40{Enter}',
@@ -178,6 +182,7 @@ describe('the Bench', () => {
     await bench.seed('amblyoscopeAngles', { subjectiveHorizontalDeg: 0 });
     await bench.seed('fusionalRanges', { convergenceBreakDeg: 20 });
     bench.renderBench('fusional-ranges');
+    await chooseReading(user, 'Convergence recovery');
     await user.type(
       await screen.findByRole('textbox', { name: 'Type Convergence recovery' }),
       'eso 25{Enter}',
@@ -199,6 +204,7 @@ describe('the Bench', () => {
       verticalLostLowerDeg: -2,
     });
     bench.renderBench('suppression-scotoma');
+    await chooseReading(user, 'Picture lost, divergent side');
     await user.type(
       await screen.findByRole('textbox', { name: 'Type Picture lost, divergent side' }),
       'eso 7{Enter}',

@@ -1,6 +1,7 @@
 // Recording a step as not done, with the reason the chart will carry ("not tested: patient
-// tired"), and taking it back to test it after all.
-import { useId, useState } from 'react';
+// tired"), and taking it back to test it after all. The step's header holds the Skip button; the
+// reasons take the step's place while they are open, so the step still fits one screen.
+import { useEffect, useId, useRef, useState } from 'react';
 
 const QUICK_REASONS = [
   'patient tired',
@@ -9,34 +10,57 @@ const QUICK_REASONS = [
   'instrument unavailable',
 ];
 
-export interface SkipPanelProps {
-  stepTitle: string;
-  skippedReason: string | null | undefined;
-  onSkip: (reason: string) => Promise<boolean> | void;
-  onResume: () => Promise<boolean> | void;
-  /** Extra words, e.g. that two steps share a Section. */
-  note?: string;
+export function SkipButton({ stepTitle, onOpen }: { stepTitle: string; onOpen: () => void }) {
+  return (
+    <button type="button" className="fl-touch fl-button fl-button--quiet" onClick={onOpen}>
+      Skip {stepTitle.toLowerCase()}…
+    </button>
+  );
 }
 
-export function SkipPanel({ stepTitle, skippedReason, onSkip, onResume, note }: SkipPanelProps) {
-  const [open, setOpen] = useState(false);
+export function SkippedNote({
+  stepTitle,
+  skippedReason,
+  onResume,
+}: {
+  stepTitle: string;
+  skippedReason: string;
+  onResume: () => Promise<boolean> | void;
+}) {
+  return (
+    <div className="fl-bench-skipped" role="region" aria-label={`${stepTitle} not done`}>
+      <p>
+        <strong>Not done:</strong> {skippedReason}
+      </p>
+      <button
+        type="button"
+        className="fl-touch fl-button"
+        data-bench-target
+        onClick={() => void onResume()}
+      >
+        Test {stepTitle.toLowerCase()} now
+      </button>
+    </div>
+  );
+}
+
+export interface SkipFormProps {
+  stepTitle: string;
+  onSkip: (reason: string) => Promise<boolean> | void;
+  onClose: () => void;
+  /** Extra words, e.g. that two steps share a Section. */
+  note?: string | undefined;
+}
+
+export function SkipForm({ stepTitle, onSkip, onClose, note }: SkipFormProps) {
   const [reason, setReason] = useState('');
   const [problem, setProblem] = useState<string | null>(null);
   const inputId = useId();
   const errorId = `${inputId}-error`;
-
-  if (skippedReason) {
-    return (
-      <div className="fl-bench-skipped" role="region" aria-label={`${stepTitle} not done`}>
-        <p>
-          <strong>Not done:</strong> {skippedReason}
-        </p>
-        <button type="button" className="fl-touch fl-button" onClick={() => void onResume()}>
-          Test {stepTitle.toLowerCase()} now
-        </button>
-      </div>
-    );
-  }
+  const first = useRef<HTMLButtonElement>(null);
+  useEffect(() => {
+    first.current?.focus();
+  }, []);
 
   const submit = (text: string) => {
     const trimmed = text.trim();
@@ -45,22 +69,10 @@ export function SkipPanel({ stepTitle, skippedReason, onSkip, onResume, note }: 
       return;
     }
     setProblem(null);
-    setOpen(false);
     setReason('');
+    onClose();
     void onSkip(`not tested: ${trimmed}`);
   };
-
-  if (!open) {
-    return (
-      <button
-        type="button"
-        className="fl-touch fl-button fl-button--quiet"
-        onClick={() => setOpen(true)}
-      >
-        Skip {stepTitle.toLowerCase()}…
-      </button>
-    );
-  }
 
   return (
     <form
@@ -73,11 +85,13 @@ export function SkipPanel({ stepTitle, skippedReason, onSkip, onResume, note }: 
     >
       <p className="fl-muted">{note ?? 'Why was this step not done?'}</p>
       <div className="fl-choice__options">
-        {QUICK_REASONS.map((quick) => (
+        {QUICK_REASONS.map((quick, i) => (
           <button
             key={quick}
+            ref={i === 0 ? first : undefined}
             type="button"
             className="fl-touch fl-button"
+            data-bench-target
             onClick={() => submit(quick)}
           >
             Not tested: {quick}
@@ -88,6 +102,7 @@ export function SkipPanel({ stepTitle, skippedReason, onSkip, onResume, note }: 
       <input
         id={inputId}
         className="fl-touch fl-input"
+        data-bench-target
         value={reason}
         maxLength={480}
         aria-invalid={problem !== null || undefined}
@@ -100,15 +115,16 @@ export function SkipPanel({ stepTitle, skippedReason, onSkip, onResume, note }: 
         </p>
       ) : null}
       <div className="fl-choice__options">
-        <button type="submit" className="fl-touch fl-button fl-button--primary">
+        <button type="submit" className="fl-touch fl-button fl-button--primary" data-bench-target>
           Record as not tested
         </button>
         <button
           type="button"
           className="fl-touch fl-button fl-button--quiet"
+          data-bench-target
           onClick={() => {
-            setOpen(false);
             setProblem(null);
+            onClose();
           }}
         >
           Cancel

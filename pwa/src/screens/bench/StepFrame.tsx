@@ -1,7 +1,8 @@
-import type { ReactNode } from 'react';
+import { type ReactNode, useRef, useState } from 'react';
+import { useBenchAction } from '../../components/controls/bench-action';
 import type { BenchCollection, BenchSection } from '../../data/bench';
 import { SaveStatus } from './SaveStatus';
-import { SkipPanel } from './SkipPanel';
+import { SkipButton, SkipForm, SkippedNote } from './SkipPanel';
 
 /** A Bench step: what to do, the entries, the save state and skipping with a reason. */
 export function StepFrame<C extends BenchCollection>({
@@ -9,34 +10,55 @@ export function StepFrame<C extends BenchCollection>({
   instructions,
   section,
   skipNote,
+  className,
   children,
 }: {
   title: string;
   instructions: ReactNode;
   section: BenchSection<C>;
   skipNote?: string;
+  /** A layout of the step's own (e.g. two columns), added to the body. */
+  className?: string;
   children: ReactNode;
 }) {
   const skippedReason = (section.fields as { skippedReason?: string | null }).skippedReason;
+  const [skipping, setSkipping] = useState(false);
+  const frame = useRef<HTMLElement>(null);
+  useBenchAction(frame, (action) => {
+    if (action !== 'skipStep') return undefined;
+    if (skippedReason) return `${title} is already recorded as not done: ${skippedReason}`;
+    setSkipping(true);
+    return `Skip ${title.toLowerCase()}: choose the reason`;
+  });
+  const save = section.save as (changes: { skippedReason: string | null }) => Promise<boolean>;
   return (
-    <section className="fl-bench-step" aria-labelledby="fl-bench-step-title">
+    <section className="fl-bench-step" aria-labelledby="fl-bench-step-title" ref={frame}>
       <header className="fl-bench-step__head">
         <h2 id="fl-bench-step-title" tabIndex={-1}>
           {title}
         </h2>
         <SaveStatus saveState={section.saveState} hasRecord={section.recordId !== null} />
+        {skippedReason || skipping ? null : (
+          <SkipButton stepTitle={title} onOpen={() => setSkipping(true)} />
+        )}
       </header>
       <div className="fl-bench-step__instructions">{instructions}</div>
-      {skippedReason ? null : <div className="fl-bench-step__body">{children}</div>}
-      <SkipPanel
-        stepTitle={title}
-        skippedReason={skippedReason}
-        note={skipNote}
-        onSkip={(reason) =>
-          section.save({ skippedReason: reason } as Parameters<typeof section.save>[0])
-        }
-        onResume={() => section.save({ skippedReason: null } as Parameters<typeof section.save>[0])}
-      />
+      {skippedReason ? (
+        <SkippedNote
+          stepTitle={title}
+          skippedReason={skippedReason}
+          onResume={() => save({ skippedReason: null })}
+        />
+      ) : skipping ? (
+        <SkipForm
+          stepTitle={title}
+          note={skipNote}
+          onClose={() => setSkipping(false)}
+          onSkip={(reason) => save({ skippedReason: reason })}
+        />
+      ) : (
+        <div className={`fl-bench-step__body${className ? ` ${className}` : ''}`}>{children}</div>
+      )}
     </section>
   );
 }

@@ -2,6 +2,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { useNavigate } from 'react-router-dom';
+import { canSee } from '../../auth/access';
 import { useSession } from '../../auth/session-context';
 import { useAuthState } from '../../auth/SessionProvider';
 import { countOutboxEntries } from '../../auth/outbox-count';
@@ -9,8 +10,11 @@ import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Confirmation, SelectField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { UpdateAvailableNote } from '../../components/UpdateAvailableNote';
 import { describeFullRepull, useSyncStatus, type FullRepull } from '../../sync';
 import { queryKeys } from '../../data/query-keys';
+import { BenchKeysSettings } from './BenchKeysSettings';
+import './bench-keys.css';
 
 /** The tablet's full re-syncs in words: under way, the last one done, or none needed yet. */
 export function FullRepullNote(props: { repull: FullRepull | null }) {
@@ -70,6 +74,8 @@ export default function PersonScreen() {
         </p>
       ) : null}
       {deviceId ? <FullRepullNote repull={sync.fullRepull} /> : null}
+      {deviceId ? <UpdateAvailableNote note={sync.newerRecords} /> : null}
+      {canSee(user.role, 'clinical') ? <BenchKeysSettings /> : null}
       <div className="fl-id-row">
         {deviceId ? (
           <Button tone="quiet" onClick={() => navigate('/pin')}>

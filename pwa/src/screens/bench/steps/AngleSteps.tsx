@@ -7,8 +7,9 @@ import {
   describeDeviation,
   fieldMeta,
 } from '@fuselight/shared';
-import { AngleControl } from '../../../components/controls';
+import type { ReactNode } from 'react';
 import { type BenchFields, useBenchSection } from '../../../data/bench';
+import { type DeckCell, MeasureDeck } from '../MeasureDeck';
 import { Caution, StepFrame } from '../StepFrame';
 
 const meta = fieldMeta.amblyoscopeAngles;
@@ -34,44 +35,35 @@ function AngleTriplet({
   kind,
   angles,
   save,
+  children,
 }: {
   kind: Kind;
   angles: Angles;
   save: (changes: Partial<Angles>) => Promise<boolean>;
+  children?: ReactNode;
 }) {
   const h = `${kind}HorizontalDeg` as const;
   const v = `${kind}VerticalPd` as const;
   const t = `${kind}TorsionDeg` as const;
+  const cells: DeckCell[] = [
+    { field: h, axis: 'horizontal', unit: 'deg', min: meta[h].min ?? -90, max: meta[h].max ?? 90 },
+    { field: v, axis: 'vertical', unit: 'pd', min: meta[v].min ?? -50, max: meta[v].max ?? 50 },
+    { field: t, axis: 'torsion', unit: 'deg', min: meta[t].min ?? -45, max: meta[t].max ?? 45 },
+  ].map((cell) => ({
+    ...cell,
+    axis: cell.axis as DeckCell['axis'],
+    unit: cell.unit as DeckCell['unit'],
+    label: meta[cell.field].label,
+    value: angles[cell.field] ?? null,
+  }));
   return (
-    <div className="fl-bench-controls">
-      <AngleControl
-        label={meta[h].label}
-        axis="horizontal"
-        unit="deg"
-        min={meta[h].min ?? -90}
-        max={meta[h].max ?? 90}
-        value={angles[h] ?? null}
-        onChange={(value) => void save({ [h]: value })}
-      />
-      <AngleControl
-        label={meta[v].label}
-        axis="vertical"
-        unit="pd"
-        min={meta[v].min ?? -50}
-        max={meta[v].max ?? 50}
-        value={angles[v] ?? null}
-        onChange={(value) => void save({ [v]: value })}
-      />
-      <AngleControl
-        label={meta[t].label}
-        axis="torsion"
-        unit="deg"
-        min={meta[t].min ?? -45}
-        max={meta[t].max ?? 45}
-        value={angles[t] ?? null}
-        onChange={(value) => void save({ [t]: value })}
-      />
-    </div>
+    <MeasureDeck
+      title={`${kind === 'subjective' ? 'Subjective' : 'Objective'} angle readings`}
+      cells={cells}
+      onChange={(field, value) => void save({ [field]: value })}
+    >
+      {children}
+    </MeasureDeck>
   );
 }
 
@@ -89,10 +81,11 @@ export function SubjectiveAngleStep({ visitId }: { visitId: string }) {
         </p>
       }
     >
-      <AngleTriplet kind="subjective" angles={section.fields} save={section.save} />
-      <p className="fl-bench-live" aria-live="polite">
-        <strong>Subjective angle:</strong> {summaryOf(section.fields, 'subjective')}
-      </p>
+      <AngleTriplet kind="subjective" angles={section.fields} save={section.save}>
+        <p className="fl-bench-live" aria-live="polite">
+          <strong>Subjective angle:</strong> {summaryOf(section.fields, 'subjective')}
+        </p>
+      </AngleTriplet>
     </StepFrame>
   );
 }
@@ -144,10 +137,11 @@ export function ObjectiveAngleStep({ visitId }: { visitId: string }) {
         </p>
       }
     >
-      <AngleTriplet kind="objective" angles={section.fields} save={section.save} />
-      <p className="fl-bench-live" aria-live="polite">
-        <strong>Objective angle:</strong> {summaryOf(section.fields, 'objective')}
-      </p>
+      <AngleTriplet kind="objective" angles={section.fields} save={section.save}>
+        <p className="fl-bench-live" aria-live="polite">
+          <strong>Objective angle:</strong> {summaryOf(section.fields, 'objective')}
+        </p>
+      </AngleTriplet>
       <CorrespondenceResult angles={section.fields} />
     </StepFrame>
   );

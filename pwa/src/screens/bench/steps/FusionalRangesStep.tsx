@@ -8,8 +8,8 @@ import {
   fusionalRangesOf,
   normsTableName,
 } from '@fuselight/shared';
-import { AngleControl } from '../../../components/controls';
 import { type BenchFields, benchFields, useBenchSection } from '../../../data/bench';
+import { type DeckCell, MeasureDeck } from '../MeasureDeck';
 import { Caution, StepFrame } from '../StepFrame';
 
 const meta = fieldMeta.fusionalRanges;
@@ -92,8 +92,27 @@ export function FusionalRangesStep({ visitId }: { visitId: string }) {
       ? interpretation.value.norms.flags.find((flag) => flag.kind === 'proximal convergence')
       : undefined;
 
+  const cells: DeckCell[] = GROUPS.flatMap((group) =>
+    ([group.breakField, group.recoveryField] as const).map((name): DeckCell => ({
+      field: name,
+      label: meta[name].label,
+      short: name === group.breakField ? 'Break' : 'Recovery',
+      group: group.title,
+      axis: group.axis,
+      unit: group.unit,
+      min: meta[name].min ?? -90,
+      max: meta[name].max ?? 90,
+      defaultSign: group.defaultSign,
+      value: (fields[name] as number | null | undefined) ?? null,
+      // Horizontal ranges are measured out from the subjective angle.
+      start: group.axis === 'horizontal' ? (angles.subjectiveHorizontalDeg ?? null) : null,
+      mark: name === group.breakField ? 'markBreak' : 'markRecovery',
+    })),
+  );
+
   return (
     <StepFrame
+      className="fl-bench-ranges"
       title="Fusional ranges"
       section={section}
       instructions={
@@ -108,74 +127,67 @@ export function FusionalRangesStep({ visitId }: { visitId: string }) {
         </p>
       }
     >
-      {GROUPS.map((group) => (
-        <fieldset key={group.breakField} className="fl-bench-range">
-          <legend>{group.title}</legend>
-          <div className="fl-bench-controls fl-bench-controls--pair">
-            {([group.breakField, group.recoveryField] as const).map((name) => (
-              <AngleControl
-                key={name}
-                label={meta[name].label}
-                axis={group.axis}
-                unit={group.unit}
-                min={meta[name].min ?? -90}
-                max={meta[name].max ?? 90}
-                defaultSign={group.defaultSign}
-                value={(fields[name] as number | null | undefined) ?? null}
-                onChange={(value) => saveReading(name, value)}
-              />
-            ))}
-          </div>
-          {group.breakField === 'convergenceBreakDeg' && proximal ? (
-            <p className="fl-bench-warning" role="note" data-testid="proximal-convergence-note">
-              {proximal.message} Findings on the amblyoscope are distance findings.
-            </p>
-          ) : null}
-        </fieldset>
-      ))}
-
-      <div className="fl-bench-result" aria-live="polite" data-testid="ranges-result">
-        <h3>Amplitudes</h3>
-        <p className="fl-muted">Compared with: {tableName}</p>
-        {interpretation === null ? (
-          <p className="fl-muted">No break recorded yet.</p>
-        ) : interpretation.ok ? (
-          <>
-            {interpretation.value.startNote ? (
-              <p className="fl-bench-warning">{interpretation.value.startNote}</p>
-            ) : null}
-            <ul>
-              {interpretation.value.amplitudes.amplitudes.map((a) => (
-                <li key={a.direction}>{a.text}</li>
-              ))}
-            </ul>
-            <h4>Against the norms</h4>
-            <ul>
-              {interpretation.value.norms.comparisons.map((c) => (
-                <li key={`${c.measurement.direction}-${c.measurement.point}`}>{c.message}</li>
-              ))}
-            </ul>
-            {interpretation.value.norms.flags
-              .filter((flag) => flag.kind !== 'proximal convergence')
-              .map((flag) => (
-                <p
-                  key={`${flag.kind}-${flag.direction}-${flag.point ?? ''}`}
-                  className="fl-bench-warning"
-                >
-                  {flag.message}
-                </p>
-              ))}
-            <Caution text={interpretation.value.norms.caution} />
-          </>
-        ) : (
-          <>
-            <p className="fl-field-error" role="alert">
-              {interpretation.problem}
-            </p>
-            <Caution text={CLINICAL_CAUTION} />
-          </>
-        )}
-      </div>
+      <MeasureDeck
+        title="Fusional range readings"
+        cells={cells}
+        onChange={(field, value) => saveReading(field as RangeField, value)}
+      >
+        {proximal ? (
+          <p className="fl-bench-warning" role="note" data-testid="proximal-convergence-note">
+            {proximal.message} Findings on the amblyoscope are distance findings.
+          </p>
+        ) : null}
+        {/* Takes the height left beside the readings; with many ranges it scrolls on its own. */}
+        <div
+          className="fl-bench-result fl-bench-ranges__result"
+          aria-live="polite"
+          data-testid="ranges-result"
+          role="region"
+          aria-label="Amplitudes and norms"
+          tabIndex={0}
+        >
+          <h3>Amplitudes</h3>
+          <p className="fl-muted">Compared with: {tableName}</p>
+          {interpretation === null ? (
+            <p className="fl-muted">No break recorded yet.</p>
+          ) : interpretation.ok ? (
+            <>
+              {interpretation.value.startNote ? (
+                <p className="fl-bench-warning">{interpretation.value.startNote}</p>
+              ) : null}
+              <ul>
+                {interpretation.value.amplitudes.amplitudes.map((a) => (
+                  <li key={a.direction}>{a.text}</li>
+                ))}
+              </ul>
+              <h4>Against the norms</h4>
+              <ul>
+                {interpretation.value.norms.comparisons.map((c) => (
+                  <li key={`${c.measurement.direction}-${c.measurement.point}`}>{c.message}</li>
+                ))}
+              </ul>
+              {interpretation.value.norms.flags
+                .filter((flag) => flag.kind !== 'proximal convergence')
+                .map((flag) => (
+                  <p
+                    key={`${flag.kind}-${flag.direction}-${flag.point ?? ''}`}
+                    className="fl-bench-warning"
+                  >
+                    {flag.message}
+                  </p>
+                ))}
+              <Caution text={interpretation.value.norms.caution} />
+            </>
+          ) : (
+            <>
+              <p className="fl-field-error" role="alert">
+                {interpretation.problem}
+              </p>
+              <Caution text={CLINICAL_CAUTION} />
+            </>
+          )}
+        </div>
+      </MeasureDeck>
     </StepFrame>
   );
 }

@@ -5,9 +5,10 @@ import {
   prismDioptresToDegrees,
   suppressionScotomaRegion,
 } from '@fuselight/shared';
-import { AngleControl, EyeChoice } from '../../../components/controls';
+import { EyeChoice } from '../../../components/controls';
 import { type BenchFields, benchFields, useBenchSection } from '../../../data/bench';
 import { BenchTextField } from '../BenchFields';
+import { type DeckCell, MeasureDeck } from '../MeasureDeck';
 import { StepFrame } from '../StepFrame';
 import { ScotomaMap } from './ScotomaMap';
 
@@ -59,30 +60,49 @@ export function ScotomaStep({ visitId }: { visitId: string }) {
   const { fields, save } = section;
   const angles = benchFields(section.bundle, 'amblyoscopeAngles');
   const { region, problem } = scotomaRegionOf(fields, angles);
-  const control = (
-    name:
-      | 'horizontalLostConvergentDeg'
-      | 'horizontalLostDivergentDeg'
-      | 'verticalLostUpperDeg'
-      | 'verticalLostLowerDeg',
-    axis: 'horizontal' | 'vertical',
+  const horizontal = (
+    field: 'horizontalLostConvergentDeg' | 'horizontalLostDivergentDeg',
+    short: string,
     defaultSign: 1 | -1,
-  ) => (
-    <AngleControl
-      label={meta[name].label}
-      axis={axis === 'horizontal' ? 'horizontal' : 'vertical'}
-      unit="deg"
-      min={meta[name].min ?? -90}
-      max={meta[name].max ?? 90}
-      defaultSign={defaultSign}
-      hint={
-        axis === 'vertical' ? 'degrees on the vertical control' : 'position on the horizontal scale'
-      }
-      {...(axis === 'vertical' ? { signWords: UP_DOWN } : {})}
-      value={fields[name] ?? null}
-      onChange={(value) => void save({ [name]: value })}
-    />
-  );
+  ): DeckCell => ({
+    field,
+    label: meta[field].label,
+    short,
+    axis: 'horizontal',
+    unit: 'deg',
+    min: meta[field].min ?? -90,
+    max: meta[field].max ?? 90,
+    defaultSign,
+    hint: 'position on the horizontal scale',
+    value: fields[field] ?? null,
+    // Each side is measured moving out from the objective angle.
+    start: angles.objectiveHorizontalDeg ?? null,
+    mark: 'markLost',
+  });
+  const vertical = (
+    field: 'verticalLostUpperDeg' | 'verticalLostLowerDeg',
+    short: string,
+    defaultSign: 1 | -1,
+  ): DeckCell => ({
+    field,
+    label: meta[field].label,
+    short,
+    axis: 'vertical',
+    unit: 'deg',
+    min: meta[field].min ?? -90,
+    max: meta[field].max ?? 90,
+    defaultSign,
+    signWords: UP_DOWN,
+    hint: 'degrees on the vertical control',
+    value: fields[field] ?? null,
+    mark: 'markLost',
+  });
+  const cells = [
+    horizontal('horizontalLostConvergentDeg', 'Convergent side', 1),
+    horizontal('horizontalLostDivergentDeg', 'Divergent side', -1),
+    vertical('verticalLostUpperDeg', 'Upper', 1),
+    vertical('verticalLostLowerDeg', 'Lower', -1),
+  ];
   return (
     <StepFrame
       title="Suppression scotoma"
@@ -95,18 +115,24 @@ export function ScotomaStep({ visitId }: { visitId: string }) {
         </p>
       }
     >
-      <EyeChoice
-        label={meta.deviatingEye.label}
-        value={fields.deviatingEye ?? null}
-        onChange={(value) => void save({ deviatingEye: value })}
-      />
+      <div className="fl-bench-row">
+        <EyeChoice
+          label={meta.deviatingEye.label}
+          value={fields.deviatingEye ?? null}
+          onChange={(value) => void save({ deviatingEye: value })}
+        />
+        <BenchTextField
+          label={meta.slideUsed.label}
+          value={fields.slideUsed}
+          onSave={(value) => void save({ slideUsed: value })}
+        />
+      </div>
       <div className="fl-bench-split">
-        <div className="fl-bench-controls">
-          {control('horizontalLostConvergentDeg', 'horizontal', 1)}
-          {control('horizontalLostDivergentDeg', 'horizontal', -1)}
-          {control('verticalLostUpperDeg', 'vertical', 1)}
-          {control('verticalLostLowerDeg', 'vertical', -1)}
-        </div>
+        <MeasureDeck
+          title="Where the picture was lost"
+          cells={cells}
+          onChange={(field, value) => void save({ [field]: value })}
+        />
         <div>
           <ScotomaMap region={region} />
           {problem ? (
@@ -116,11 +142,6 @@ export function ScotomaStep({ visitId }: { visitId: string }) {
           ) : null}
         </div>
       </div>
-      <BenchTextField
-        label={meta.slideUsed.label}
-        value={fields.slideUsed}
-        onSave={(value) => void save({ slideUsed: value })}
-      />
     </StepFrame>
   );
 }

@@ -9,7 +9,8 @@ import {
   stereoTrialSequence,
   stereoVerdict,
 } from '@fuselight/shared';
-import { useState } from 'react';
+import { useRef, useState } from 'react';
+import { useBenchAction } from '../../../components/controls/bench-action';
 import { Caution } from '../StepFrame';
 
 /** Uniform in [0, 1) from the platform's cryptographic generator. */
@@ -53,8 +54,21 @@ export function StereoTrialRunner({
     onRecord([...trials, { presented: next, answer: said, correct: next === said }]);
   };
 
+  // The stereo keys of the Bench: the patient's answer, then what to show next, in words.
+  const root = useRef<HTMLDivElement>(null);
+  useBenchAction(root, (action) => {
+    if (action !== 'stereoToward' && action !== 'stereoAway') return undefined;
+    if (next === null) return 'The trial limit is reached.';
+    const said: StereoPresentation = action === 'stereoToward' ? 'toward' : 'away';
+    const after = [...trials, { presented: next, answer: said, correct: next === said }];
+    answer(said);
+    const tally = stereoVerdict(after, alpha === undefined ? {} : { alpha });
+    const following = sequence[after.length - start];
+    return `Trial ${trials.length + 1}: patient says ${said}, ${next === said ? 'right' : 'wrong'}. ${tally.correct} of ${tally.total} right${tally.verdict === 'present' ? ', gross stereopsis shown' : ''}.${following ? ` Next: show ${WORDS[following]}.` : ''}`;
+  });
+
   return (
-    <div className="fl-stereo">
+    <div className="fl-stereo" ref={root} data-bench-handler>
       <div className="fl-stereo__next" aria-live="polite" data-testid="stereo-next">
         {next === null ? (
           <p>The trial limit is reached.</p>
@@ -117,7 +131,7 @@ export function StereoTrialRunner({
           </ol>
           <button
             type="button"
-            className="fl-touch fl-button fl-button--quiet"
+            className="fl-touch fl-button fl-button--quiet fl-stereo__undo"
             onClick={() => onRecord(trials.slice(0, -1))}
           >
             Undo last trial
