@@ -10,7 +10,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { expectNoSeriousViolations } from './support/accessibility';
 import { baseUrl, launchTablet, screenshot } from './support/browser';
 import { newPerson, newSite, runTag, seedClinic, withDb } from './support/clinic-fixtures';
-import { enrolClinicianTablet, serviceWorkerReady, signInAdmin } from './support/tablet-flows';
+import {
+  enrolClinicianTablet,
+  gotoOnTablet,
+  serviceWorkerReady,
+  signInAdmin,
+} from './support/tablet-flows';
 
 const run = runTag();
 const site = newSite(`Lantern Eye Unit ${run}`);
@@ -132,7 +137,7 @@ async function until<T>(what: string, probe: () => Promise<T | null | undefined 
 
 /** Registers a patient and starts their visit (before the Bench: pointer allowed there). */
 async function startVisit(page: Page, patient: typeof keyed): Promise<string> {
-  await page.goto(`${baseUrl()}/today`);
+  await gotoOnTablet(page, `${baseUrl()}/today`);
   await page.getByRole('button', { name: 'New patient' }).click();
   await page.getByLabel('Given name', { exact: true }).fill(patient.given);
   await page.getByLabel('Family name', { exact: true }).fill(patient.family);
@@ -140,7 +145,7 @@ async function startVisit(page: Page, patient: typeof keyed): Promise<string> {
   await page.getByLabel('Clinic number', { exact: true }).fill(patient.number);
   await page.getByRole('button', { name: 'Save patient' }).click();
   await page.waitForURL(/\/chart\//);
-  await page.goto(`${baseUrl()}/today`);
+  await gotoOnTablet(page, `${baseUrl()}/today`);
   await page.getByLabel('Name, clinic number or date of birth').fill(patient.number);
   await page
     .getByRole('button', { name: new RegExp(`Start visit: .*${patient.family}`) })
@@ -151,7 +156,7 @@ async function startVisit(page: Page, patient: typeof keyed): Promise<string> {
 }
 
 async function openBench(page: Page, visitId: string) {
-  await page.goto(`${baseUrl()}/bench/${visitId}`);
+  await gotoOnTablet(page, `${baseUrl()}/bench/${visitId}`);
   await page.getByRole('heading', { name: 'Setup', level: 2 }).waitFor();
 }
 
