@@ -8,7 +8,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { expectNoSeriousViolations } from './support/accessibility';
 import { baseUrl, launchTablet, screenshot } from './support/browser';
 import { newPerson, newSite, runTag, seedClinic, withDb } from './support/clinic-fixtures';
-import { enrolClinicianTablet, serviceWorkerReady, signInAdmin } from './support/tablet-flows';
+import {
+  enrolClinicianTablet,
+  gotoOnTablet,
+  reloadOnTablet,
+  serviceWorkerReady,
+  signInAdmin,
+} from './support/tablet-flows';
 
 const run = runTag();
 const site = newSite(`Harbour Orthoptics ${run}`);
@@ -113,7 +119,7 @@ describe('the Bench on an enrolled tablet', () => {
     await page.getByLabel('Clinic number', { exact: true }).fill(patient.number);
     await page.getByRole('button', { name: 'Save patient' }).click();
     await page.waitForURL(/\/chart\//);
-    await page.goto(`${baseUrl()}/today`);
+    await gotoOnTablet(page, `${baseUrl()}/today`);
     await page.getByLabel('Name, clinic number or date of birth').fill(patient.family);
     await page
       .getByRole('button', { name: `Start visit: ${patient.family} ${patient.given}` })
@@ -123,7 +129,7 @@ describe('the Bench on an enrolled tablet', () => {
     await page.waitForURL(/\/visit\/[0-9a-f-]{36}/);
     visitId = /\/visit\/([0-9a-f-]{36})/.exec(page.url())![1]!;
 
-    await page.goto(`${baseUrl()}/bench/${visitId}`);
+    await gotoOnTablet(page, `${baseUrl()}/bench/${visitId}`);
     await page.getByRole('heading', { name: 'Setup', level: 2 }).waitFor();
     expect(await page.locator('ion-tab-bar').isVisible()).toBe(false);
     await page
@@ -249,7 +255,7 @@ describe('the Bench on an enrolled tablet', () => {
     await screenshot(page, 'bench-summary');
 
     // Reload while offline: everything is still there.
-    await page.reload();
+    await reloadOnTablet(page);
     await page.getByRole('heading', { name: 'Summary', level: 2 }).waitFor({ timeout: 20_000 });
     const summary = (await page.locator('.fl-bench-summary').textContent()) ?? '';
     expect(summary).toContain('Interpupillary distance 58 mm');
@@ -282,7 +288,7 @@ describe('the Bench on an enrolled tablet', () => {
     // Tablet B pulls the visit, then records slide names while tablet A adds extra lenses.
     // Its first pull brings the visit; until then the Bench says the visit is not here yet.
     await until('tablet B to pull the visit', async () => {
-      await second.goto(`${baseUrl()}/bench/${visitId}?step=fusion`);
+      await gotoOnTablet(second, `${baseUrl()}/bench/${visitId}?step=fusion`);
       return second
         .getByRole('heading', { name: 'Fusion', level: 2 })
         .waitFor({ timeout: 5_000 })
@@ -297,7 +303,7 @@ describe('the Bench on an enrolled tablet', () => {
     await slide.press('Enter');
     await savedHere(second);
 
-    await page.goto(`${baseUrl()}/bench/${visitId}?step=setup`);
+    await gotoOnTablet(page, `${baseUrl()}/bench/${visitId}?step=setup`);
     const lenses = page.getByLabel('Extra lenses, right holder');
     await lenses.fill('+3.00 DS');
     await lenses.press('Enter');

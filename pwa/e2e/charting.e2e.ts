@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { expectNoSeriousViolations } from './support/accessibility';
 import { TABLET_PORTRAIT, baseUrl, launchTablet, screenshot } from './support/browser';
 import { newPerson, newSite, runTag, seedClinic } from './support/clinic-fixtures';
-import { enrolClinicianTablet, signInAdmin } from './support/tablet-flows';
+import { enrolClinicianTablet, gotoOnTablet, signInAdmin } from './support/tablet-flows';
 
 const run = runTag();
 const site = newSite(`Larkfield Eye Room ${run}`);
@@ -111,7 +111,7 @@ describe('the charting screens on an enrolled tablet', () => {
   });
 
   it('finds the patient on Today by date of birth and shows the signed visit', async () => {
-    await page.goto(`${baseUrl()}/today`);
+    await gotoOnTablet(page, `${baseUrl()}/today`);
     await page.getByLabel('Name, clinic number or date of birth').fill(patient.dob);
     await page
       .getByRole('list', { name: 'Search results' })

@@ -10,6 +10,7 @@ import { baseUrl, launchTablet, screenshot } from './support/browser';
 import { type Role, newPerson, newSite, runTag, seedClinic } from './support/clinic-fixtures';
 import {
   enrolClinicianTablet,
+  gotoOnTablet,
   openAndSignIn,
   serviceWorkerReady,
   signInAdmin,
@@ -73,7 +74,7 @@ async function openVisit(
 ) {
   const deadline = Date.now() + 45_000;
   for (;;) {
-    await page.goto(`${baseUrl()}/visit/${visitId}`);
+    await gotoOnTablet(page, `${baseUrl()}/visit/${visitId}`);
     const amblyoscope = page.locator('#section-amblyoscope');
     const arrived = await amblyoscope
       .getByText('Objective horizontal angle')

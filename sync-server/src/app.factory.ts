@@ -56,12 +56,21 @@ export async function createApp(
           'img-src': ["'self'", 'data:', 'blob:'],
           'media-src': ["'self'", 'blob:'],
           'worker-src': ["'self'", 'blob:'],
+          // The tablet derives key-slot keys with argon2id in WebAssembly (hash-wasm).
+          'script-src': ["'self'", "'wasm-unsafe-eval'"],
         },
       },
       crossOriginEmbedderPolicy: false,
     }),
   );
   app.enableCors({ origin: config.appOrigin, credentials: false });
+  // Answers of the API carry patient data (pull pages, attachments, letters, review views) or
+  // identity: no browser or proxy cache may keep them (docs/threat-model.md). A route may only
+  // say the same or stricter.
+  app.use('/api', (_req: Request, res: Response, next: NextFunction) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   app.setGlobalPrefix('api');
   SwaggerModule.setup('api/docs', app, () => buildOpenApiDocument(app), {
     jsonDocumentUrl: 'api/docs-json',

@@ -1,6 +1,7 @@
 // One simulated tablet: its own Dexie database on fake-indexeddb, its own controllable clock, the
 // real PWA repositories and sync engine, a faulty network to the real server, and a real SyncAuth.
 import type { CollectionName, PushResult, RecordFieldsInput } from '@fuselight/shared';
+import type { DataKeyVault } from '@pwa/data/crypto/data-key-vault';
 import { FuselightDb, type OutboxEntry, type StoredRecord } from '@pwa/data/db';
 import { OutboxRepository } from '@pwa/data/outbox-repository';
 import { RecordsRepository, type EditContext } from '@pwa/data/records-repository';
@@ -40,12 +41,17 @@ export class SimTablet {
       baseUrl?: string;
       /** Hold the live-changes stream and pull when it says so (the app does). */
       live?: boolean;
+      /** A protected tablet's vault (holding its data key); default: the shared one. */
+      vault?: DataKeyVault;
     } = {},
   ) {
     tabletCount += 1;
     this.people = people;
     this.user = people[0] as TestUser;
-    this.db = new FuselightDb(options.dbName ?? `tablet-${name}-${process.pid}-${tabletCount}`);
+    this.db = new FuselightDb(
+      options.dbName ?? `tablet-${name}-${process.pid}-${tabletCount}`,
+      options.vault,
+    );
     this.records = new RecordsRepository(this.db);
     this.outbox = new OutboxRepository(this.db);
     const baseUrl = options.baseUrl ?? clinic.baseUrl;
@@ -76,7 +82,13 @@ export class SimTablet {
     clinic: Clinic,
     name: string,
     people: TestUser[],
-    options: { schemaVersion?: number; pageLimit?: number; baseUrl?: string; live?: boolean } = {},
+    options: {
+      schemaVersion?: number;
+      pageLimit?: number;
+      baseUrl?: string;
+      live?: boolean;
+      vault?: DataKeyVault;
+    } = {},
   ): Promise<SimTablet> {
     const device = await clinic.device();
     return new SimTablet(name, clinic, device, people, options);

@@ -16,8 +16,15 @@ export const TABLET_LANDSCAPE = { width: 1280, height: 800 };
 export const TABLET_PORTRAIT = { width: 768, height: 1024 };
 
 export async function launchTablet(viewport = TABLET_LANDSCAPE): Promise<BrowserContext> {
+  return (await launchTabletWithProfile(viewport)).context;
+}
+
+/** A tablet and the folder of its browser profile (for reading what the browser wrote). */
+export async function launchTabletWithProfile(
+  viewport = TABLET_LANDSCAPE,
+): Promise<{ context: BrowserContext; profile: string }> {
   const profile = mkdtempSync(join(tmpdir(), 'fuselight-e2e-'));
-  return chromium.launchPersistentContext(profile, {
+  const context = await chromium.launchPersistentContext(profile, {
     executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
     headless: true,
     viewport,
@@ -32,6 +39,7 @@ export async function launchTablet(viewport = TABLET_LANDSCAPE): Promise<Browser
       '--disable-sync',
     ],
   });
+  return { context, profile };
 }
 
 const artifacts = resolve(import.meta.dirname, '..', '..', '..', 'artifacts', 'screenshots');

@@ -4,6 +4,9 @@
 // A file's bytes are written once; its upload progress lives in its own small table, so a retry
 // never rewrites megabytes. Screens read the store through the functions here, never its tables.
 import Dexie, { type EntityTable } from 'dexie';
+import { tabletVault, type DataKeyVault } from '../data/crypto/data-key-vault';
+import { sealingMiddleware } from '../data/crypto/sealing-middleware';
+import type { TableSealing } from '../data/crypto/value-codec';
 
 export type AttachmentFileState = 'waiting' | 'uploaded' | 'cached';
 
@@ -30,12 +33,18 @@ export interface AttachmentTransfer {
   nextAttemptAt: number;
 }
 
+/** The files' bytes and details are sealed with the tablet's data key; only ids stay plain. */
+export const SEALED_ATTACHMENT_TABLES: Readonly<Record<string, TableSealing>> = {
+  files: { plain: ['attachmentId', 'sha256'], binary: 'bytes' },
+};
+
 export class AttachmentDb extends Dexie {
   files!: EntityTable<AttachmentFile, 'attachmentId'>;
   transfers!: EntityTable<AttachmentTransfer, 'attachmentId'>;
 
-  constructor(name = 'fuselight-attachments') {
+  constructor(name = 'fuselight-attachments', vault: DataKeyVault = tabletVault) {
     super(name);
+    this.use(sealingMiddleware(vault, SEALED_ATTACHMENT_TABLES));
     this.version(1).stores({
       files: 'attachmentId, sha256',
       transfers: 'attachmentId, state, nextAttemptAt',

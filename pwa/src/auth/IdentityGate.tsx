@@ -17,12 +17,17 @@ export function IdentityGate({
   loading: ReactNode;
   children: ReactNode;
 }) {
-  const { loaded, erasure } = useAuthState();
+  const { loaded, erasure, activeUser } = useAuthState();
   const queryClient = useQueryClient();
   useEffect(() => {
     // Nothing read from the server may outlive an erasure in memory either.
     if (erasure) queryClient.clear();
   }, [erasure, queryClient]);
+  const someoneActive = activeUser !== null;
+  useEffect(() => {
+    // Locked, or handed to someone else: no patient data stays in the screens' cache.
+    if (!someoneActive) queryClient.clear();
+  }, [someoneActive, queryClient]);
   if (!loaded) return <>{loading}</>;
   if (erasure) return <>{erased(erasure)}</>;
   return <>{children}</>;
@@ -34,7 +39,9 @@ export function SignedOutLanding() {
   const location = useLocation();
   const target = people.some((p) => p.canUnlockWithPin) ? '/unlock' : '/signin';
   if (location.pathname === target) return null;
-  return <Navigate to={{ pathname: target, search: location.search }} replace />;
+  // The unlock screen goes back to the screen that was open (locked there, or reloaded).
+  const from = `${location.pathname}${location.search}`;
+  return <Navigate to={{ pathname: target, search: location.search }} state={{ from }} replace />;
 }
 
 /** Renders `children` only for roles that see `area`; others go to their own home. */

@@ -13,6 +13,7 @@ import {
 import { version as appVersion } from '../../package.json';
 // The sync engine itself is started by pwa/src/sync/SyncRuntime.tsx with SessionSyncAuth; it is
 // reached here through a dynamic import so that sign-in does not load it (bench:bundle).
+import { IdleTimer } from './session/idle-lock';
 import { SessionContext, type TabletSession } from './session-context';
 import { SessionStore, type AuthSnapshot } from './session-store';
 
@@ -47,6 +48,31 @@ export function SessionProvider({
 
   const enrolled = snapshot.tablet !== null;
   const retired = snapshot.tablet?.state === 'retired';
+
+  // The idle lock of a protected tablet (docs/threat-model.md): store.lock() does nothing on a
+  // tablet without key slots.
+  const someoneActive = snapshot.activeUser !== null;
+  const idleMinutes = snapshot.policy.idleLockMinutes;
+  useEffect(() => {
+    if (!background || !someoneActive) return;
+    const timer = new IdleTimer(() => Date.now(), idleMinutes * 60_000);
+    const activity = () => timer.activity();
+    const visibility = () => {
+      if (document.visibilityState === 'hidden') timer.hidden();
+      else if (timer.shown()) store.lock();
+    };
+    const check = setInterval(() => {
+      if (timer.due()) store.lock();
+    }, 15_000);
+    const events = ['pointerdown', 'keydown', 'touchstart', 'wheel'] as const;
+    for (const name of events) window.addEventListener(name, activity, { passive: true });
+    document.addEventListener('visibilitychange', visibility);
+    return () => {
+      clearInterval(check);
+      for (const name of events) window.removeEventListener(name, activity);
+      document.removeEventListener('visibilitychange', visibility);
+    };
+  }, [store, background, someoneActive, idleMinutes]);
   useEffect(() => {
     if (!background || !enrolled) return;
     const beat = () => {

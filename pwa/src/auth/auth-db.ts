@@ -33,14 +33,21 @@ export interface PersonSession {
   activeSiteId: string | null;
 }
 
-/** A PIN for offline unlock, as a PBKDF2 hash with a per-person salt. */
+/**
+ * A person's PIN for offline unlock. Since the tablet is protected, the PIN is checked by opening
+ * the person's key slot (pwa/src/data/crypto/key-slots.ts) and nothing about it is kept here but
+ * the wrong attempts. A PIN set before that still has its PBKDF2 hash (salt, hash, iterations)
+ * until its first unlock moves it into a key slot.
+ */
 export interface PinRecord {
   userId: string;
-  /** base64 */
-  salt: string;
-  /** base64 of the derived bits */
-  hash: string;
-  iterations: number;
+  /** The PIN opens this person's key slot. */
+  keySlot?: true;
+  /** base64 (a PIN set before the tablet was protected) */
+  salt?: string;
+  /** base64 of the derived bits (a PIN set before the tablet was protected) */
+  hash?: string;
+  iterations?: number;
   failedAttempts: number;
   setAt: number;
 }

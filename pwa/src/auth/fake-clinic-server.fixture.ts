@@ -184,6 +184,12 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
               .sort((a, b) => a.name.localeCompare(b.name)),
           );
         }
+        case 'GET /api/devices/me/key-share':
+          if (server.deviceState === 'revoked') return revoked();
+          if (server.offline) throw new TypeError('Failed to fetch');
+          if (!caller) return json(401, { message: 'Sign in first.' });
+          // The same 32 bytes for every person on this tablet, as the server derives them.
+          return json(200, { share: btoa(String.fromCharCode(...new Uint8Array(32).fill(7))) });
         case 'POST /api/devices/heartbeat':
           if (server.deviceState === 'revoked') return revoked();
           return caller ? json(201, { ok: true }) : json(401, { message: 'Sign in first.' });

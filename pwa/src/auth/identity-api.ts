@@ -181,6 +181,24 @@ export class IdentityApi {
     return this.request('GET', '/api/devices/me', { token });
   }
 
+  /**
+   * This tablet's share of its key protection (32 bytes, base64): the server derives it from its
+   * own secret and the tablet's id, and gives it only to a person signed in on the enrolled,
+   * unrevoked tablet. The tablet never stores it.
+   */
+  async keyShare(token: string): Promise<Uint8Array> {
+    const body = await this.request('GET', '/api/devices/me/key-share', { token });
+    const { share } = parseAnswer(
+      z.object({ share: z.base64() }),
+      body,
+      'GET /api/devices/me/key-share',
+    );
+    const bytes = Uint8Array.from(atob(share), (c) => c.charCodeAt(0));
+    if (bytes.length !== 32)
+      throw new Error('The clinic server sent a key share of the wrong length');
+    return bytes;
+  }
+
   heartbeat(token: string, report: { appVersion: string; outboxSize: number }): Promise<unknown> {
     return this.request('POST', '/api/devices/heartbeat', { token, body: report });
   }

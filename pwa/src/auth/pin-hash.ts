@@ -1,6 +1,8 @@
-// The offline-unlock PIN is stored only as PBKDF2-HMAC-SHA-256 with a random per-person salt
-// (WebCrypto). A 4–8 digit PIN has little entropy, so the slow hash and the attempt limit
-// (see session-store.ts) are what protect it; the PIN itself is never stored or logged.
+// What a PIN may be (at least 6 digits, or a passphrase), and the PBKDF2-HMAC-SHA-256 hash
+// that PINs set before the tablet was protected were stored as. Such a hash is only verified
+// once more, at the PIN's next unlock, which moves it into an argon2id key slot
+// (pwa/src/data/crypto/key-slots.ts) and deletes the hash. The PIN itself is never stored or
+// logged.
 import { z } from 'zod';
 
 /** OWASP's 2021 figure for PBKDF2-HMAC-SHA-256; the brief's floor is 100 000. */
@@ -8,9 +10,16 @@ export const PIN_HASH_ITERATIONS = 310_000;
 const SALT_BYTES = 16;
 const HASH_BITS = 256;
 
+/** The shortest passphrase accepted in place of a PIN. */
+export const PASSPHRASE_MIN_LENGTH = 12;
+
+export const PIN_RULE = `A PIN is at least 6 digits, or a passphrase of at least ${PASSPHRASE_MIN_LENGTH} characters`;
+
 export const pinSchema = z
-  .string({ error: 'Enter a PIN of 4 to 8 digits' })
-  .regex(/^\d{4,8}$/, { error: 'A PIN is 4 to 8 digits' });
+  .string({ error: 'Enter a PIN of at least 6 digits' })
+  .refine((value) => /^\d{6,}$/.test(value) || value.trim().length >= PASSPHRASE_MIN_LENGTH, {
+    error: PIN_RULE,
+  });
 
 export const pinSetupSchema = z
   .object({ pin: pinSchema, confirm: z.string() })
@@ -44,7 +53,6 @@ async function derive(
 }
 
 export async function hashPin(pin: string, iterations = PIN_HASH_ITERATIONS): Promise<PinHash> {
-  pinSchema.parse(pin);
   if (iterations < 100_000) throw new Error('PIN hashing needs at least 100 000 iterations');
   const salt = crypto.getRandomValues(new Uint8Array(SALT_BYTES));
   return { salt: toBase64(salt), hash: toBase64(await derive(pin, salt, iterations)), iterations };

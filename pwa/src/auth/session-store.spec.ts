@@ -1,4 +1,5 @@
 import { beforeEach, describe, expect, it } from 'vitest';
+import { FuselightDb } from '../data/db';
 import { AuthDb } from './auth-db';
 import {
   AMARA,
@@ -96,23 +97,36 @@ describe('offline unlock with a PIN', () => {
     expect(reloaded.getSnapshot().people[0]?.pinAttemptsLeft).toBe(3);
   });
 
-  it('stores only a salted PBKDF2 hash of the PIN, never the PIN', async () => {
+  it('stores nothing of the PIN but an argon2id key slot of at least 19 MiB and 2 passes', async () => {
     await enrolledWithPin('482913');
     const db = new AuthDb();
     const [row] = await db.pins.toArray();
     db.close();
-    expect(row?.iterations).toBeGreaterThanOrEqual(100_000);
+    expect(row).toMatchObject({ userId: AMARA.id, keySlot: true, failedAttempts: 0 });
+    expect(row?.hash).toBeUndefined();
     expect(JSON.stringify(row)).not.toContain('482913');
-    expect(atob(row!.salt)).toHaveLength(16);
+    const records = new FuselightDb();
+    const slots = await records.keySlots.toArray();
+    records.close();
+    // The person's slot, and the one an online sign-in opens with the server's share.
+    expect(slots.map((slot) => slot.id).sort()).toEqual([`pin:${AMARA.id}`, 'server']);
+    expect(slots.find((slot) => slot.kind === 'pin')?.kdf).toMatchObject({
+      name: 'argon2id',
+      iterations: 2,
+    });
+    expect(slots.find((slot) => slot.kind === 'pin')!.kdf!.memoryKiB).toBeGreaterThanOrEqual(
+      19 * 1024,
+    );
   });
 
-  it('refuses a PIN that is not 4 to 8 digits', async () => {
+  it('refuses a PIN shorter than 6 digits (a passphrase of 12 characters is taken)', async () => {
     const { store } = setUp();
     await store.load();
     await store.enrol('K7Q2M9XD');
     await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
-    await expect(store.setPin('12a4')).rejects.toThrow();
-    await expect(store.setPin('123')).rejects.toThrow();
+    await expect(store.setPin('12a4')).rejects.toThrow('A PIN is at least 6 digits');
+    await expect(store.setPin('12345')).rejects.toThrow('A PIN is at least 6 digits');
+    await expect(store.setPin('correct horse')).resolves.toBeUndefined();
   });
 });
 

@@ -11,6 +11,10 @@
 //   session/types.ts             the snapshot the screens read and the answers' types
 import type { LoginRequest, SessionUser } from '@fuselight/shared';
 import { AuthDb, type KnownColleague, type KnownSite } from './auth-db';
+import { getAttachmentDb, SEALED_ATTACHMENT_TABLES } from '../attachments/attachment-db';
+import { tabletVault } from '../data/crypto/data-key-vault';
+import { KeyRing } from '../data/crypto/key-ring';
+import { getDefaultDb, SEALED_TABLES } from '../data/db';
 import { IdentityApi, type SignInResponse } from './identity-api';
 import { countOutboxEntries, type OutboxCounter } from './outbox-count';
 import { PinLock } from './session/pin-lock';
@@ -42,11 +46,25 @@ export interface SessionStoreOptions {
   now?: () => number;
   countOutbox?: OutboxCounter;
   eraseDatabases?: () => Promise<unknown>;
-  pinIterations?: number;
+  /** The tablet's key slots (default: on the tablet's records and attachments databases). */
+  keyRing?: KeyRing;
+}
+
+/** The key ring of this tablet's own databases. */
+export function tabletKeyRing(): KeyRing {
+  return new KeyRing({
+    db: getDefaultDb,
+    sealed: () => [
+      { db: getDefaultDb(), tables: Object.keys(SEALED_TABLES) },
+      { db: getAttachmentDb(), tables: Object.keys(SEALED_ATTACHMENT_TABLES) },
+    ],
+    vault: tabletVault,
+  });
 }
 
 export class SessionStore {
   readonly api: IdentityApi;
+  readonly keyRing: KeyRing;
   private readonly state: SessionState;
   private readonly pinLock: PinLock;
   private readonly tokens: SessionTokens;
@@ -56,6 +74,7 @@ export class SessionStore {
 
   constructor(options: SessionStoreOptions = {}) {
     this.api = options.api ?? new IdentityApi();
+    this.keyRing = options.keyRing ?? tabletKeyRing();
     const now = options.now ?? (() => Date.now());
     this.state = new SessionState(
       options.db ?? (() => new AuthDb()),
@@ -67,7 +86,7 @@ export class SessionStore {
       db: () => this.state.db,
       now,
       publish: () => this.publish(),
-      ...(options.pinIterations === undefined ? {} : { iterations: options.pinIterations }),
+      keys: this.keyRing,
     });
     this.lifecycle = new TabletLifecycle(
       this.state,
@@ -75,6 +94,7 @@ export class SessionStore {
       this.pinLock,
       () => this.tokens,
       options.eraseDatabases ?? eraseAllDatabases,
+      this.keyRing,
     );
     this.tokens = new SessionTokens(this.state, this.api, (error) =>
       this.lifecycle.eraseIfTold(error),
@@ -143,13 +163,16 @@ export class SessionStore {
       db.sites.toArray(),
       db.colleagues.toArray(),
       this.pinLock.load(),
+      this.keyRing.load(),
     ]);
     state.sites = new Map(sites.map((site) => [site.id, site]));
     state.colleagues = new Map(colleagues.map((person) => [person.id, person]));
     state.tablet = tablet ?? null;
     state.people = new Map(people.map((p) => [p.userId, p]));
     const activeId = typeof active?.value === 'string' ? active.value : null;
-    state.activeUserId = activeId && state.people.has(activeId) ? activeId : null;
+    // A protected tablet starts locked: the data key is in no one's memory after a reload.
+    const locked = this.keyRing.vault.isProtected && !this.keyRing.vault.unlocked;
+    state.activeUserId = activeId && state.people.has(activeId) && !locked ? activeId : null;
     for (const person of people) if (person.signInRequired) await state.countWaiting(person.userId);
     state.loaded = true;
     this.publish();
@@ -190,6 +213,7 @@ export class SessionStore {
     this.pinLock.noteAttemptsCleared(person.userId);
     state.waiting.delete(person.userId);
     state.activeUserId = person.userId;
+    await this.openKeyAfterSignIn(answer.accessToken);
     state.pinOfferFor = state.tablet && !this.pinLock.hasPin(person.userId) ? person.userId : null;
     this.publish();
     // The names are for showing only: the sign-in never waits for them or fails with them.
@@ -229,7 +253,8 @@ export class SessionStore {
         await db.people.delete(person.userId);
       }
     });
-    this.pinLock.noteRemoved(person.userId);
+    await this.pinLock.noteRemoved(person.userId);
+    this.keyRing.lock();
     if (waiting > 0) {
       state.people.set(person.userId, (await db.people.get(person.userId))!);
       state.waiting.set(person.userId, waiting);
@@ -237,6 +262,34 @@ export class SessionStore {
       state.people.delete(person.userId);
     }
     state.activeUserId = null;
+    this.publish();
+  }
+
+  /**
+   * After an online sign-in on an enrolled tablet: the server's share makes the tablet's data
+   * key (first sign-in), opens it when locked (a person new to this tablet, or one who typed too
+   * many wrong PINs), and is kept as a slot of its own when unlocked. Offline, or on a server
+   * without the share, nothing changes: the PIN of someone who has one still unlocks.
+   */
+  private async openKeyAfterSignIn(token: string | null): Promise<void> {
+    if (!this.state.tablet || !token) return;
+    try {
+      await this.keyRing.useServerShare(await this.api.keyShare(token));
+    } catch (error) {
+      await this.lifecycle.eraseIfTold(error);
+    }
+  }
+
+  /**
+   * Locks the tablet (idle, hidden for long, or asked): the data key and every plain value held
+   * in memory are dropped, and the unlock screen shows nothing clinical. Sessions, Outbox entries
+   * and everything stored stay; the PIN (or an online sign-in) unlocks again.
+   */
+  lock(): void {
+    if (!this.keyRing.vault.isProtected) return;
+    this.keyRing.lock();
+    this.state.activeUserId = null;
+    this.state.pinOfferFor = null;
     this.publish();
   }
 
@@ -251,6 +304,7 @@ export class SessionStore {
     this.state.activeUserId = null;
     this.state.pinOfferFor = null;
     await this.state.db.settings.delete(ACTIVE_KEY);
+    this.keyRing.lock();
     this.publish();
   }
 
@@ -282,6 +336,9 @@ export class SessionStore {
     await this.pinLock.setPin(person.userId, pin);
     this.state.pinOfferFor = null;
     this.publish();
+    // Keep the key under the server's share too (if the PIN made it), so that an online sign-in
+    // can always open it (another person, or too many wrong PINs).
+    await this.openKeyAfterSignIn(await this.tokens.tokenFor(person.userId));
   }
 
   async unlock(userId: string, pin: string): Promise<UnlockResult> {
@@ -292,6 +349,12 @@ export class SessionStore {
     state.activeUserId = userId;
     this.publish();
     this.refreshSites().catch(() => undefined);
+    // Online, a tablet whose key has no server slot yet (sealed before the server gave shares)
+    // gets one; offline this waits for the next unlock.
+    this.tokens
+      .tokenFor(userId)
+      .then((token) => this.openKeyAfterSignIn(token))
+      .catch(() => undefined);
     return result;
   }
 

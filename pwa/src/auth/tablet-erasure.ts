@@ -2,6 +2,7 @@
 // (records, Outbox, identity), and a short note of why is kept in localStorage so that the
 // screen can still say so after a reload. The note holds no personal data.
 import Dexie from 'dexie';
+import { tabletVault } from '../data/crypto/data-key-vault';
 
 const ERASURE_NOTE_KEY = 'fuselight.erasure';
 
@@ -17,6 +18,8 @@ export interface ErasureNote {
 export async function eraseAllDatabases(): Promise<string[]> {
   const names = await Dexie.getDatabaseNames();
   for (const name of names) await Dexie.delete(name);
+  // The key slots went with the databases: the key in memory is of no further use.
+  tabletVault.reset();
   return names;
 }
 

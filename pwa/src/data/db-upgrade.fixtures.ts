@@ -257,6 +257,11 @@ function unchanged(lived: LivedTables): FixtureTables {
   return { records: rows(lived.records), outbox: rows(lived.outbox), meta: rows(lived.meta) };
 }
 
+/** What the current build holds: the same rows, and (from version 5) no key slot yet. */
+function current(lived: LivedTables): FixtureTables {
+  return { ...unchanged(lived), keySlots: [] };
+}
+
 /** The search rows versions 2 and 3 kept beside the patients (dropped by version 4). */
 function searchRows(lived: LivedTables, withSite: boolean): FixtureRow[] {
   return lived.records
@@ -302,17 +307,21 @@ export const DEXIE_UPGRADE_FIXTURES: readonly DexieUpgradeFixture[] = [
         };
       }),
       meta: rows(lived.meta),
+      keySlots: [],
     }),
   },
   {
     version: 2,
     stored: (lived) => ({ ...unchanged(lived), patientSearch: searchRows(lived, true) }),
-    expected: unchanged,
+    expected: current,
   },
   {
     version: 3,
     stored: (lived) => ({ ...unchanged(lived), patientSearch: searchRows(lived, false) }),
-    expected: unchanged,
+    expected: current,
   },
-  { version: 4, stored: unchanged, expected: unchanged },
+  { version: 4, stored: unchanged, expected: current },
+  // Version 5 (key slots of a protected tablet): a database not yet sealed reads back as it is;
+  // sealing in place is tested in pwa/src/auth/protected-tablet.spec.ts.
+  { version: 5, stored: current, expected: current },
 ];

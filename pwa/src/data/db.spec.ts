@@ -23,7 +23,7 @@ describe('the tablet database', () => {
     const db = fresh();
     await db.open();
     expect(db.verno).toBe(DEXIE_SCHEMA_VERSION);
-    expect(db.tables.map((t) => t.name).sort()).toEqual(['meta', 'outbox', 'records']);
+    expect(db.tables.map((t) => t.name).sort()).toEqual(['keySlots', 'meta', 'outbox', 'records']);
   });
 
   it('writes a record and its outbox entry in one transaction, or neither', async () => {
@@ -107,7 +107,7 @@ describe('the tablet database', () => {
     expect((await db.meta.get('outboxSeq'))?.value).toBe(3);
     const record = await db.records.get(['patient', patientId] as unknown as string);
     expect(record?.serverFields).toEqual({});
-    expect(db.tables.map((t) => t.name).sort()).toEqual(['meta', 'outbox', 'records']);
+    expect(db.tables.map((t) => t.name).sort()).toEqual(['keySlots', 'meta', 'outbox', 'records']);
     // The patient is found by each of its terms, from the records themselves.
     const search = new RecordsRepository(db);
     for (const query of ['amara', 'okafor', 'fl-1', '2016-04-09']) {
@@ -192,7 +192,7 @@ describe('the tablet database', () => {
     ]);
     // Only the indexes something reads are left, and those still answer; the search rows are
     // gone with their table (version 4), and the patient is found from its record.
-    expect(db.tables.map((t) => t.name).sort()).toEqual(['meta', 'outbox', 'records']);
+    expect(db.tables.map((t) => t.name).sort()).toEqual(['keySlots', 'meta', 'outbox', 'records']);
     const indexes = (table: string) =>
       db
         .table(table)
@@ -311,9 +311,14 @@ describe('the tablet database', () => {
     const db = new FuselightDb(name);
     opened.push(db);
     await db.open();
-    expect(db.verno).toBe(4);
-    expect(db.tables.map((t) => t.name).sort()).toEqual(['meta', 'outbox', 'records']);
-    expect([...db.backendDB().objectStoreNames].sort()).toEqual(['meta', 'outbox', 'records']);
+    expect(db.verno).toBe(DEXIE_SCHEMA_VERSION);
+    expect(db.tables.map((t) => t.name).sort()).toEqual(['keySlots', 'meta', 'outbox', 'records']);
+    expect([...db.backendDB().objectStoreNames].sort()).toEqual([
+      'keySlots',
+      'meta',
+      'outbox',
+      'records',
+    ]);
     // Every record, Outbox entry and meta row reads back exactly as version 3 held it.
     expect(await db.records.toArray()).toEqual(
       [...rows].sort((a, b) =>

@@ -4,6 +4,10 @@
 import Dexie, { type EntityTable, type Transaction } from 'dexie';
 import type { CollectionName } from '@fuselight/shared';
 import { PatientDirectory } from './patient-directory';
+import { tabletVault, type DataKeyVault } from './crypto/data-key-vault';
+import type { KeySlot } from './crypto/key-slots';
+import { sealingMiddleware } from './crypto/sealing-middleware';
+import type { TableSealing } from './crypto/value-codec';
 
 /** Name of the tombstone pseudo-field in `pendingFields` and `serverFields`. */
 export const TOMBSTONE = 'deleted';
@@ -73,6 +77,18 @@ export interface MetaEntry {
 }
 
 /**
+ * What stays in the clear of each sealed table: the fields its indexes read, never a name, a
+ * date of birth, a clinic number or a finding (docs/threat-model.md). `meta` holds counters,
+ * clocks and cursors only, and `keySlots` holds wrapped keys.
+ */
+export const SEALED_TABLES: Readonly<Record<string, TableSealing>> = {
+  records: { plain: ['collection', 'id', 'version', 'fields.visitId', 'fields.patientId'] },
+  outbox: {
+    plain: ['changeId', 'seq', 'collection', 'recordId', 'state', 'authorId', 'createdAt'],
+  },
+};
+
+/**
  * One Dexie schema version as it shipped: its store declarations (Dexie's diff from the version
  * before) and the upgrade that moves the data of the version before it. Every version ever
  * shipped stays in DEXIE_SCHEMA_HISTORY: a tablet may open this build with any of them, and
@@ -121,19 +137,34 @@ export const DEXIE_SCHEMA_HISTORY: readonly DexieSchemaDeclaration[] = [
   // Version 4 drops the persisted search rows: the patient search is answered from memory
   // (patient-directory.ts), built from the patient records themselves. Nothing else changes.
   { version: 4, stores: { patientSearch: null } },
+  // Version 5 adds the key slots of the protected tablet. Nothing is rewritten on upgrade
+  // (there is no key yet): the first online sign-in or PIN afterwards makes the data key and
+  // seals every record and Outbox entry in place (crypto/seal-in-place.ts); until then values
+  // stay readable as they are.
+  { version: 5, stores: { keySlots: 'id, userId' } },
 ];
 
 export class FuselightDb extends Dexie {
   records!: EntityTable<StoredRecord, 'id'>;
   outbox!: EntityTable<OutboxEntry, 'changeId'>;
   meta!: EntityTable<MetaEntry, 'key'>;
+  /** The tablet's data key wrapped once per person (and once for the server's share). */
+  keySlots!: EntityTable<KeySlot, 'id'>;
   /** The patient search, held in memory and kept current by a middleware on this connection. */
   readonly patientDirectory: PatientDirectory;
 
-  constructor(name = 'fuselight') {
+  constructor(
+    name = 'fuselight',
+    readonly vault: DataKeyVault = tabletVault,
+  ) {
     super(name);
     this.patientDirectory = new PatientDirectory(this);
     this.use(this.patientDirectory.middleware());
+    this.use(sealingMiddleware(vault, SEALED_TABLES));
+    // A database with key slots is protected: nothing may be written to it in the clear.
+    this.on('ready', async () => {
+      if ((await this.keySlots.count()) > 0) vault.markProtected();
+    });
     this.on('close', () => this.patientDirectory.reset());
     for (const declaration of DEXIE_SCHEMA_HISTORY) {
       const version = this.version(declaration.version).stores(declaration.stores);

@@ -144,16 +144,18 @@ export class RecordsRepository {
     collection: C,
     filter: ListFilter = {},
   ): Promise<LocalRecord<C>[]> {
-    let query = this.db.records
+    // One query of the collection's range, filtered here: the records table is sealed
+    // (crypto/sealing-middleware.ts), so it is never walked with a cursor.
+    const all = await this.db.records
       .where('[collection+id]')
       .between(...collectionRange(collection), true, true)
-      .filter(
-        (record) =>
-          (filter.includeDeleted === true || !record.deleted) &&
-          (filter.siteId === undefined || record.fields.siteId === filter.siteId),
-      );
-    if (filter.limit !== undefined) query = query.limit(filter.limit);
-    return (await query.toArray()) as LocalRecord<C>[];
+      .toArray();
+    const kept = all.filter(
+      (record) =>
+        (filter.includeDeleted === true || !record.deleted) &&
+        (filter.siteId === undefined || record.fields.siteId === filter.siteId),
+    );
+    return (filter.limit === undefined ? kept : kept.slice(0, filter.limit)) as LocalRecord<C>[];
   }
 
   /** Records of a collection placed on one patient or visit (sections of a visit, visits of a patient). */

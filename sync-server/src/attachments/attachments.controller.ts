@@ -72,7 +72,8 @@ export class AttachmentsController {
   ): Promise<StreamableFile> {
     const file = await this.attachments.download(user, id);
     res.setHeader('ETag', `"${file.sha256}"`);
-    res.setHeader('Cache-Control', 'private, max-age=31536000, immutable');
+    // The tablet keeps the file sealed in its own store; the browser's cache must not hold it.
+    res.setHeader('Cache-Control', 'no-store');
     res.setHeader('X-Content-Type-Options', 'nosniff');
     return new StreamableFile(file.stream, { type: file.mimeType, length: file.byteSize });
   }

@@ -1,4 +1,4 @@
-import { Body, Controller, Get, HttpCode, Inject, Post, Req } from '@nestjs/common';
+import { Body, Controller, Get, Header, HttpCode, Inject, Post, Req } from '@nestjs/common';
 import { ApiOperation, ApiResponse, ApiTags } from '@nestjs/swagger';
 import type { Request } from 'express';
 import { ApiSignedIn, ApiZodBody } from '../auth/api-docs';
@@ -40,6 +40,19 @@ export class DevicesController {
   @ApiResponse({ status: 200, description: '{ deviceId, label, state, siteIds }' })
   heartbeat(@CurrentUser() user: AuthUser, @Body() body: HeartbeatBody): Promise<DeviceSelfView> {
     return this.devices.heartbeat(user, body);
+  }
+
+  @Get('me/key-share')
+  @DeviceBound()
+  @ApiSignedIn()
+  @Header('Cache-Control', 'no-store')
+  @ApiOperation({
+    summary: 'This tablet’s key share: an online sign-in opens its locked data key with it',
+  })
+  @ApiResponse({ status: 200, description: '{ share } (32 bytes, base64)' })
+  @ApiResponse({ status: 403, description: 'Not a session on an enrolled, unrevoked tablet' })
+  keyShare(@CurrentUser() user: AuthUser): Promise<{ share: string }> {
+    return this.devices.keyShare(user);
   }
 
   @Get('me')

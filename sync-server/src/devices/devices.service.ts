@@ -6,6 +6,7 @@ import { EntityManager } from '@mikro-orm/postgresql';
 import {
   BadRequestException,
   ConflictException,
+  ForbiddenException,
   Inject,
   Injectable,
   NotFoundException,
@@ -248,6 +249,19 @@ export class DevicesService {
       await em.flush();
       return this.selfView(device, caller);
     });
+  }
+
+  /**
+   * The calling tablet's key share (docs/threat-model.md): its data key is also wrapped under
+   * it, so an online sign-in opens a locked tablet (a person new to it, or too many wrong PINs)
+   * and nothing is lost. Not given to a revoked tablet.
+   */
+  async keyShare(caller: AuthUser): Promise<{ share: string }> {
+    const device = await this.find(this.em.fork(), caller.deviceId ?? '');
+    if (device.state === 'revoked') {
+      throw new ForbiddenException('This tablet was revoked; its key share is not given out.');
+    }
+    return { share: this.secrets.tabletKeyShare(this.config.jwtSecret, device.id) };
   }
 
   async self(caller: AuthUser): Promise<DeviceSelfView> {

@@ -1,9 +1,12 @@
 import { afterEach, describe, expect, it } from 'vitest';
+import { DataKeyVault } from '../../data/crypto/data-key-vault';
+import { KeyRing } from '../../data/crypto/key-ring';
+import { FuselightDb } from '../../data/db';
 import { AuthDb, type PersonSession } from '../auth-db';
 import { PinLock } from './pin-lock';
 
 const HOUR = 3_600_000;
-const opened: AuthDb[] = [];
+const opened: Array<AuthDb | FuselightDb> = [];
 
 afterEach(async () => {
   for (const db of opened.splice(0)) {
@@ -14,7 +17,13 @@ afterEach(async () => {
 
 function setUp() {
   const db = new AuthDb(`pin-lock-${crypto.randomUUID()}`);
-  opened.push(db);
+  const records = new FuselightDb(`pin-lock-records-${crypto.randomUUID()}`, new DataKeyVault());
+  opened.push(db, records);
+  const keys = new KeyRing({
+    db: () => records,
+    sealed: () => [{ db: records, tables: ['records', 'outbox'] }],
+    vault: records.vault,
+  });
   const clock = { now: Date.UTC(2026, 11, 1, 8, 0) };
   let published = 0;
   const lock = new PinLock({
@@ -23,24 +32,30 @@ function setUp() {
     publish: () => {
       published += 1;
     },
+    keys,
   });
   const person = {
     userId: 'amara',
     confirmedAt: clock.now,
     signInRequired: null,
   } as unknown as PersonSession;
-  return { db, clock, lock, person, published: () => published };
+  return { db, records, keys, clock, lock, person, published: () => published };
 }
 
 describe('the PIN lock on its own', () => {
   it('unlocks with the right PIN, keeps it hashed, and survives a reload from the database', async () => {
-    const { db, lock, person, clock } = setUp();
+    const { db, lock, person, clock, keys } = setUp();
     await lock.setPin('amara', '482913');
     const stored = await db.pins.get('amara');
     expect(JSON.stringify(stored)).not.toContain('482913');
     expect(await lock.check('amara', person, '482913', true)).toEqual({ ok: true });
 
-    const again = new PinLock({ db: () => db, now: () => clock.now, publish: () => undefined });
+    const again = new PinLock({
+      db: () => db,
+      now: () => clock.now,
+      publish: () => undefined,
+      keys,
+    });
     await again.load();
     expect(again.hasPin('amara')).toBe(true);
     expect(again.status(person, true)).toMatchObject({ hasPin: true, canUnlockWithPin: true });
@@ -84,13 +99,13 @@ describe('the PIN lock on its own', () => {
 
   it('ignores a policy out of range and forgets everything when cleared', async () => {
     const { lock } = setUp();
-    await lock.setPolicy({ offlineUnlockHours: 0, maxPinAttempts: 0.5 });
-    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5 });
-    await lock.setPolicy({ offlineUnlockHours: 8, maxPinAttempts: 3.7 });
-    expect(lock.policy).toEqual({ offlineUnlockHours: 8, maxPinAttempts: 3 });
+    await lock.setPolicy({ offlineUnlockHours: 0, maxPinAttempts: 0.5, idleLockMinutes: 0 });
+    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5, idleLockMinutes: 5 });
+    await lock.setPolicy({ offlineUnlockHours: 8, maxPinAttempts: 3.7, idleLockMinutes: 2 });
+    expect(lock.policy).toEqual({ offlineUnlockHours: 8, maxPinAttempts: 3, idleLockMinutes: 2 });
     await lock.setPin('amara', '482913');
     lock.clear();
     expect(lock.hasPin('amara')).toBe(false);
-    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5 });
+    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5, idleLockMinutes: 5 });
   });
 });

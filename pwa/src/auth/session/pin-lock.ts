@@ -1,10 +1,12 @@
-// The PIN lock: each person's PIN (hashed, never stored as typed), their wrong attempts, and the
-// clinic's unlock policy (how long after the server last saw someone their PIN still unlocks
-// the tablet offline, and how many wrong PINs are allowed). It keeps its own state and its own
-// rows of the auth database (the pins table and the policy setting); the session store asks it
-// whether a PIN unlocks and makes the person active itself.
+// The PIN lock: each person's PIN (it opens their key slot of the tablet's data key; nothing
+// else about it is stored), their wrong attempts, and the clinic's unlock policy (how long after
+// the server last saw someone their PIN still unlocks the tablet offline, and how many wrong PINs
+// are allowed). A wrong PIN only counts: it never erases anything. It keeps its own rows of the
+// auth database (the pins table and the policy setting); the session store asks it whether a PIN
+// unlocks and makes the person active itself.
 import type { AuthDb, PersonSession, PinRecord } from '../auth-db';
-import { PIN_HASH_ITERATIONS, hashPin, pinSchema, verifyPin } from '../pin-hash';
+import { KeyUnavailableError, type KeyRing } from '../../data/crypto/key-ring';
+import { pinSchema, verifyPin } from '../pin-hash';
 import {
   DEFAULT_UNLOCK_POLICY,
   type KnownPerson,
@@ -21,7 +23,8 @@ export interface PinLockOptions {
   now: () => number;
   /** Rebuilds the session snapshot and tells its listeners. */
   publish: () => void;
-  iterations?: number;
+  /** The tablet's key slots: a PIN is set by wrapping the data key under it. */
+  keys: Pick<KeyRing, 'addPinSlot' | 'unlockWithPin' | 'removePinSlot'>;
 }
 
 export type PinStatus = Pick<
@@ -32,11 +35,8 @@ export type PinStatus = Pick<
 export class PinLock {
   private pins = new Map<string, PinRecord>();
   private current: UnlockPolicy = DEFAULT_UNLOCK_POLICY;
-  private readonly iterations: number;
 
-  constructor(private readonly options: PinLockOptions) {
-    this.iterations = options.iterations ?? PIN_HASH_ITERATIONS;
-  }
+  constructor(private readonly options: PinLockOptions) {}
 
   get policy(): UnlockPolicy {
     return this.current;
@@ -73,13 +73,63 @@ export class PinLock {
     };
   }
 
-  /** Sets a person's PIN, with no wrong attempts. */
+  /** Sets a person's PIN (a key slot wrapped under it), with no wrong attempts. */
   async setPin(userId: string, pin: string): Promise<void> {
     pinSchema.parse(pin);
-    const hashed = await hashPin(pin, this.iterations);
-    const record: PinRecord = { userId, ...hashed, failedAttempts: 0, setAt: this.options.now() };
+    await this.options.keys.addPinSlot(userId, pin);
+    const record: PinRecord = {
+      userId,
+      keySlot: true,
+      failedAttempts: 0,
+      setAt: this.options.now(),
+    };
     await this.options.db().pins.put(record);
     this.pins.set(userId, record);
+  }
+
+  /** Whether `pin` is right: it opens the person's key slot (or, once, their old PIN hash). */
+  private async verify(record: PinRecord, pin: string): Promise<'right' | 'wrong' | UnlockFailure> {
+    if (record.keySlot) {
+      const opened = await this.options.keys.unlockWithPin(record.userId, pin);
+      if (opened === 'no-slot') {
+        return fail(
+          'no-pin',
+          'Your PIN no longer opens this tablet; sign in with your password and set it again.',
+          0,
+        );
+      }
+      return opened === 'unlocked' ? 'right' : 'wrong';
+    }
+    // A PIN set before the tablet was protected: its hash is checked one last time, and the PIN
+    // moves into a key slot (the hash is deleted).
+    const { salt, hash, iterations } = record;
+    if (salt === undefined || hash === undefined || iterations === undefined) return 'wrong';
+    if (!(await verifyPin(pin, { salt, hash, iterations }))) return 'wrong';
+    if (!pinSchema.safeParse(pin).success) {
+      await this.options.db().pins.delete(record.userId);
+      this.pins.delete(record.userId);
+      this.options.publish();
+      return fail(
+        'no-pin',
+        'PINs are now at least 6 digits. Sign in with your password once, then choose a new PIN.',
+        0,
+      );
+    }
+    try {
+      await this.options.keys.addPinSlot(record.userId, pin);
+    } catch (error) {
+      if (!(error instanceof KeyUnavailableError)) throw error;
+      return fail('locked-out', `${error.message}`, 0);
+    }
+    const moved: PinRecord = {
+      userId: record.userId,
+      keySlot: true,
+      failedAttempts: record.failedAttempts,
+      setAt: record.setAt,
+    };
+    await this.options.db().pins.put(moved);
+    this.pins.set(record.userId, moved);
+    return 'right';
   }
 
   /**
@@ -121,7 +171,9 @@ export class PinLock {
         maxPinAttempts - record.failedAttempts,
       );
     }
-    if (!(await verifyPin(pin, record))) {
+    const verdict = await this.verify(record, pin);
+    if (typeof verdict === 'object') return verdict;
+    if (verdict === 'wrong') {
       const failedAttempts = record.failedAttempts + 1;
       await this.options.db().pins.update(userId, { failedAttempts });
       this.pins.set(userId, { ...record, failedAttempts });
@@ -136,7 +188,7 @@ export class PinLock {
           );
     }
     await this.options.db().pins.update(userId, { failedAttempts: 0 });
-    this.pins.set(userId, { ...record, failedAttempts: 0 });
+    this.pins.set(userId, { ...(this.pins.get(userId) ?? record), failedAttempts: 0 });
     return { ok: true };
   }
 
@@ -156,9 +208,13 @@ export class PinLock {
     await this.options.db().pins.delete(userId);
   }
 
-  /** Forgets a person's PIN in memory, once the database write has committed. */
-  noteRemoved(userId: string): void {
+  /**
+   * Forgets a person's PIN in memory, once the database write has committed, and their key slot
+   * (kept when it is the tablet's last way to the data key, so nothing becomes unreadable).
+   */
+  async noteRemoved(userId: string): Promise<void> {
     this.pins.delete(userId);
+    await this.options.keys.removePinSlot(userId);
   }
 
   /** Takes the clinic's policy; values out of range are ignored. */
@@ -169,6 +225,13 @@ export class PinLock {
     }
     if (policy.maxPinAttempts !== undefined && policy.maxPinAttempts >= 1) {
       next.maxPinAttempts = Math.floor(policy.maxPinAttempts);
+    }
+    if (
+      policy.idleLockMinutes !== undefined &&
+      policy.idleLockMinutes >= 1 &&
+      policy.idleLockMinutes <= 60
+    ) {
+      next.idleLockMinutes = policy.idleLockMinutes;
     }
     this.current = next;
     await this.options.db().settings.put({ key: POLICY_KEY, value: next });
@@ -181,10 +244,12 @@ export class PinLock {
   }
 }
 
+type UnlockFailure = Exclude<UnlockResult, { ok: true }>;
+
 function fail(
-  reason: Exclude<UnlockResult, { ok: true }>['reason'],
+  reason: UnlockFailure['reason'],
   message: string,
   attemptsLeft: number,
-): UnlockResult {
+): UnlockFailure {
   return { ok: false, reason, message, attemptsLeft };
 }

@@ -1,6 +1,7 @@
 // The enrolled tablet's standing with the clinic: enrolment, the server's word on it (its
 // unlock policy; retired: send what is left, then erase), the heartbeat, and erasure when the
 // clinic revokes or retires it (every database erased, a note kept to say why).
+import type { KeyRing } from '../../data/crypto/key-ring';
 import type { TabletCredentials } from '../auth-db';
 import { ApiError, NetworkError, type IdentityApi } from '../identity-api';
 import {
@@ -22,6 +23,7 @@ export class TabletLifecycle {
     private readonly pinLock: PinLock,
     private readonly tokens: () => SessionTokens,
     private readonly eraseDatabases: () => Promise<unknown>,
+    private readonly keyRing: Pick<KeyRing, 'destroySlots'>,
   ) {}
 
   async enrol(code: string): Promise<void> {
@@ -114,6 +116,13 @@ export class TabletLifecycle {
   private async doErase(cause: ErasureCause, message: string): Promise<void> {
     const state = this.state;
     const note: ErasureNote = { cause, message, at: state.now() };
+    // Crypto-erase first: with every key slot gone the sealed data is unreadable at once, even
+    // if deleting the databases is cut short.
+    try {
+      await this.keyRing.destroySlots();
+    } catch {
+      // The records database may be gone already; deleting the databases below covers it.
+    }
     state.db.close();
     await this.eraseDatabases();
     writeErasureNote(note);

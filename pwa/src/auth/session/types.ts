@@ -8,8 +8,14 @@ export interface UnlockPolicy {
   offlineUnlockHours: number;
   /** Wrong PINs allowed before a full online sign-in is required. */
   maxPinAttempts: number;
+  /** Minutes without a touch or a key (or hidden) after which a protected tablet locks. */
+  idleLockMinutes: number;
 }
-export const DEFAULT_UNLOCK_POLICY: UnlockPolicy = { offlineUnlockHours: 72, maxPinAttempts: 5 };
+export const DEFAULT_UNLOCK_POLICY: UnlockPolicy = {
+  offlineUnlockHours: 72,
+  maxPinAttempts: 5,
+  idleLockMinutes: 5,
+};
 
 export interface KnownPerson {
   user: SessionUser;

@@ -43,7 +43,7 @@ export default function PinSetupScreen() {
       </p>
       <form noValidate aria-label="Set a PIN" onSubmit={handleSubmit((form) => save.mutate(form))}>
         <TextField
-          label="New PIN (4 to 8 digits)"
+          label="New PIN (at least 6 digits)"
           type="password"
           inputMode="numeric"
           autoComplete="off"

@@ -24,7 +24,7 @@ async function tabletWithTwoPeople() {
   await store.load();
   await store.enrol(server.enrolmentCode);
   await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
-  await store.setPin('5151');
+  await store.setPin('515151');
   await store.switchPerson();
   await store.signIn({ email: TOMASZ.email, password: PASSWORDS[TOMASZ.email]! });
   await store.switchPerson();
@@ -46,7 +46,7 @@ async function tabletWithTwoPeople() {
 describe('the person switcher', () => {
   it('names each person’s sites as the server named them', async () => {
     const store = await tabletWithTwoPeople();
-    await store.unlock(AMARA.id, '5151');
+    await store.unlock(AMARA.id, '515151');
     await store.refreshSites();
     await store.switchPerson();
     const people = screen.getByRole('list', { name: 'People on this tablet' });
@@ -68,12 +68,12 @@ describe('the person switcher', () => {
       (await screen.findByRole('link', { name: 'Sign in as Tomasz Okonjo' })).getAttribute('href'),
     ).toBe(`/signin?email=${encodeURIComponent(TOMASZ.email)}`);
     await user.click(screen.getByRole('button', { name: 'Unlock as Amara Lindqvist' }));
-    await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '9999');
+    await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '999999');
     await user.click(screen.getByRole('button', { name: 'Unlock' }));
     await waitFor(() =>
       expect(screen.getByRole('alert').textContent).toBe('That PIN is not right. 4 attempts left.'),
     );
-    await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '5151');
+    await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '515151');
     await user.click(screen.getByRole('button', { name: 'Unlock' }));
     await waitFor(() => expect(document.body.textContent).toBe('Home'));
     expect(store.getSnapshot().activeUser?.id).toBe(AMARA.id);

@@ -1,13 +1,14 @@
 // The person switcher on a shared tablet: everyone who signed in here, unlocked with their PIN
 // (offline too, within the clinic's window) or by signing in again.
 import { useState, type FormEvent } from 'react';
-import { Link, useNavigate } from 'react-router-dom';
+import { Link, useLocation, useNavigate } from 'react-router-dom';
 import type { KnownPerson } from '../../auth/session-store';
 import { useAuthState } from '../../auth/SessionProvider';
 import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Notice, TextField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
+import { PIN_RULE, pinSchema } from '../../auth/pin-hash';
 
 function whyNoPin(person: KnownPerson): string {
   if (person.signInRequired) return person.signInRequired.reason;
@@ -20,6 +21,8 @@ export default function UnlockScreen() {
   const { people, loaded, sites } = useAuthState();
   const actions = useAuthActions();
   const navigate = useNavigate();
+  // Locked while on a screen (idle, or a reload): unlocking goes back to it.
+  const from = (useLocation().state as { from?: string } | null)?.from;
   const [chosen, setChosen] = useState<string | null>(null);
   const [pin, setPin] = useState('');
   const [message, setMessage] = useState<string | null>(null);
@@ -29,15 +32,18 @@ export default function UnlockScreen() {
   const submit = async (event: FormEvent) => {
     event.preventDefault();
     if (!person) return;
-    if (!/^\d{4,8}$/.test(pin)) {
-      setMessage('A PIN is 4 to 8 digits');
+    if (!pinSchema.safeParse(pin).success) {
+      setMessage(PIN_RULE);
       return;
     }
     setBusy(true);
     const result = await actions.unlock(person.user.id, pin);
     setBusy(false);
     setPin('');
-    if (result.ok) navigate('/', { replace: true });
+    if (result.ok)
+      navigate(from?.startsWith('/') && !from.startsWith('/unlock') ? from : '/', {
+        replace: true,
+      });
     else setMessage(result.message);
   };
 
