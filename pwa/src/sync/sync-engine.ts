@@ -9,7 +9,9 @@
 // - sync-transport.ts: requests, time-outs and the words of a failure;
 // - push-batches.ts: sending the Outbox in batches, each under its author's session;
 // - pull-pages.ts: receiving pages after the cursor, with the full re-pull bookkeeping;
-// - data/outbox-transitions.ts and local-apply.ts: what the answers do to the database.
+// - data/outbox-transitions.ts and local-apply.ts: what the answers do to the database;
+// - tab-leadership.ts and sync-tabs.ts: with several tabs open, one leads and syncs, and the
+//   others follow (their "Sync now" asks the leader; their status is the leader's).
 import {
   MAX_CHANGES_PER_PUSH,
   MAX_PULL_LIMIT,
@@ -26,6 +28,8 @@ import { OutboxPusher } from './push-batches';
 import type { SyncAuth } from './sync-auth';
 import { SyncSchedule, browserNetwork, type NetworkMonitor } from './sync-schedule';
 import { SyncStatusStore, type SyncStatus } from './sync-status';
+import type { SyncLeadership } from './tab-leadership';
+import type { TabChannel, TabMessage } from './sync-tabs';
 import { emptyTimings, type SyncTimings } from './sync-timings';
 import {
   BlockedSyncError,
@@ -72,6 +76,13 @@ export interface SyncEngineOptions {
    * failures are its own and never the sync's.
    */
   afterSync?: () => Promise<unknown>;
+  /**
+   * Several tabs of the app on one tablet: the engine syncs only while its tab leads, and
+   * follows the leader otherwise. Absent: it always syncs (one tab, tests).
+   */
+  leadership?: SyncLeadership;
+  /** Messages to the other tabs' engines (the leader's status, "Sync now" and its outcome). */
+  tabChannel?: TabChannel | null;
 }
 
 export type SyncOutcome =
@@ -111,6 +122,12 @@ export class SyncEngine {
   private readonly puller: PagePuller;
   private afterSyncRun: Promise<void> | null = null;
   private afterSyncAgain = false;
+  private releaseLeadership: (() => void) | null = null;
+  private readonly untilStop: Array<() => void> = [];
+  /** A following tab's "Sync now" requests that wait for the leader's outcome. */
+  private readonly awaitingLeader = new Map<string, (outcome: SyncOutcome) => void>();
+  private followTimer: unknown = null;
+  private readonly timers: SyncTimers;
   /** Timings of the last sync. */
   lastTimings: SyncTimings | null = null;
 
@@ -119,6 +136,7 @@ export class SyncEngine {
     const clock = options.clock ?? { now: () => Date.now() };
     const timers = options.timers ?? defaultTimers;
     this.clock = clock;
+    this.timers = timers;
     this.network = options.network ?? browserNetwork();
     this.status = new SyncStatusStore({ configured: true, online: this.network.isOnline() });
     const status = this.status;
@@ -168,25 +186,153 @@ export class SyncEngine {
     return this.options.db;
   }
 
-  /** Starts the background schedule: a sync now, on reconnect, and every interval while online. */
+  /**
+   * Starts the background schedule: a sync now, on reconnect, and every interval while online.
+   * With several tabs, the schedule runs only while this tab leads.
+   */
   start(): void {
+    const { leadership, tabChannel } = this.options;
+    if (!leadership) {
+      this.startSchedule();
+      return;
+    }
+    if (this.releaseLeadership) return;
+    this.status.update({ tabRole: 'following' });
+    if (tabChannel) {
+      this.untilStop.push(tabChannel.subscribe((message) => this.onTabMessage(message)));
+      tabChannel.post({ kind: 'status-wanted' });
+    }
+    this.untilStop.push(
+      subscribeDataChanges((change) => {
+        if (change.outbox && this.status.getSnapshot().tabRole === 'following') {
+          void this.refreshCounts();
+        }
+      }),
+    );
+    this.follow();
+    this.releaseLeadership = leadership.campaign({
+      onLead: () => this.lead(),
+      onLose: () => this.follow(),
+    });
+  }
+
+  stop(): void {
+    this.schedule.stop();
+    this.clearFollowTimer();
+    this.releaseLeadership?.();
+    this.releaseLeadership = null;
+    for (const undo of this.untilStop.splice(0)) undo();
+    for (const resolve of this.awaitingLeader.values()) {
+      resolve({
+        kind: 'failed',
+        message: 'Sync stopped in this tab before the other tab answered',
+      });
+    }
+    this.awaitingLeader.clear();
+  }
+
+  /** "Sync now": runs a sync (or joins the one running and runs once more after it). */
+  syncNow(): Promise<SyncOutcome> {
+    const channel = this.options.tabChannel;
+    if (this.status.getSnapshot().tabRole !== 'following' || !channel) {
+      return this.schedule.syncNow();
+    }
+    // Another tab syncs this tablet: ask it, and hear how it went.
+    const requestId = `${this.clock.now()}-${Math.random().toString(36).slice(2)}`;
+    return new Promise<SyncOutcome>((resolve) => {
+      this.awaitingLeader.set(requestId, resolve);
+      channel.post({ kind: 'sync-now', requestId });
+    });
+  }
+
+  /** Whether this engine's tab syncs the tablet now (alone or leading the tabs). */
+  get syncsHere(): boolean {
+    return this.status.getSnapshot().tabRole !== 'following';
+  }
+
+  private startSchedule(): void {
     this.schedule.start(
       [
         subscribeDataChanges((change) => {
           if (change.outbox) void this.refreshCounts();
         }),
+        this.status.subscribe(() => this.announceStatus()),
       ],
       () => void this.loadPersistedStatus(),
     );
   }
 
-  stop(): void {
-    this.schedule.stop();
+  /** This tab leads: it syncs, tells the followers, and answers the "Sync now" left waiting. */
+  private lead(): void {
+    this.clearFollowTimer();
+    this.status.update({ tabRole: 'leading' });
+    this.startSchedule();
+    this.options.tabChannel?.post({ kind: 'leading' });
+    this.announceStatus();
+    for (const [requestId, resolve] of [...this.awaitingLeader]) {
+      this.awaitingLeader.delete(requestId);
+      void this.schedule.syncNow().then(resolve);
+    }
   }
 
-  /** "Sync now": runs a sync (or joins the one running and runs once more after it). */
-  syncNow(): Promise<SyncOutcome> {
-    return this.schedule.syncNow();
+  /**
+   * This tab follows: no push, no pull. Its status is the leader's (sync-tabs.ts); the counts
+   * and the last sync are also read from the database now and then, for browsers without a
+   * channel between tabs.
+   */
+  private follow(): void {
+    this.schedule.stop();
+    this.status.update({ tabRole: 'following', phase: 'idle', progress: null });
+    const look = () => {
+      this.followTimer = null;
+      void this.loadPersistedStatus().catch(() => undefined);
+      this.followTimer = this.timers.setTimeout(look, this.options.intervalMs ?? 30_000);
+    };
+    this.clearFollowTimer();
+    look();
+  }
+
+  private clearFollowTimer(): void {
+    if (this.followTimer !== null) this.timers.clearTimeout(this.followTimer);
+    this.followTimer = null;
+  }
+
+  private announceStatus(): void {
+    const channel = this.options.tabChannel;
+    if (!channel || this.status.getSnapshot().tabRole !== 'leading') return;
+    channel.post({ kind: 'status', status: this.status.getSnapshot() });
+  }
+
+  private onTabMessage(message: TabMessage): void {
+    const role = this.status.getSnapshot().tabRole;
+    switch (message.kind) {
+      case 'status':
+        if (role === 'following') {
+          this.status.update({ ...message.status, configured: true, tabRole: 'following' });
+        }
+        return;
+      case 'leading':
+        // A new leader: whatever this tab asked of the old one is asked again.
+        for (const requestId of this.awaitingLeader.keys()) {
+          this.options.tabChannel?.post({ kind: 'sync-now', requestId });
+        }
+        return;
+      case 'status-wanted':
+        this.announceStatus();
+        return;
+      case 'sync-now':
+        if (role !== 'leading') return;
+        void this.schedule.syncNow().then((outcome) => {
+          this.options.tabChannel?.post({ kind: 'outcome', requestId: message.requestId, outcome });
+        });
+        return;
+      case 'outcome': {
+        const resolve = this.awaitingLeader.get(message.requestId);
+        this.awaitingLeader.delete(message.requestId);
+        resolve?.(message.outcome);
+        return;
+      }
+    }
   }
 
   /** Reads what the status keeps across reloads (last sync, a full re-pull) and the counts. */

@@ -5,6 +5,12 @@ import type { FullRepull } from './full-repull';
 
 export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
 
+/**
+ * This tab's part in syncing the tablet (tab-leadership.ts): it syncs alone (one tab, or no
+ * leadership asked for), it leads the tabs, or it follows another tab that syncs.
+ */
+export type TabRole = 'alone' | 'leading' | 'following';
+
 export interface SyncProgress {
   step: 'push' | 'pull';
   /** Changes sent, or records received so far. */
@@ -31,6 +37,7 @@ export interface SyncStatus {
   consecutiveFailures: number;
   /** A pull from the start the server asked for: under way (finishedAt null) or the last one done. */
   fullRepull: FullRepull | null;
+  tabRole: TabRole;
 }
 
 export const INITIAL_SYNC_STATUS: SyncStatus = {
@@ -47,6 +54,7 @@ export const INITIAL_SYNC_STATUS: SyncStatus = {
   nextAttemptAt: null,
   consecutiveFailures: 0,
   fullRepull: null,
+  tabRole: 'alone',
 };
 
 export class SyncStatusStore {
