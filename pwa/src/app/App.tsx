@@ -23,6 +23,7 @@ import {
 import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
+import { StorageWarningBanner } from '../components/StorageWarningBanner';
 import { SyncIndicator } from '../components/SyncIndicator';
 import { UpdatePrompt } from '../components/UpdatePrompt';
 import { canSee } from '../auth/access';
@@ -181,19 +182,25 @@ export function App() {
   return (
     <QueryClientProvider client={queryClient}>
       <SessionProvider>
-        <IonApp>
-          <IonReactRouter>
-            <IdentityGate
-              loading={<Loading />}
-              erased={(note) => screen(<TabletErasedScreen note={note} />)}
-            >
-              <AppTabs />
-            </IdentityGate>
-            <SignInPrompt />
-            <SyncRuntime />
-          </IonReactRouter>
-          <UpdatePrompt />
-        </IonApp>
+        {/* The storage warning sits above the Ionic app in the flow, on every screen. */}
+        <div className="fl-shell">
+          <StorageWarningBanner />
+          <div className="fl-shell-app">
+            <IonApp>
+              <IonReactRouter>
+                <IdentityGate
+                  loading={<Loading />}
+                  erased={(note) => screen(<TabletErasedScreen note={note} />)}
+                >
+                  <AppTabs />
+                </IdentityGate>
+                <SignInPrompt />
+                <SyncRuntime />
+              </IonReactRouter>
+              <UpdatePrompt />
+            </IonApp>
+          </div>
+        </div>
       </SessionProvider>
     </QueryClientProvider>
   );

@@ -82,6 +82,8 @@ export interface DeviceStatus {
   /** Optional clinic policy the server may send for offline unlock. */
   offlineUnlockHours?: number;
   maxPinAttempts?: number;
+  /** The clinic setting: hours unsynced edits may wait before the tablet warns on every screen. */
+  unsyncedWarningHours?: number;
 }
 
 export interface NewPerson {

@@ -20,6 +20,7 @@ import {
 } from '@fuselight/shared';
 import type { FuselightDb, OutboxEntry } from '../data/db';
 import { subscribeDataChanges } from '../data/data-events';
+import { isQuotaExceeded } from '../data/storage-full';
 import type { BackoffPolicy } from './backoff';
 import { readFullRepull } from './full-repull';
 import { LAST_SYNCED_KEY } from './local-apply';
@@ -84,6 +85,10 @@ export interface SyncEngineOptions {
   /** Messages to the other tabs' engines (the leader's status, "Sync now" and its outcome). */
   tabChannel?: TabChannel | null;
 }
+
+/** A pull page or push result the browser refused to store for lack of space. */
+export const STORAGE_FULL_SYNC_WORDS =
+  'This tablet’s storage is full, so what the server sent could not be stored. Nothing in the Outbox was lost; free space on the tablet and sync again.';
 
 export type SyncOutcome =
   | { kind: 'synced'; pushed: number; rejected: number; pulled: number }
@@ -389,7 +394,11 @@ export class SyncEngine {
       outcome = { kind: 'synced', pushed: pushed.accepted, rejected: pushed.rejected, pulled };
       this.schedule.succeeded();
     } catch (error) {
-      const message = error instanceof Error ? error.message : String(error);
+      const message = isQuotaExceeded(error)
+        ? STORAGE_FULL_SYNC_WORDS
+        : error instanceof Error
+          ? error.message
+          : String(error);
       if (error instanceof BlockedSyncError) {
         this.status.update({ phase: 'blocked', progress: null, error: message });
         outcome = { kind: 'blocked', message };

@@ -84,13 +84,25 @@ describe('the PIN lock on its own', () => {
 
   it('ignores a policy out of range and forgets everything when cleared', async () => {
     const { lock } = setUp();
-    await lock.setPolicy({ offlineUnlockHours: 0, maxPinAttempts: 0.5 });
-    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5 });
-    await lock.setPolicy({ offlineUnlockHours: 8, maxPinAttempts: 3.7 });
-    expect(lock.policy).toEqual({ offlineUnlockHours: 8, maxPinAttempts: 3 });
+    await lock.setPolicy({ offlineUnlockHours: 0, maxPinAttempts: 0.5, unsyncedWarningHours: 0 });
+    expect(lock.policy).toEqual({
+      offlineUnlockHours: 72,
+      maxPinAttempts: 5,
+      unsyncedWarningHours: 24,
+    });
+    await lock.setPolicy({ offlineUnlockHours: 8, maxPinAttempts: 3.7, unsyncedWarningHours: 6 });
+    expect(lock.policy).toEqual({
+      offlineUnlockHours: 8,
+      maxPinAttempts: 3,
+      unsyncedWarningHours: 6,
+    });
     await lock.setPin('amara', '482913');
     lock.clear();
     expect(lock.hasPin('amara')).toBe(false);
-    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5 });
+    expect(lock.policy).toEqual({
+      offlineUnlockHours: 72,
+      maxPinAttempts: 5,
+      unsyncedWarningHours: 24,
+    });
   });
 });

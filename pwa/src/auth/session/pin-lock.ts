@@ -170,6 +170,9 @@ export class PinLock {
     if (policy.maxPinAttempts !== undefined && policy.maxPinAttempts >= 1) {
       next.maxPinAttempts = Math.floor(policy.maxPinAttempts);
     }
+    if (policy.unsyncedWarningHours !== undefined && policy.unsyncedWarningHours >= 1) {
+      next.unsyncedWarningHours = Math.floor(policy.unsyncedWarningHours);
+    }
     this.current = next;
     await this.options.db().settings.put({ key: POLICY_KEY, value: next });
   }

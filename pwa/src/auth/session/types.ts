@@ -3,13 +3,23 @@ import type { SessionUser } from '@fuselight/shared';
 import type { KnownColleague, KnownSite, TabletCredentials } from '../auth-db';
 import type { ErasureNote } from '../tablet-erasure';
 
+/** The clinic's policy for its tablets, as the server last gave it (GET /api/devices/me). */
 export interface UnlockPolicy {
   /** How long after the server last confirmed a person their PIN still unlocks offline. */
   offlineUnlockHours: number;
   /** Wrong PINs allowed before a full online sign-in is required. */
   maxPinAttempts: number;
+  /**
+   * How long edits may wait unsynced before every screen warns (the clinic setting of the same
+   * name; pwa/src/storage/unsynced-age.ts).
+   */
+  unsyncedWarningHours: number;
 }
-export const DEFAULT_UNLOCK_POLICY: UnlockPolicy = { offlineUnlockHours: 72, maxPinAttempts: 5 };
+export const DEFAULT_UNLOCK_POLICY: UnlockPolicy = {
+  offlineUnlockHours: 72,
+  maxPinAttempts: 5,
+  unsyncedWarningHours: 24,
+};
 
 export interface KnownPerson {
   user: SessionUser;
