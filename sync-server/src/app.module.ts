@@ -17,6 +17,7 @@ import { HealthModule } from './health/health.module';
 import { LettersModule } from './letters/letters.module';
 import { MailModule } from './mail/mail.module';
 import { SeedModule } from './seed/seed.module';
+import { SettingsModule } from './settings/settings.module';
 import { SitesModule } from './sites/sites.module';
 import { ConflictsModule } from './conflicts/conflicts.module';
 import { RecordsModule } from './records/records.module';
@@ -39,6 +40,7 @@ export class AppModule {
         SeedModule,
         // Feature modules (one per bounded context) are listed below this line.
         AuditModule,
+        SettingsModule,
         UsersModule,
         DevicesModule,
         AdminModule,

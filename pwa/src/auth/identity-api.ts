@@ -4,11 +4,14 @@
 import {
   adminUserListSchema,
   adminUserSchema,
+  clinicSettingsSchema,
   fleetDeviceListSchema,
   fleetDeviceSchema,
   invitedPersonSchema,
   sessionUserSchema,
   type AdminUser,
+  type ClinicSettings,
+  type ClinicSettingsChange,
   type FleetDevice,
   type InvitedPerson,
   type LoginRequest,
@@ -197,6 +200,16 @@ export class IdentityApi {
       body: change,
     });
     return parseAnswer(adminUserSchema, body, 'PATCH /api/admin/users/:id');
+  }
+
+  /** The clinic's settings (admins). */
+  async clinicSettings(token: string): Promise<ClinicSettings> {
+    const body = await this.request('GET', '/api/admin/settings', { token });
+    return parseAnswer(clinicSettingsSchema, body, 'GET /api/admin/settings');
+  }
+  async changeClinicSettings(token: string, change: ClinicSettingsChange): Promise<ClinicSettings> {
+    const body = await this.request('PATCH', '/api/admin/settings', { token, body: change });
+    return parseAnswer(clinicSettingsSchema, body, 'PATCH /api/admin/settings');
   }
 
   async listSites(token: string): Promise<AdminSite[]> {

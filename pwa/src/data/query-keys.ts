@@ -85,6 +85,7 @@ export const queryKeys = {
     people: () => [...queryKeys.identity.all(), 'people'] as const,
     sites: () => [...queryKeys.identity.all(), 'sites'] as const,
     fleet: () => [...queryKeys.identity.all(), 'fleet'] as const,
+    clinicSettings: () => [...queryKeys.identity.all(), 'clinic-settings'] as const,
     waitingChanges: (authorId: string) =>
       [...queryKeys.identity.all(), 'waiting-changes', authorId] as const,
   },

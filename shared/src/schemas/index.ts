@@ -28,3 +28,4 @@ export * from './identity.schema';
 export * from './admin-views.schema';
 export * from './review-views';
 export * from './section-records';
+export * from './clinic-settings.schema';

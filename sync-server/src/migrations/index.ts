@@ -11,6 +11,7 @@ import { Migration20261201060000AddendumRecords } from './Migration2026120106000
 import { Migration20261202000000SupersededHistory } from './Migration20261202000000SupersededHistory';
 import { Migration20261204000000VersionOffsetAndCursorEpoch } from './Migration20261204000000VersionOffsetAndCursorEpoch';
 import { Migration20261204100000OpenDisputeOrder } from './Migration20261204100000OpenDisputeOrder';
+import { Migration20261204300000ClinicSettings } from './Migration20261204300000ClinicSettings';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -34,5 +35,9 @@ export const migrationsList: MigrationObject[] = [
   {
     name: 'Migration20261204100000OpenDisputeOrder',
     class: Migration20261204100000OpenDisputeOrder,
+  },
+  {
+    name: 'Migration20261204300000ClinicSettings',
+    class: Migration20261204300000ClinicSettings,
   },
 ];
