@@ -264,6 +264,19 @@ describe('GET /api/me/sites on the tablet', () => {
   });
 });
 
+describe('the clinic’s setting for unsynced edits', () => {
+  it('is 24 hours until the server says otherwise, then the server’s, kept across a reload', async () => {
+    const { store, server, make } = await enrolledWithPin();
+    expect(store.getSnapshot().policy.unsyncedWarningHours).toBe(24);
+    server.unsyncedWarningHours = 6;
+    await store.checkTablet();
+    expect(store.getSnapshot().policy.unsyncedWarningHours).toBe(6);
+    const reloaded = make();
+    await reloaded.load();
+    expect(reloaded.getSnapshot().policy.unsyncedWarningHours).toBe(6);
+  });
+});
+
 describe('persistent storage at enrolment', () => {
   afterEach(() => {
     vi.unstubAllGlobals();
