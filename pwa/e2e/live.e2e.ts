@@ -11,6 +11,7 @@ import { type Role, newPerson, newSite, runTag, seedClinic } from './support/cli
 import {
   enrolClinicianTablet,
   openAndSignIn,
+  openSection,
   serviceWorkerReady,
   signInAdmin,
 } from './support/tablet-flows';
@@ -44,7 +45,7 @@ async function syncNow(page: Page) {
 }
 
 async function typeAngle(page: Page, label: string, text: string) {
-  const amblyoscope = page.locator('#section-amblyoscope');
+  const amblyoscope = await openSection(page, 'section-amblyoscope');
   const box = amblyoscope.getByRole('textbox', { name: `Type ${label}`, exact: true });
   await box.fill(text);
   await box.press('Enter');

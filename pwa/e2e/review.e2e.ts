@@ -12,6 +12,7 @@ import {
   enrolClinicianTablet,
   gotoOnTablet,
   openAndSignIn,
+  openSection,
   serviceWorkerReady,
   signInAdmin,
 } from './support/tablet-flows';
@@ -48,7 +49,7 @@ async function syncNow(page: Page) {
 
 /** Types an angle into the Visit's Amblyoscope panel and waits until it is saved here. */
 async function typeAngle(page: Page, label: string, text: string) {
-  const amblyoscope = page.locator('#section-amblyoscope');
+  const amblyoscope = await openSection(page, 'section-amblyoscope');
   const box = amblyoscope.getByRole('textbox', { name: `Type ${label}`, exact: true });
   await box.fill(text);
   await box.press('Enter');
@@ -75,7 +76,7 @@ async function openVisit(
   const deadline = Date.now() + 45_000;
   for (;;) {
     await gotoOnTablet(page, `${baseUrl()}/visit/${visitId}`);
-    const amblyoscope = page.locator('#section-amblyoscope');
+    const amblyoscope = await openSection(page, 'section-amblyoscope');
     const arrived = await amblyoscope
       .getByText('Objective horizontal angle')
       .first()

@@ -19,6 +19,7 @@ import { LettersModule } from './letters/letters.module';
 import { LiveModule } from './live/live.module';
 import { MailModule } from './mail/mail.module';
 import { SeedModule } from './seed/seed.module';
+import { SettingsModule } from './settings/settings.module';
 import { SitesModule } from './sites/sites.module';
 import { ConflictsModule } from './conflicts/conflicts.module';
 import { RecordsModule } from './records/records.module';
@@ -41,6 +42,7 @@ export class AppModule {
         SeedModule,
         // Feature modules (one per bounded context) are listed below this line.
         AuditModule,
+        SettingsModule,
         UsersModule,
         DevicesModule,
         AdminModule,

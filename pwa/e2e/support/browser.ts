@@ -15,13 +15,24 @@ export const baseUrl = (): string => {
 export const TABLET_LANDSCAPE = { width: 1280, height: 800 };
 export const TABLET_PORTRAIT = { width: 768, height: 1024 };
 
-export async function launchTablet(viewport = TABLET_LANDSCAPE): Promise<BrowserContext> {
-  return (await launchTabletWithProfile(viewport)).context;
+export type TabletOptions = { persistentStorage?: boolean };
+
+/**
+ * A fresh tablet profile. Its browser grants the app persistent storage, as Chromium does for
+ * an installed app (headless Chromium refuses it otherwise, and every screen would then show
+ * the storage warning); `persistentStorage: false` leaves it refused.
+ */
+export async function launchTablet(
+  viewport = TABLET_LANDSCAPE,
+  options: TabletOptions = {},
+): Promise<BrowserContext> {
+  return (await launchTabletWithProfile(viewport, options)).context;
 }
 
 /** A tablet and the folder of its browser profile (for reading what the browser wrote). */
 export async function launchTabletWithProfile(
   viewport = TABLET_LANDSCAPE,
+  options: TabletOptions = {},
 ): Promise<{ context: BrowserContext; profile: string }> {
   const profile = mkdtempSync(join(tmpdir(), 'fuselight-e2e-'));
   const context = await chromium.launchPersistentContext(profile, {
@@ -39,7 +50,22 @@ export async function launchTabletWithProfile(
       '--disable-sync',
     ],
   });
+  if (options.persistentStorage !== false) await grantPersistentStorage(context);
   return { context, profile };
+}
+
+/**
+ * Grants the app's origin persistent storage (Chromium's `durableStorage` permission). The grant
+ * lasts as long as the DevTools session that made it, so the session is left open with the
+ * context (it closes with it).
+ */
+export async function grantPersistentStorage(context: BrowserContext): Promise<void> {
+  const page = context.pages()[0] ?? (await context.newPage());
+  const cdp = await context.newCDPSession(page);
+  await cdp.send('Browser.grantPermissions', {
+    origin: new URL(baseUrl()).origin,
+    permissions: ['durableStorage'],
+  });
 }
 
 const artifacts = resolve(import.meta.dirname, '..', '..', '..', 'artifacts', 'screenshots');

@@ -2,7 +2,7 @@
 // working on an enrolled tablet: sign in, register a tablet on the Fleet, enrol a browser with the
 // one-time code, sign the clinician in on it and set the offline PIN. Each step waits for the
 // screen it ends on, so a step that does not arrive fails the test.
-import type { BrowserContext, Page } from 'playwright-core';
+import type { BrowserContext, Locator, Page } from 'playwright-core';
 import { baseUrl } from './browser';
 import type { Person, Site } from './clinic-fixtures';
 
@@ -123,4 +123,17 @@ export async function serviceWorkerReady(page: Page) {
   await page.evaluate(async () => {
     await navigator.serviceWorker.ready;
   });
+}
+
+/**
+ * Opens a Visit Section folded to its one-line summary (its heading is the toggle) and returns
+ * the Section; an open one is left open.
+ */
+export async function openSection(page: Page, id: string): Promise<Locator> {
+  const section = page.locator(`#${id}`);
+  const toggle = section.locator('h2 button.flc-fold');
+  await toggle.waitFor();
+  if ((await toggle.getAttribute('aria-expanded')) !== 'true') await toggle.click();
+  await section.locator(`#${id}-body`).waitFor();
+  return section;
 }

@@ -23,6 +23,7 @@ import {
 import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
+import { StorageWarningBanner } from '../components/StorageWarningBanner';
 import { canSee } from '../auth/access';
 import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
@@ -188,21 +189,27 @@ export function App() {
   return (
     <QueryClientProvider client={queryClient}>
       <SessionProvider>
-        <IonApp>
-          <IonReactRouter>
-            <IdentityGate
-              loading={<Loading />}
-              erased={(note) => screen(<TabletErasedScreen note={note} />)}
-            >
-              <AppTabs />
-            </IdentityGate>
-            <SignInPrompt />
-            <SignedInSync />
-          </IonReactRouter>
-          <Suspense fallback={null}>
-            <UpdatePrompt />
-          </Suspense>
-        </IonApp>
+        {/* The storage warning sits above the Ionic app in the flow, on every screen. */}
+        <div className="fl-shell">
+          <StorageWarningBanner />
+          <div className="fl-shell-app">
+            <IonApp>
+              <IonReactRouter>
+                <IdentityGate
+                  loading={<Loading />}
+                  erased={(note) => screen(<TabletErasedScreen note={note} />)}
+                >
+                  <AppTabs />
+                </IdentityGate>
+                <SignInPrompt />
+                <SignedInSync />
+              </IonReactRouter>
+              <Suspense fallback={null}>
+                <UpdatePrompt />
+              </Suspense>
+            </IonApp>
+          </div>
+        </div>
       </SessionProvider>
     </QueryClientProvider>
   );

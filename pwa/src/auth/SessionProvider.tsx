@@ -16,6 +16,7 @@ import { version as appVersion } from '../../package.json';
 import { IdleTimer } from './session/idle-lock';
 import { SessionContext, type TabletSession } from './session-context';
 import { SessionStore, type AuthSnapshot } from './session-store';
+import { DEFAULT_UNLOCK_POLICY, type UnlockPolicy } from './session/types';
 
 const HEARTBEAT_EVERY_MS = 3 * 60_000;
 const RETIREMENT_CHECK_EVERY_MS = 10_000;
@@ -84,6 +85,7 @@ export function SessionProvider({
         .catch(() => undefined);
     };
     beat();
+    store.askForPersistentStorageOnce().catch(() => undefined);
     const timer = setInterval(beat, HEARTBEAT_EVERY_MS);
     window.addEventListener('online', beat);
     return () => {
@@ -160,6 +162,22 @@ export function useSessionStore(): SessionStore {
 export function useAuthState(): AuthSnapshot {
   const store = useSessionStore();
   return useSyncExternalStore(store.subscribe, store.getSnapshot);
+}
+
+const noSubscribe = () => () => undefined;
+const noSnapshot = () => null;
+
+/**
+ * The clinic's policy for its tablets (offline unlock, how long edits may wait unsynced); the
+ * defaults where no session store is above (a screen rendered alone in a test).
+ */
+export function useTabletPolicy(): UnlockPolicy {
+  const store = useContext(StoreContext);
+  const snapshot = useSyncExternalStore(
+    store?.subscribe ?? noSubscribe,
+    store?.getSnapshot ?? noSnapshot,
+  );
+  return snapshot?.policy ?? DEFAULT_UNLOCK_POLICY;
 }
 
 export { appVersion };

@@ -57,6 +57,8 @@ export interface FakeClinicServer {
   /** GET /api/me/sites fails as with no network. */
   offline: boolean;
   deviceState: 'active' | 'retired' | 'revoked';
+  /** The clinic setting GET /api/devices/me carries (left out when undefined). */
+  unsyncedWarningHours?: number;
   enrolmentCode: string;
   accessTtlSeconds: number;
   /** Extra routes a test answers itself (admin screens): null means "not mine". */
@@ -160,7 +162,12 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
         case 'GET /api/devices/me':
           if (server.deviceState === 'revoked') return revoked();
           if (!caller) return json(401, { message: 'Sign in first.' });
-          return json(200, { state: server.deviceState });
+          return json(200, {
+            state: server.deviceState,
+            ...(server.unsyncedWarningHours === undefined
+              ? {}
+              : { unsyncedWarningHours: server.unsyncedWarningHours }),
+          });
         case 'GET /api/me/sites': {
           if (server.deviceState === 'revoked') return revoked();
           if (server.offline) throw new TypeError('Failed to fetch');

@@ -6,10 +6,13 @@
 import {
   adminUserListSchema,
   adminUserSchema,
+  clinicSettingsSchema,
   fleetDeviceListSchema,
   fleetDeviceSchema,
   invitedPersonSchema,
   type AdminUser,
+  type ClinicSettings,
+  type ClinicSettingsChange,
   type FleetDevice,
   type InvitedPerson,
 } from '@fuselight/shared/admin-views';
@@ -86,6 +89,8 @@ export interface DeviceStatus {
   /** Optional clinic policy the server may send for offline unlock. */
   offlineUnlockHours?: number;
   maxPinAttempts?: number;
+  /** The clinic setting: hours unsynced edits may wait before the tablet warns on every screen. */
+  unsyncedWarningHours?: number;
 }
 
 export interface NewPerson {
@@ -217,6 +222,16 @@ export class IdentityApi {
       body: change,
     });
     return parseAnswer(adminUserSchema, body, 'PATCH /api/admin/users/:id');
+  }
+
+  /** The clinic's settings (admins). */
+  async clinicSettings(token: string): Promise<ClinicSettings> {
+    const body = await this.request('GET', '/api/admin/settings', { token });
+    return parseAnswer(clinicSettingsSchema, body, 'GET /api/admin/settings');
+  }
+  async changeClinicSettings(token: string, change: ClinicSettingsChange): Promise<ClinicSettings> {
+    const body = await this.request('PATCH', '/api/admin/settings', { token, body: change });
+    return parseAnswer(clinicSettingsSchema, body, 'PATCH /api/admin/settings');
   }
 
   async listSites(token: string): Promise<AdminSite[]> {

@@ -1,4 +1,4 @@
-import { beforeEach, describe, expect, it } from 'vitest';
+import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
 import { FuselightDb } from '../data/db';
 import { AuthDb } from './auth-db';
 import {
@@ -10,6 +10,7 @@ import {
   type FakeClinicServer,
 } from './fake-clinic-server.fixture';
 import { IdentityApi } from './identity-api';
+import { PERSISTENCE_ASKED_KEY } from './session/tablet-lifecycle';
 import { SessionStore } from './session-store';
 import { eraseAllDatabases } from './tablet-erasure';
 
@@ -274,5 +275,54 @@ describe('GET /api/me/sites on the tablet', () => {
         }),
     });
     await expect(api.mySites('token')).rejects.toThrow(/name/);
+  });
+});
+
+describe('the clinic’s setting for unsynced edits', () => {
+  it('is 24 hours until the server says otherwise, then the server’s, kept across a reload', async () => {
+    const { store, server, make } = await enrolledWithPin();
+    expect(store.getSnapshot().policy.unsyncedWarningHours).toBe(24);
+    server.unsyncedWarningHours = 6;
+    await store.checkTablet();
+    expect(store.getSnapshot().policy.unsyncedWarningHours).toBe(6);
+    const reloaded = make();
+    await reloaded.load();
+    expect(reloaded.getSnapshot().policy.unsyncedWarningHours).toBe(6);
+  });
+});
+
+describe('persistent storage at enrolment', () => {
+  afterEach(() => {
+    vi.unstubAllGlobals();
+  });
+
+  it('asks the browser to keep the tablet’s storage when it enrols, and notes the answer', async () => {
+    const persist = vi.fn(async () => false);
+    vi.stubGlobal('navigator', { ...navigator, storage: { persist } });
+    const { store, server, clock } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    expect(persist).toHaveBeenCalledTimes(1);
+    const db = new AuthDb();
+    expect((await db.settings.get(PERSISTENCE_ASKED_KEY))?.value).toEqual({
+      granted: false,
+      at: clock.now,
+    });
+    db.close();
+
+    // Asked once: a later start does not ask again (some browsers ask the person each time).
+    await store.askForPersistentStorageOnce();
+    expect(persist).toHaveBeenCalledTimes(1);
+  });
+
+  it('asks a tablet enrolled before this was asked, once', async () => {
+    const { store, server } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode); // no storage API here: nothing asked, nothing noted
+    const persist = vi.fn(async () => true);
+    vi.stubGlobal('navigator', { ...navigator, storage: { persist } });
+    await store.askForPersistentStorageOnce();
+    await store.askForPersistentStorageOnce();
+    expect(persist).toHaveBeenCalledTimes(1);
   });
 });

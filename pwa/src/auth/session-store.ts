@@ -422,6 +422,11 @@ export class SessionStore {
     return this.lifecycle.checkTablet();
   }
 
+  /** An enrolled tablet never asked for persistent storage (enrolled earlier) is asked now. */
+  askForPersistentStorageOnce(): Promise<void> {
+    return this.lifecycle.askForPersistentStorageOnce();
+  }
+
   /** A retired tablet erases itself once nothing is left to send. */
   continueRetirement(): Promise<void> {
     return this.lifecycle.continueRetirement();

@@ -23,7 +23,8 @@ export { queryKeys } from './query-keys';
 export { useRecord } from './hooks/useRecord';
 export { useRecords, useRecordsByField } from './hooks/useRecordsByField';
 export { usePatientSearch } from './hooks/usePatientSearch';
-export { useOutboxCounts, useOutboxEntries } from './hooks/useOutbox';
+export { useOldestOutboxEntry, useOutboxCounts, useOutboxEntries } from './hooks/useOutbox';
+export { STORAGE_FULL_WORDS, StorageFullError, isQuotaExceeded } from './storage-full';
 export {
   UNENROLLED_DEVICE_ID,
   useCreateRecord,

@@ -6,6 +6,7 @@ import { validateFields, type CollectionName } from '@fuselight/shared';
 import { getDefaultDb, type FuselightDb, type OutboxEntry } from './db';
 import { notifyDataChange } from './data-events';
 import { tickDeviceClock } from './device-clock';
+import { wordStorageError } from './storage-full';
 import { discardRejected, resubmitRejected, restoreDiscarded } from './outbox-transitions';
 import { RecordValidationError, type EditContext } from './records-repository';
 
@@ -30,6 +31,12 @@ export class OutboxRepository {
   /** Every entry, oldest first (the order they are sent in). */
   async listEntries(): Promise<OutboxEntry[]> {
     return this.db.outbox.orderBy('seq').toArray();
+  }
+
+  /** When the oldest entry still in the Outbox was made (epoch ms); null when it is empty. */
+  async oldestCreatedAt(): Promise<number | null> {
+    const oldest = await this.db.outbox.orderBy('createdAt').first();
+    return oldest?.createdAt ?? null;
   }
 
   async counts(): Promise<OutboxCounts> {
@@ -86,16 +93,20 @@ export class OutboxRepository {
     const fields = { ...existing.fields, ...corrections };
     const validation = validateFields(collection, fields);
     if (!validation.ok) throw new RecordValidationError(collection, validation.errors);
-    const newId = await db.transaction('rw', [db.records, db.outbox, db.meta], async () => {
-      const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
-      return resubmitRejected(db, changeId, {
-        fields: validation.fields,
-        hlc,
-        authorId: ctx.authorId,
-        deviceId: ctx.deviceId,
-        nowMs: ctx.nowMs,
+    const newId = await db
+      .transaction('rw', [db.records, db.outbox, db.meta], async () => {
+        const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
+        return resubmitRejected(db, changeId, {
+          fields: validation.fields,
+          hlc,
+          authorId: ctx.authorId,
+          deviceId: ctx.deviceId,
+          nowMs: ctx.nowMs,
+        });
+      })
+      .catch((error: unknown) => {
+        throw wordStorageError(error);
       });
-    });
     notifyDataChange({ collections: [collection], recordIds: [existing.recordId], outbox: true });
     return newId;
   }

@@ -42,6 +42,13 @@ export const queryKeys = {
     all: () => [...ROOT, 'outbox'] as const,
     entries: () => [...queryKeys.outbox.all(), 'entries'] as const,
     counts: () => [...queryKeys.outbox.all(), 'counts'] as const,
+    /** When the oldest entry was made (how long unsynced edits have waited). */
+    oldest: () => [...queryKeys.outbox.all(), 'oldest'] as const,
+  },
+  /** The browser's storage for this site: persistence granted or not, usage and quota. */
+  device: {
+    all: () => [...ROOT, 'device'] as const,
+    storage: () => [...queryKeys.device.all(), 'storage'] as const,
   },
   /** The charting screens' domain queries (Today, Chart, Visit, Bench). */
   charting: {
@@ -78,6 +85,7 @@ export const queryKeys = {
     people: () => [...queryKeys.identity.all(), 'people'] as const,
     sites: () => [...queryKeys.identity.all(), 'sites'] as const,
     fleet: () => [...queryKeys.identity.all(), 'fleet'] as const,
+    clinicSettings: () => [...queryKeys.identity.all(), 'clinic-settings'] as const,
     waitingChanges: (authorId: string) =>
       [...queryKeys.identity.all(), 'waiting-changes', authorId] as const,
   },

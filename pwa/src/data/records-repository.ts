@@ -21,6 +21,7 @@ import {
   type StoredRecord,
 } from './db';
 import { notifyDataChange } from './data-events';
+import { wordStorageError } from './storage-full';
 import { tickDeviceClock } from './device-clock';
 import { recordLocalEdit } from './outbox-transitions';
 import { searchWords } from './patient-terms';
@@ -206,38 +207,43 @@ export class RecordsRepository {
     creating: boolean,
   ): Promise<void> {
     const db = this.db;
-    const written = await db.transaction('rw', [db.records, db.outbox, db.meta], async () => {
-      const key = [collection, id] as unknown as string;
-      const existing = await db.records.get(key);
-      if (creating && existing) throw new Error(`A ${collection} record ${id} already exists`);
-      if (!creating && !existing) throw new RecordNotFoundError(collection, id);
-      const base: StoredRecord = existing ?? newStoredRecord(collection, id, ctx.nowMs);
-      const changed: Record<string, unknown> = {};
-      for (const [field, value] of Object.entries(edit.fields)) {
-        if (creating || !hasOwn(base.fields, field) || !jsonEqual(base.fields[field], value)) {
-          changed[field] = value;
+    const written = await db
+      .transaction('rw', [db.records, db.outbox, db.meta], async () => {
+        const key = [collection, id] as unknown as string;
+        const existing = await db.records.get(key);
+        if (creating && existing) throw new Error(`A ${collection} record ${id} already exists`);
+        if (!creating && !existing) throw new RecordNotFoundError(collection, id);
+        const base: StoredRecord = existing ?? newStoredRecord(collection, id, ctx.nowMs);
+        const changed: Record<string, unknown> = {};
+        for (const [field, value] of Object.entries(edit.fields)) {
+          if (creating || !hasOwn(base.fields, field) || !jsonEqual(base.fields[field], value)) {
+            changed[field] = value;
+          }
         }
-      }
-      const deleted =
-        edit.deleted !== undefined && (creating || edit.deleted !== base.deleted)
-          ? edit.deleted
-          : undefined;
-      if (!creating && Object.keys(changed).length === 0 && deleted === undefined) return false;
+        const deleted =
+          edit.deleted !== undefined && (creating || edit.deleted !== base.deleted)
+            ? edit.deleted
+            : undefined;
+        if (!creating && Object.keys(changed).length === 0 && deleted === undefined) return false;
 
-      const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
-      await recordLocalEdit(db, {
-        collection,
-        id,
-        base,
-        changed,
-        deleted,
-        hlc,
-        authorId: ctx.authorId,
-        deviceId: ctx.deviceId,
-        nowMs: ctx.nowMs,
+        const hlc = await tickDeviceClock(db, ctx.deviceId, ctx.nowMs);
+        await recordLocalEdit(db, {
+          collection,
+          id,
+          base,
+          changed,
+          deleted,
+          hlc,
+          authorId: ctx.authorId,
+          deviceId: ctx.deviceId,
+          nowMs: ctx.nowMs,
+        });
+        return true;
+      })
+      // Storage full: the whole transaction is undone; the screen says so (storage-full.ts).
+      .catch((error: unknown) => {
+        throw wordStorageError(error);
       });
-      return true;
-    });
     if (written) notifyDataChange({ collections: [collection], recordIds: [id], outbox: true });
   }
 }

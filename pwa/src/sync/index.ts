@@ -9,7 +9,13 @@ export {
   type SyncTimers,
   type SyncTimings,
 } from './sync-engine';
-export { SyncStatusStore, type SyncPhase, type SyncProgress, type SyncStatus } from './sync-status';
+export {
+  SyncStatusStore,
+  type SyncPhase,
+  type SyncProgress,
+  type SyncStatus,
+  type TabRole,
+} from './sync-status';
 export { backoffDelay, DEFAULT_BACKOFF, type BackoffPolicy } from './backoff';
 export { LIVE_BACKOFF, LiveStream, type LiveState } from './live-stream';
 export {

@@ -9,7 +9,9 @@
 // - sync-transport.ts: requests, time-outs and the words of a failure;
 // - push-batches.ts: sending the Outbox in batches, each under its author's session;
 // - pull-pages.ts: receiving pages after the cursor, with the full re-pull bookkeeping;
-// - data/outbox-transitions.ts and local-apply.ts: what the answers do to the database.
+// - data/outbox-transitions.ts and local-apply.ts: what the answers do to the database;
+// - tab-leadership.ts and sync-tabs.ts: with several tabs open, one leads and syncs, and the
+//   others follow (their "Sync now" asks the leader; their status is the leader's).
 import {
   MAX_CHANGES_PER_PUSH,
   MAX_PULL_LIMIT,
@@ -18,6 +20,7 @@ import {
 } from '@fuselight/shared';
 import type { FuselightDb, OutboxEntry } from '../data/db';
 import { subscribeDataChanges } from '../data/data-events';
+import { isQuotaExceeded } from '../data/storage-full';
 import type { BackoffPolicy } from './backoff';
 import { readFullRepull } from './full-repull';
 import { THIS_BUILD, reviewNewerRecords, type BuildSchema } from './newer-records';
@@ -28,6 +31,8 @@ import { OutboxPusher } from './push-batches';
 import type { SyncAuth } from './sync-auth';
 import { SyncSchedule, browserNetwork, type NetworkMonitor } from './sync-schedule';
 import { SyncStatusStore, type SyncStatus } from './sync-status';
+import type { SyncLeadership } from './tab-leadership';
+import type { TabChannel, TabMessage } from './sync-tabs';
 import { emptyTimings, type SyncTimings } from './sync-timings';
 import {
   BlockedSyncError,
@@ -85,7 +90,18 @@ export interface SyncEngineOptions {
   liveDebounceMs?: number;
   /** Told when the Review desk's queues may have changed (from the live stream). */
   onReview?: () => void;
+  /**
+   * Several tabs of the app on one tablet: the engine syncs only while its tab leads, and
+   * follows the leader otherwise. Absent: it always syncs (one tab, tests).
+   */
+  leadership?: SyncLeadership;
+  /** Messages to the other tabs' engines (the leader's status, "Sync now" and its outcome). */
+  tabChannel?: TabChannel | null;
 }
+
+/** A pull page or push result the browser refused to store for lack of space. */
+export const STORAGE_FULL_SYNC_WORDS =
+  'This tablet’s storage is full, so what the server sent could not be stored. Nothing in the Outbox was lost; free space on the tablet and sync again.';
 
 export type SyncOutcome =
   | { kind: 'synced'; pushed: number; rejected: number; pulled: number }
@@ -126,6 +142,12 @@ export class SyncEngine {
   private liveTimer: unknown = null;
   private afterSyncRun: Promise<void> | null = null;
   private afterSyncAgain = false;
+  private releaseLeadership: (() => void) | null = null;
+  private readonly untilStop: Array<() => void> = [];
+  /** A following tab's "Sync now" requests that wait for the leader's outcome. */
+  private readonly awaitingLeader = new Map<string, (outcome: SyncOutcome) => void>();
+  private followTimer: unknown = null;
+  private readonly timers: SyncTimers;
   /** Timings of the last sync. */
   lastTimings: SyncTimings | null = null;
 
@@ -134,6 +156,7 @@ export class SyncEngine {
     const clock = options.clock ?? { now: () => Date.now() };
     const timers = options.timers ?? defaultTimers;
     this.clock = clock;
+    this.timers = timers;
     this.network = options.network ?? browserNetwork();
     this.status = new SyncStatusStore({ configured: true, online: this.network.isOnline() });
     const status = this.status;
@@ -211,27 +234,163 @@ export class SyncEngine {
     return this.options.db;
   }
 
-  /** Starts the background schedule: a sync now, on reconnect, and every interval while online. */
+  /**
+   * Starts the background schedule: a sync now, on reconnect, and every interval while online.
+   * With several tabs, the schedule runs only while this tab leads.
+   */
   start(): void {
+    const { leadership, tabChannel } = this.options;
+    if (!leadership) {
+      this.startSchedule();
+      return;
+    }
+    if (this.releaseLeadership) return;
+    this.status.update({ tabRole: 'following' });
+    if (tabChannel) {
+      this.untilStop.push(tabChannel.subscribe((message) => this.onTabMessage(message)));
+      tabChannel.post({ kind: 'status-wanted' });
+    }
+    this.untilStop.push(
+      subscribeDataChanges((change) => {
+        if (change.outbox && this.status.getSnapshot().tabRole === 'following') {
+          void this.refreshCounts();
+        }
+      }),
+    );
+    this.follow();
+    this.releaseLeadership = leadership.campaign({
+      onLead: () => this.lead(),
+      onLose: () => this.follow(),
+    });
+  }
+
+  stop(): void {
+    this.schedule.stop();
+    this.stopLive();
+    this.clearFollowTimer();
+    this.releaseLeadership?.();
+    this.releaseLeadership = null;
+    for (const undo of this.untilStop.splice(0)) undo();
+    for (const resolve of this.awaitingLeader.values()) {
+      resolve({
+        kind: 'failed',
+        message: 'Sync stopped in this tab before the other tab answered',
+      });
+    }
+    this.awaitingLeader.clear();
+  }
+
+  /** "Sync now": runs a sync (or joins the one running and runs once more after it). */
+  syncNow(): Promise<SyncOutcome> {
+    const channel = this.options.tabChannel;
+    if (this.status.getSnapshot().tabRole !== 'following' || !channel) {
+      return this.schedule.syncNow();
+    }
+    // Another tab syncs this tablet: ask it, and hear how it went.
+    const requestId = `${this.clock.now()}-${Math.random().toString(36).slice(2)}`;
+    return new Promise<SyncOutcome>((resolve) => {
+      this.awaitingLeader.set(requestId, resolve);
+      channel.post({ kind: 'sync-now', requestId });
+    });
+  }
+
+  /** Whether this engine's tab syncs the tablet now (alone or leading the tabs). */
+  get syncsHere(): boolean {
+    return this.status.getSnapshot().tabRole !== 'following';
+  }
+
+  private startSchedule(): void {
     this.schedule.start(
       [
         subscribeDataChanges((change) => {
           if (change.outbox) void this.refreshCounts();
         }),
+        this.status.subscribe(() => this.announceStatus()),
       ],
       () => void this.loadPersistedStatus(),
     );
     this.live?.start();
   }
 
-  stop(): void {
-    this.schedule.stop();
-    this.live?.stop();
+  /** This tab leads: it syncs, tells the followers, and answers the "Sync now" left waiting. */
+  private lead(): void {
+    this.clearFollowTimer();
+    this.status.update({ tabRole: 'leading' });
+    this.startSchedule();
+    this.options.tabChannel?.post({ kind: 'leading' });
+    this.announceStatus();
+    for (const [requestId, resolve] of [...this.awaitingLeader]) {
+      this.awaitingLeader.delete(requestId);
+      void this.schedule.syncNow().then(resolve);
+    }
   }
 
-  /** "Sync now": runs a sync (or joins the one running and runs once more after it). */
-  syncNow(): Promise<SyncOutcome> {
-    return this.schedule.syncNow();
+  /**
+   * This tab follows: no push, no pull. Its status is the leader's (sync-tabs.ts); the counts
+   * and the last sync are also read from the database now and then, for browsers without a
+   * channel between tabs.
+   */
+  private follow(): void {
+    this.schedule.stop();
+    // Only the leading tab holds the live stream; a follower hears of changes from it.
+    this.stopLive();
+    this.status.update({ tabRole: 'following', phase: 'idle', progress: null });
+    const look = () => {
+      this.followTimer = null;
+      void this.loadPersistedStatus().catch(() => undefined);
+      this.followTimer = this.timers.setTimeout(look, this.options.intervalMs ?? 30_000);
+    };
+    this.clearFollowTimer();
+    look();
+  }
+
+  private stopLive(): void {
+    this.live?.stop();
+    if (this.liveTimer !== null) this.timers.clearTimeout(this.liveTimer);
+    this.liveTimer = null;
+  }
+
+  private clearFollowTimer(): void {
+    if (this.followTimer !== null) this.timers.clearTimeout(this.followTimer);
+    this.followTimer = null;
+  }
+
+  private announceStatus(): void {
+    const channel = this.options.tabChannel;
+    if (!channel || this.status.getSnapshot().tabRole !== 'leading') return;
+    channel.post({ kind: 'status', status: this.status.getSnapshot() });
+  }
+
+  private onTabMessage(message: TabMessage): void {
+    const role = this.status.getSnapshot().tabRole;
+    switch (message.kind) {
+      case 'status':
+        if (role === 'following') {
+          this.status.update({ ...message.status, configured: true, tabRole: 'following' });
+        }
+        return;
+      case 'leading':
+        // A new leader: whatever this tab asked of the old one is asked again.
+        for (const requestId of this.awaitingLeader.keys()) {
+          this.options.tabChannel?.post({ kind: 'sync-now', requestId });
+        }
+        return;
+      case 'status-wanted':
+        this.announceStatus();
+        return;
+      case 'sync-now':
+        if (role !== 'leading') return;
+        void this.schedule.syncNow().then((outcome) => {
+          this.options.tabChannel?.post({ kind: 'outcome', requestId: message.requestId, outcome });
+        });
+        return;
+      case 'outcome': {
+        const resolve = this.awaitingLeader.get(message.requestId);
+        this.awaitingLeader.delete(message.requestId);
+        resolve?.(message.outcome);
+        return;
+      }
+    }
   }
 
   /** Reads what the status keeps across reloads (last sync, a full re-pull) and the counts. */
@@ -291,7 +450,11 @@ export class SyncEngine {
       outcome = { kind: 'synced', pushed: pushed.accepted, rejected: pushed.rejected, pulled };
       this.schedule.succeeded();
     } catch (error) {
-      const message = error instanceof Error ? error.message : String(error);
+      const message = isQuotaExceeded(error)
+        ? STORAGE_FULL_SYNC_WORDS
+        : error instanceof Error
+          ? error.message
+          : String(error);
       if (error instanceof BlockedSyncError) {
         this.status.update({ phase: 'blocked', progress: null, error: message });
         outcome = { kind: 'blocked', message };

@@ -7,6 +7,12 @@ import type { LiveState } from './live-stream';
 
 export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
 
+/**
+ * This tab's part in syncing the tablet (tab-leadership.ts): it syncs alone (one tab, or no
+ * leadership asked for), it leads the tabs, or it follows another tab that syncs.
+ */
+export type TabRole = 'alone' | 'leading' | 'following';
+
 export interface SyncProgress {
   step: 'push' | 'pull';
   /** Changes sent, or records received so far. */
@@ -37,6 +43,7 @@ export interface SyncStatus {
   newerRecords: NewerRecordsNote | null;
   /** The live-changes stream: 'live' while other tablets' changes arrive without waiting. */
   live: LiveState;
+  tabRole: TabRole;
 }
 
 export const INITIAL_SYNC_STATUS: SyncStatus = {
@@ -55,6 +62,7 @@ export const INITIAL_SYNC_STATUS: SyncStatus = {
   fullRepull: null,
   newerRecords: null,
   live: 'off',
+  tabRole: 'alone',
 };
 
 export class SyncStatusStore {

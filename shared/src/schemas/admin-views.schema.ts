@@ -62,3 +62,6 @@ export type FleetDevice = z.infer<typeof fleetDeviceSchema>;
 export const fleetDeviceListSchema = z.array(fleetDeviceSchema, {
   error: 'must be a list of tablets',
 });
+
+// The clinic's settings travel with the admin views (the Fleet screen edits them).
+export * from './clinic-settings.schema';

@@ -183,6 +183,19 @@ describe('permission matrix of the identity routes', () => {
     },
     {
       method: 'get',
+      route: '/api/admin/settings',
+      path: () => '/api/admin/settings',
+      expect: only(['admin'], 200),
+    },
+    {
+      method: 'patch',
+      route: '/api/admin/settings',
+      path: () => '/api/admin/settings',
+      body: () => ({ unsyncedWarningHours: 24 }),
+      expect: only(['admin'], 200),
+    },
+    {
+      method: 'get',
       route: '/api/admin/devices',
       path: () => '/api/admin/devices',
       expect: only(['admin'], 200),
@@ -223,6 +236,12 @@ describe('permission matrix of the identity routes', () => {
       method: 'get',
       route: '/api/devices/me',
       path: () => '/api/devices/me',
+      expect: only(['outreachTablet'], 200),
+    },
+    {
+      method: 'get',
+      route: '/api/devices/me/key-share',
+      path: () => '/api/devices/me/key-share',
       expect: only(['outreachTablet'], 200),
     },
     {

@@ -1,5 +1,6 @@
 import { MikroOrmModule } from '@mikro-orm/nestjs';
 import { Module } from '@nestjs/common';
+import { SettingsModule } from '../settings/settings.module';
 import { AdminDevicesController } from './admin-devices.controller';
 import { DeviceSite } from './device-site.entity';
 import { Device } from './device.entity';
@@ -7,7 +8,7 @@ import { DevicesController } from './devices.controller';
 import { DevicesService } from './devices.service';
 
 @Module({
-  imports: [MikroOrmModule.forFeature([Device, DeviceSite])],
+  imports: [MikroOrmModule.forFeature([Device, DeviceSite]), SettingsModule],
   controllers: [DevicesController, AdminDevicesController],
   providers: [DevicesService],
   exports: [DevicesService],

@@ -26,6 +26,7 @@ import {
   siteIdsOfDevice,
   siteIdsOfDevices,
 } from '../users/memberships';
+import { ClinicSettingsService } from '../settings/clinic-settings.service';
 import { Device } from './device.entity';
 import type { heartbeatSchema, registerDeviceSchema } from './devices.schemas';
 
@@ -45,6 +46,8 @@ export interface DeviceSelfView {
   label: string;
   state: DeviceState;
   siteIds: string[];
+  /** The clinic setting every tablet follows: hours unsynced edits may wait before it warns. */
+  unsyncedWarningHours: number;
 }
 
 const iso = (date: Date | null): string | null => (date ? date.toISOString() : null);
@@ -65,6 +68,7 @@ export class DevicesService {
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(TokenService) private readonly tokens: TokenService,
     @Inject(AttemptLimiter) private readonly limiter: AttemptLimiter,
+    @Inject(ClinicSettingsService) private readonly settings: ClinicSettingsService,
   ) {}
 
   async register(
@@ -269,12 +273,14 @@ export class DevicesService {
     return this.selfView(device, caller);
   }
 
-  private selfView(device: Device, caller: AuthUser): DeviceSelfView {
+  private async selfView(device: Device, caller: AuthUser): Promise<DeviceSelfView> {
+    const settings = await this.settings.read();
     return {
       deviceId: device.id,
       label: device.label,
       state: device.state,
       siteIds: caller.siteIds,
+      unsyncedWarningHours: settings.unsyncedWarningHours,
     };
   }
 

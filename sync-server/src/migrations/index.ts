@@ -11,6 +11,7 @@ import { Migration20261201060000AddendumRecords } from './Migration2026120106000
 import { Migration20261202000000SupersededHistory } from './Migration20261202000000SupersededHistory';
 import { Migration20261204000000VersionOffsetAndCursorEpoch } from './Migration20261204000000VersionOffsetAndCursorEpoch';
 import { Migration20261204100000OpenDisputeOrder } from './Migration20261204100000OpenDisputeOrder';
+import { Migration20261204300000ClinicSettings } from './Migration20261204300000ClinicSettings';
 import { Migration20261205000000RestoreTimeline } from './Migration20261205000000RestoreTimeline';
 import { Migration20261205000000FhirHandoff } from './Migration20261205000000FhirHandoff';
 
@@ -36,6 +37,10 @@ export const migrationsList: MigrationObject[] = [
   {
     name: 'Migration20261204100000OpenDisputeOrder',
     class: Migration20261204100000OpenDisputeOrder,
+  },
+  {
+    name: 'Migration20261204300000ClinicSettings',
+    class: Migration20261204300000ClinicSettings,
   },
   {
     name: 'Migration20261205000000RestoreTimeline',

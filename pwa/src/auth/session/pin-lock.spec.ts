@@ -99,13 +99,34 @@ describe('the PIN lock on its own', () => {
 
   it('ignores a policy out of range and forgets everything when cleared', async () => {
     const { lock } = setUp();
-    await lock.setPolicy({ offlineUnlockHours: 0, maxPinAttempts: 0.5, idleLockMinutes: 0 });
-    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5, idleLockMinutes: 5 });
-    await lock.setPolicy({ offlineUnlockHours: 8, maxPinAttempts: 3.7, idleLockMinutes: 2 });
-    expect(lock.policy).toEqual({ offlineUnlockHours: 8, maxPinAttempts: 3, idleLockMinutes: 2 });
+    await lock.setPolicy({
+      offlineUnlockHours: 0,
+      maxPinAttempts: 0.5,
+      idleLockMinutes: 0,
+      unsyncedWarningHours: 0,
+    });
+    const defaults = {
+      offlineUnlockHours: 72,
+      maxPinAttempts: 5,
+      idleLockMinutes: 5,
+      unsyncedWarningHours: 24,
+    };
+    expect(lock.policy).toEqual(defaults);
+    await lock.setPolicy({
+      offlineUnlockHours: 8,
+      maxPinAttempts: 3.7,
+      idleLockMinutes: 2,
+      unsyncedWarningHours: 6,
+    });
+    expect(lock.policy).toEqual({
+      offlineUnlockHours: 8,
+      maxPinAttempts: 3,
+      idleLockMinutes: 2,
+      unsyncedWarningHours: 6,
+    });
     await lock.setPin('amara', '482913');
     lock.clear();
     expect(lock.hasPin('amara')).toBe(false);
-    expect(lock.policy).toEqual({ offlineUnlockHours: 72, maxPinAttempts: 5, idleLockMinutes: 5 });
+    expect(lock.policy).toEqual(defaults);
   });
 });

@@ -233,6 +233,9 @@ export class PinLock {
     ) {
       next.idleLockMinutes = policy.idleLockMinutes;
     }
+    if (policy.unsyncedWarningHours !== undefined && policy.unsyncedWarningHours >= 1) {
+      next.unsyncedWarningHours = Math.floor(policy.unsyncedWarningHours);
+    }
     this.current = next;
     await this.options.db().settings.put({ key: POLICY_KEY, value: next });
   }

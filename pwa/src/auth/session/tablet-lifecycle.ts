@@ -1,7 +1,9 @@
 // The enrolled tablet's standing with the clinic: enrolment, the server's word on it (its
 // unlock policy; retired: send what is left, then erase), the heartbeat, and erasure when the
-// clinic revokes or retires it (every database erased, a note kept to say why).
+// clinic revokes or retires it (every database erased, a note kept to say why). At enrolment it
+// asks the browser for persistent storage (pwa/src/storage/storage-health.ts).
 import type { KeyRing } from '../../data/crypto/key-ring';
+import { askForPersistentStorage } from '../../storage/storage-health';
 import type { TabletCredentials } from '../auth-db';
 import { ApiError, NetworkError, type IdentityApi } from '../identity-api';
 import {
@@ -13,6 +15,9 @@ import {
 import type { PinLock } from './pin-lock';
 import type { SessionState } from './session-state';
 import type { SessionTokens } from './tokens';
+
+/** Settings key noting that the browser was asked for persistent storage, and its answer. */
+export const PERSISTENCE_ASKED_KEY = 'storagePersistenceAsked';
 
 export class TabletLifecycle {
   private erasing: Promise<void> | null = null;
@@ -40,6 +45,26 @@ export class TabletLifecycle {
     this.state.erasure = null;
     clearErasureNote();
     this.state.publish();
+    await this.askForPersistentStorage();
+  }
+
+  /**
+   * Asks the browser to keep this site's storage, and notes that it asked (with the answer) in
+   * the settings table. Done at enrolment; a tablet enrolled before this was asked once later.
+   */
+  async askForPersistentStorage(): Promise<void> {
+    const granted = await askForPersistentStorage();
+    if (granted === null) return;
+    await this.state.db.settings
+      .put({ key: PERSISTENCE_ASKED_KEY, value: { granted, at: this.state.now() } })
+      .catch(() => undefined);
+  }
+
+  /** An enrolled tablet that was never asked for persistent storage is asked now. */
+  async askForPersistentStorageOnce(): Promise<void> {
+    if (!this.state.tablet) return;
+    const asked = await this.state.db.settings.get(PERSISTENCE_ASKED_KEY).catch(() => undefined);
+    if (!asked) await this.askForPersistentStorage();
   }
 
   /** Asks the server about this tablet; a retired tablet starts emptying its Outbox. */
@@ -49,10 +74,15 @@ export class TabletLifecycle {
     if (!token) return;
     try {
       const status = await this.api.deviceStatus(token);
-      if (status.offlineUnlockHours !== undefined || status.maxPinAttempts !== undefined) {
+      if (
+        status.offlineUnlockHours !== undefined ||
+        status.maxPinAttempts !== undefined ||
+        status.unsyncedWarningHours !== undefined
+      ) {
         await this.pinLock.setPolicy({
           offlineUnlockHours: status.offlineUnlockHours,
           maxPinAttempts: status.maxPinAttempts,
+          unsyncedWarningHours: status.unsyncedWarningHours,
         });
         this.state.publish();
       }

@@ -3,6 +3,7 @@ import type { SessionUser } from '@fuselight/shared';
 import type { KnownColleague, KnownSite, TabletCredentials } from '../auth-db';
 import type { ErasureNote } from '../tablet-erasure';
 
+/** The clinic's policy for its tablets, as the server last gave it (GET /api/devices/me). */
 export interface UnlockPolicy {
   /** How long after the server last confirmed a person their PIN still unlocks offline. */
   offlineUnlockHours: number;
@@ -10,11 +11,17 @@ export interface UnlockPolicy {
   maxPinAttempts: number;
   /** Minutes without a touch or a key (or hidden) after which a protected tablet locks. */
   idleLockMinutes: number;
+  /**
+   * How long edits may wait unsynced before every screen warns (the clinic setting of the same
+   * name; pwa/src/storage/unsynced-age.ts).
+   */
+  unsyncedWarningHours: number;
 }
 export const DEFAULT_UNLOCK_POLICY: UnlockPolicy = {
   offlineUnlockHours: 72,
   maxPinAttempts: 5,
   idleLockMinutes: 5,
+  unsyncedWarningHours: 24,
 };
 
 export interface KnownPerson {

@@ -1,12 +1,74 @@
-// Sites: the clinic's locations and outreach places that people and tablets belong to.
+// Sites: the clinic's locations and outreach places that people and tablets belong to, and the
+// clinic's settings that every tablet follows.
 import { zodResolver } from '@hookform/resolvers/zod';
+import { clinicSettingsSchema, type ClinicSettings } from '@fuselight/shared';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import type { AdminSite } from '../../auth/identity-api';
 import { Button, Notice, SelectField, TextField, describeError } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
 import { siteFormSchema, type SiteForm } from './admin-forms.schema';
-import { useAddSite, useChangeSite, useSites } from './useAdminQueries';
+import {
+  useAddSite,
+  useChangeClinicSettings,
+  useChangeSite,
+  useClinicSettings,
+  useSites,
+} from './useAdminQueries';
+
+/** The clinic's settings: how long edits may wait unsynced on a tablet before it warns. */
+export function ClinicSettingsForm({ settings }: { settings: ClinicSettings }) {
+  const change = useChangeClinicSettings();
+  const form = useForm<ClinicSettings>({
+    resolver: zodResolver(clinicSettingsSchema),
+    defaultValues: settings,
+  });
+  const submit = form.handleSubmit(async (values) => {
+    await change.mutateAsync(values);
+    form.reset(values);
+  });
+  return (
+    <form
+      noValidate
+      aria-label="Clinic settings"
+      onSubmit={(e) => void submit(e).catch(() => undefined)}
+    >
+      <TextField
+        label="Warn when edits wait unsynced longer than (hours)"
+        hint="Every tablet warns on every screen once its oldest unsent edit is older than this; a browser may clear a tablet's storage. 24 hours unless changed."
+        type="number"
+        inputMode="numeric"
+        min={1}
+        max={720}
+        error={form.formState.errors.unsyncedWarningHours?.message}
+        {...form.register('unsyncedWarningHours', { valueAsNumber: true })}
+      />
+      {change.isError ? <Notice tone="error">{describeError(change.error)}</Notice> : null}
+      {change.isSuccess && !form.formState.isDirty ? (
+        <Notice tone="info">Saved. Tablets follow it at their next check with the server.</Notice>
+      ) : null}
+      <Button type="submit" disabled={change.isPending}>
+        {change.isPending ? 'Saving…' : 'Save settings'}
+      </Button>
+    </form>
+  );
+}
+
+function ClinicSettingsCard() {
+  const settings = useClinicSettings();
+  return (
+    <section className="fl-id-card" aria-labelledby="clinic-settings-heading">
+      <h2 id="clinic-settings-heading">Clinic settings</h2>
+      {settings.isPending ? <p role="status">Loading the clinic’s settings…</p> : null}
+      {settings.isError ? (
+        <Notice tone="error">
+          Could not load the clinic’s settings: {describeError(settings.error)}
+        </Notice>
+      ) : null}
+      {settings.data ? <ClinicSettingsForm settings={settings.data} /> : null}
+    </section>
+  );
+}
 
 function SiteFields({ form }: { form: ReturnType<typeof useForm<SiteForm>> }) {
   const { errors } = form.formState;
@@ -94,6 +156,7 @@ export default function SitesScreen() {
           </Button>
         </form>
       </section>
+      <ClinicSettingsCard />
       <section aria-labelledby="sites-heading">
         <h2 id="sites-heading">Sites</h2>
         {sites.isPending ? <p role="status">Loading sites…</p> : null}

@@ -1,5 +1,6 @@
 // TanStack Query hooks for the admin screens, each call made as the signed-in admin.
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type { ClinicSettingsChange } from '@fuselight/shared';
 import type { NewPerson, NewSite, PersonChange } from '../../auth/identity-api';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { queryKeys } from '../../data/query-keys';
@@ -86,5 +87,23 @@ export function useTabletAction() {
         action === 'revoke' ? api.revokeDevice(t, id) : api.retireDevice(t, id),
       ),
     onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.fleet() }),
+  });
+}
+
+export function useClinicSettings() {
+  const { api, asActivePerson } = useAuthActions();
+  return useQuery({
+    queryKey: queryKeys.identity.clinicSettings(),
+    queryFn: () => asActivePerson((t) => api.clinicSettings(t)),
+  });
+}
+
+export function useChangeClinicSettings() {
+  const { api, asActivePerson } = useAuthActions();
+  const client = useQueryClient();
+  return useMutation({
+    mutationFn: (change: ClinicSettingsChange) =>
+      asActivePerson((t) => api.changeClinicSettings(t, change)),
+    onSuccess: (settings) => client.setQueryData(queryKeys.identity.clinicSettings(), settings),
   });
 }

@@ -127,8 +127,14 @@ describe('the Outbox screen', () => {
     const clinicNumber = screen.getByLabelText('Clinic number');
     await userEvent.clear(clinicNumber);
     await userEvent.click(screen.getByRole('button', { name: 'Save and send again' }));
-    expect((await screen.findAllByRole('alert')).map((a) => a.textContent).join(' ')).toMatch(
-      /Clinic number/,
+    // The sync bar's own alert is there from the start: wait for the field's message itself.
+    await waitFor(() =>
+      expect(
+        screen
+          .getAllByRole('alert')
+          .map((a) => a.textContent)
+          .join(' '),
+      ).toMatch(/Clinic number/),
     );
     expect((await db.outbox.get(changeId))?.state).toBe('rejected');
     await userEvent.type(clinicNumber, 'FL-777');
@@ -141,6 +147,16 @@ describe('the Outbox screen', () => {
     const waiting = await screen.findByRole('region', { name: 'Waiting to be sent (1)' });
     expect(within(waiting).getAllByRole('listitem')).toHaveLength(1);
     expect(screen.queryByRole('region', { name: /^Refused by the server/ })).toBeNull();
+  });
+
+  it('says how long the oldest entry has waited', async () => {
+    const id = await records.create('patient', patientFields(), ctx());
+    const entry = (await outbox.listEntries()).find((e) => e.recordId === id)!;
+    await db.outbox.update(entry.changeId, { createdAt: Date.now() - 2 * 3_600_000 - 5 * 60_000 });
+    renderScreen();
+    expect((await screen.findByTestId('outbox-oldest')).textContent).toBe(
+      'The oldest entry has waited 2 hours 5 minutes.',
+    );
   });
 
   it('keeps another person’s refused edit visible but leaves fixing it to them', async () => {

@@ -11,6 +11,7 @@ import {
 } from '@fuselight/shared';
 import { useState } from 'react';
 import { useSession } from '../../auth/session-context';
+import { useTabletPolicy } from '../../auth/SessionProvider';
 import { SyncIndicator } from '../../components/SyncIndicator';
 import {
   RecordValidationError,
@@ -20,6 +21,13 @@ import {
   type DiscardReceipt,
   type OutboxEntry,
 } from '../../data';
+import {
+  describeWait,
+  describeWarningHours,
+  unsyncedTooLong,
+  waitedMs,
+} from '../../storage/unsynced-age';
+import { useNow } from '../../storage/useStorageWarnings';
 
 function recordLabel(collection: CollectionName): string {
   const label = collectionLabel(collection);
@@ -280,10 +288,32 @@ function EntryItem(props: {
   );
 }
 
+/**
+ * How long the oldest entry has waited, and whether that is past the clinic's setting: edits
+ * that wait exist only on this tablet, and a browser may clear its storage.
+ */
+export function OldestEntryWait(props: {
+  oldestCreatedAt: number;
+  nowMs: number;
+  warningHours: number;
+}) {
+  const waited = describeWait(waitedMs(props.oldestCreatedAt, props.nowMs));
+  const tooLong = unsyncedTooLong(props.oldestCreatedAt, props.nowMs, props.warningHours);
+  return (
+    <p className={tooLong ? undefined : 'fl-muted'} data-testid="outbox-oldest">
+      {tooLong
+        ? `The oldest entry has waited ${waited}, longer than the ${describeWarningHours(props.warningHours)} the clinic allows: sync as soon as the tablet can reach the clinic server.`
+        : `The oldest entry has waited ${waited}.`}
+    </p>
+  );
+}
+
 export default function OutboxScreen() {
   const { user } = useSession();
   const { outbox } = useRepositories();
   const entries = useOutboxEntries();
+  const policy = useTabletPolicy();
+  const nowMs = useNow();
   const [receipt, setReceipt] = useState<DiscardReceipt | null>(null);
   const [actionError, setActionError] = useState<string | null>(null);
 
@@ -309,6 +339,7 @@ export default function OutboxScreen() {
   const all = entries.data ?? [];
   const rejected = all.filter((entry) => entry.state === 'rejected');
   const pending = all.filter((entry) => entry.state === 'pending');
+  const oldestCreatedAt = all.length > 0 ? Math.min(...all.map((entry) => entry.createdAt)) : null;
 
   return (
     <IonPage>
@@ -365,6 +396,13 @@ export default function OutboxScreen() {
           <p>Nothing is waiting: every edit saved on this tablet has reached the clinic server.</p>
         ) : (
           <>
+            {oldestCreatedAt !== null ? (
+              <OldestEntryWait
+                oldestCreatedAt={oldestCreatedAt}
+                nowMs={nowMs}
+                warningHours={policy.unsyncedWarningHours}
+              />
+            ) : null}
             {rejected.length > 0 ? (
               <section aria-labelledby="outbox-refused">
                 <h2 id="outbox-refused">Refused by the server ({rejected.length})</h2>

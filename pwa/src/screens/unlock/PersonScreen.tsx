@@ -11,8 +11,10 @@ import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Confirmation, SelectField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
 import { UpdateAvailableNote } from '../../components/UpdateAvailableNote';
-import { describeFullRepull, useSyncStatus, type FullRepull } from '../../sync';
+import { describeFullRepull, useSyncStatus, type FullRepull, type TabRole } from '../../sync';
 import { queryKeys } from '../../data/query-keys';
+import { describeUsage, type StorageHealth } from '../../storage/storage-health';
+import { useStorageHealth } from '../../storage/useStorageHealth';
 import { BenchKeysSettings } from './BenchKeysSettings';
 import './bench-keys.css';
 
@@ -29,12 +31,56 @@ export function FullRepullNote(props: { repull: FullRepull | null }) {
   );
 }
 
+/** Which tab syncs, when this tablet has the app open in several tabs. */
+function tabRoleWords(role: TabRole): string | null {
+  switch (role) {
+    case 'alone':
+      return null;
+    case 'leading':
+      return 'This tab syncs the tablet for every tab of Fuselight open on it.';
+    case 'following':
+      return 'Another tab of Fuselight syncs this tablet; this one shows what it sends and receives.';
+  }
+}
+
+/**
+ * The tablet's storage: persistent or not (a browser may clear storage that is not), how much is
+ * used of the quota, and a warning from 80 % (storage-health.ts).
+ */
+export function StorageNote(props: { health: StorageHealth | undefined; failed?: boolean }) {
+  const { health } = props;
+  let persistence: string;
+  if (props.failed) persistence = 'The browser could not be asked about this tablet’s storage.';
+  else if (!health) persistence = 'Reading this tablet’s storage…';
+  else if (health.persisted === true)
+    persistence =
+      'Persistent storage: granted. The browser keeps what is stored on this tablet until Fuselight removes it.';
+  else if (health.persisted === false)
+    persistence =
+      'Persistent storage: not granted. The browser may clear what is stored on this tablet, unsent edits included, when space runs short or after days without use; sync often.';
+  else persistence = 'This browser cannot say whether it keeps this tablet’s storage; sync often.';
+  const percent = health?.usedShare != null ? Math.round(health.usedShare * 100) : null;
+  return (
+    <section aria-label="Storage on this tablet">
+      <h2 style={{ fontSize: '1.1rem' }}>Storage on this tablet</h2>
+      <p>{persistence}</p>
+      {health ? <p>{describeUsage(health)}</p> : null}
+      {health?.nearlyFull && percent !== null ? (
+        <p role="alert">
+          {`The storage is ${percent} % full. When it is full, edits cannot be saved: sync to send the Outbox, and free space on the tablet.`}
+        </p>
+      ) : null}
+    </section>
+  );
+}
+
 export default function PersonScreen() {
   const { user, activeSiteId, deviceId } = useSession();
   const { people, policy, sites } = useAuthState();
   const actions = useAuthActions();
   const navigate = useNavigate();
   const sync = useSyncStatus();
+  const storage = useStorageHealth();
   const [confirmingSignOut, setConfirmingSignOut] = useState(false);
   const waiting = useQuery({
     queryKey: queryKeys.identity.waitingChanges(user?.id ?? ''),
@@ -75,6 +121,8 @@ export default function PersonScreen() {
       ) : null}
       {deviceId ? <FullRepullNote repull={sync.fullRepull} /> : null}
       {deviceId ? <UpdateAvailableNote note={sync.newerRecords} /> : null}
+      {deviceId && tabRoleWords(sync.tabRole) ? <p>{tabRoleWords(sync.tabRole)}</p> : null}
+      {deviceId ? <StorageNote health={storage.data} failed={storage.isError} /> : null}
       {canSee(user.role, 'clinical') ? <BenchKeysSettings /> : null}
       <div className="fl-id-row">
         {deviceId ? (

@@ -3,7 +3,7 @@ import { resolve } from 'node:path';
 import { CLINICAL_CAUTION, collectionLabel } from '@fuselight/shared';
 import { render, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
-import { afterEach, describe, expect, it } from 'vitest';
+import { afterEach, describe, expect, it, vi } from 'vitest';
 import { AuthDb, type KnownSite } from '../../auth/auth-db';
 import { SessionProvider } from '../../auth/SessionProvider';
 import { SessionContext } from '../../auth/session-context';
@@ -21,12 +21,15 @@ import {
 } from '../../components/charting/test-support';
 import { ChartingRepository, VisitLockedError, VisitRuleError } from '../../data/charting';
 import { notifyDataChange } from '../../data/data-events';
+import { refuseWritesForQuota } from '../../data/quota-refusal.fixture';
+import { STORAGE_FULL_WORDS } from '../../data/storage-full';
 import VisitScreen from './VisitScreen';
 
 type Repos = ReturnType<typeof freshRepositories>;
 const opened: Repos[] = [];
 const authDbs: AuthDb[] = [];
 afterEach(async () => {
+  vi.restoreAllMocks();
   for (const repos of opened.splice(0)) {
     repos.db.close();
     await repos.db.delete();
@@ -140,6 +143,32 @@ describe('a Visit Section form', () => {
     });
     const entries = await repos.outbox.listEntries();
     expect(entries.some((e) => e.recordId === stored[0]!.id && e.fields.breakCm === 8)).toBe(true);
+  });
+
+  it('keeps what was typed and says so when the tablet’s storage is full, losing no Outbox entry', async () => {
+    const { repos, visitId } = await setupVisit();
+    const entriesBefore = await repos.outbox.listEntries();
+    const user = userEvent.setup();
+    renderVisit(repos, visitId);
+    const npc = await screen.findByRole('region', { name: 'Near point of convergence' });
+    const breakField = within(npc).getByLabelText('Near point of convergence, break');
+    refuseWritesForQuota('records');
+    await user.type(breakField, '9');
+    await user.tab();
+    await waitFor(() => expect(saveStateOf(npc)).toBe(`Not saved: ${STORAGE_FULL_WORDS}`));
+    expect((breakField as HTMLInputElement).value).toBe('9');
+    expect(await repos.outbox.listEntries()).toEqual(entriesBefore);
+    expect(await repos.records.listByField('nearPointConvergence', 'visitId', visitId)).toEqual([]);
+
+    // Room again: the next change saves what is on screen.
+    vi.restoreAllMocks();
+    await user.type(breakField, '{Backspace}10');
+    await user.tab();
+    await waitFor(() => expect(saveStateOf(npc)).toBe('Saved on this tablet'));
+    const stored = await repos.records.listByField('nearPointConvergence', 'visitId', visitId);
+    expect(stored[0]!.fields.breakCm).toBe(10);
+    const entries = await repos.outbox.listEntries();
+    expect(entries.slice(0, entriesBefore.length)).toEqual(entriesBefore);
   });
 
   it('shows the unit beside a number and the schema’s message beside a refused value, saving nothing', async () => {

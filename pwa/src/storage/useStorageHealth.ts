@@ -1,0 +1,15 @@
+// The browser's word on this site's storage (storage-health.ts), read again every minute.
+import { useQuery } from '@tanstack/react-query';
+import { queryKeys } from '../data/query-keys';
+import { readStorageHealth } from './storage-health';
+
+export const LOOK_AGAIN_MS = 60_000;
+
+export function useStorageHealth() {
+  return useQuery({
+    queryKey: queryKeys.device.storage(),
+    queryFn: () => readStorageHealth(),
+    refetchInterval: LOOK_AGAIN_MS,
+    networkMode: 'always',
+  });
+}
