@@ -4,6 +4,8 @@
 // tests, and the end-to-end tests in Debian's Chromium. Exits non-zero on any failure.
 //   node scripts/test.mjs --only shared,sync-server   run some workspaces (e2e is one: "e2e")
 //   node scripts/test.mjs --skip-lint                 skip lint and type checks
+//   node scripts/test.mjs --only e2e --files live,tabs-storage
+//                                                     run only the test files whose paths match
 import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
@@ -29,6 +31,8 @@ const only = onlyArg
   ? (onlyArg.includes('=') ? onlyArg.split('=')[1] : args[args.indexOf(onlyArg) + 1]).split(',')
   : null;
 const skipLint = args.includes('--skip-lint') || only !== null;
+const filesAt = args.indexOf('--files');
+const fileFilters = filesAt >= 0 ? (args[filesAt + 1] ?? '').split(',').filter(Boolean) : [];
 const suites = ['shared', 'pwa', 'sync-server', 'conflict-tests', 'e2e'].filter(
   (s) => !only || only.includes(s),
 );
@@ -70,7 +74,15 @@ async function vitest(workspace, env, config) {
   const cfg = config ? ['--config', config] : [];
   await run(
     'npx',
-    ['vitest', 'run', ...cfg, '--reporter=default', '--reporter=json', `--outputFile.json=${out}`],
+    [
+      'vitest',
+      'run',
+      ...fileFilters,
+      ...cfg,
+      '--reporter=default',
+      '--reporter=json',
+      `--outputFile.json=${out}`,
+    ],
     {
       cwd: join(repoRoot, workspace),
       env: { ...process.env, ...env },

@@ -4,6 +4,9 @@
 // a long-task observer say how responsive the screen stayed (the engine yields with its own
 // default, as in the app). The patient directory (the search, in memory) is loaded before the
 // sync starts, as the app has it by then, so keeping it current is part of the sync's time.
+import { DataKeyVault } from '../src/data/crypto/data-key-vault';
+import { newDataKey } from '../src/data/crypto/key-slots';
+import { isSealed } from '../src/data/crypto/value-codec';
 import { FuselightDb, type StoredRecord } from '../src/data/db';
 import { SyncEngine, type SyncTimings } from '../src/sync/sync-engine';
 
@@ -33,7 +36,8 @@ export interface RunFigures {
   screen: Responsiveness;
 }
 
-export type BenchRun = 'raw-one-call' | 'raw-chunked' | 'sync';
+/** `sync-sealed`: the same sync on a protected tablet (every value sealed with AES-GCM). */
+export type BenchRun = 'raw-one-call' | 'raw-chunked' | 'sync' | 'sync-sealed';
 
 export type SyncFigures = RunFigures & {
   timings: SyncTimings;
@@ -43,7 +47,28 @@ export type SyncFigures = RunFigures & {
   directoryPatients: number;
   /** Time the directory spent applying the committed pages. */
   directoryApplyMs: number;
+  /** Records whose stored value (read past Dexie, straight from IndexedDB) is a sealed box. */
+  sealedRecords: number;
 };
+
+/** Counts the records IndexedDB itself holds sealed, reading under the sealing layer. */
+async function countSealed(name: string): Promise<number> {
+  const idb = await new Promise<IDBDatabase>((resolve, reject) => {
+    const request = indexedDB.open(name);
+    request.onsuccess = () => resolve(request.result);
+    request.onerror = () => reject(request.error);
+  });
+  try {
+    const values = await new Promise<unknown[]>((resolve, reject) => {
+      const request = idb.transaction('records').objectStore('records').getAll();
+      request.onsuccess = () => resolve(request.result as unknown[]);
+      request.onerror = () => reject(request.error);
+    });
+    return values.filter(isSealed).length;
+  } finally {
+    idb.close();
+  }
+}
 
 const status = (text: string) => {
   const element = document.getElementById('status');
@@ -90,9 +115,9 @@ function watchScreen(): () => Promise<Responsiveness> {
   };
 }
 
-async function freshDb(name: string): Promise<FuselightDb> {
+async function freshDb(name: string, vault?: DataKeyVault): Promise<FuselightDb> {
   await FuselightDb.delete(name);
-  const db = new FuselightDb(name);
+  const db = vault ? new FuselightDb(name, vault) : new FuselightDb(name);
   await db.open();
   return db;
 }
@@ -118,8 +143,15 @@ async function rawPut(rows: StoredRecord[], chunk: number | null): Promise<RunFi
   return { ms, screen };
 }
 
-async function engineSync(options: BenchOptions): Promise<SyncFigures> {
-  const db = await freshDb('bench-sync');
+async function engineSync(options: BenchOptions, sealed = false): Promise<SyncFigures> {
+  let vault: DataKeyVault | undefined;
+  if (sealed) {
+    // A protected tablet, unlocked: its data key is held, so every value is sealed on write.
+    vault = new DataKeyVault();
+    vault.markProtected();
+    vault.hold(await newDataKey());
+  }
+  const db = await freshDb(sealed ? 'bench-sync-sealed' : 'bench-sync', vault);
   const engine = new SyncEngine({
     db,
     baseUrl: '',
@@ -143,7 +175,9 @@ async function engineSync(options: BenchOptions): Promise<SyncFigures> {
   const timings = engine.lastTimings as SyncTimings;
   const records = await db.records.count();
   const directory = db.patientDirectory.stats();
-  await drop(db);
+  db.close();
+  const sealedRecords = await countSealed(db.name);
+  await db.delete();
   return {
     ms,
     screen,
@@ -152,6 +186,7 @@ async function engineSync(options: BenchOptions): Promise<SyncFigures> {
     records,
     directoryPatients: directory.patients,
     directoryApplyMs: directory.applyMs,
+    sealedRecords,
   };
 }
 
@@ -162,6 +197,7 @@ async function runFirstSyncBench(
 ): Promise<RunFigures | SyncFigures> {
   status(run);
   if (run === 'sync') return engineSync(options);
+  if (run === 'sync-sealed') return engineSync(options, true);
   const rows = (await (await fetch('/bench/rows.json')).json()) as StoredRecord[];
   if (rows.length !== options.total) throw new Error(`expected ${options.total} rows`);
   return rawPut(rows, run === 'raw-chunked' ? options.rawChunk : null);

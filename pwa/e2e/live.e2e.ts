@@ -10,6 +10,7 @@ import { baseUrl, launchTablet, screenshot } from './support/browser';
 import { type Role, newPerson, newSite, runTag, seedClinic } from './support/clinic-fixtures';
 import {
   enrolClinicianTablet,
+  gotoOnTablet,
   openAndSignIn,
   openSection,
   serviceWorkerReady,
@@ -113,13 +114,14 @@ describe('live changes between tablets and the Review desk', () => {
     await syncNow(one);
 
     // Tablet B is told and pulls by itself: the visit opens there with A's angle, no sync asked.
-    await two.goto(`${baseUrl()}/visit/${visitId}`);
+    await gotoOnTablet(two, `${baseUrl()}/visit/${visitId}`);
+    await openSection(two, 'section-amblyoscope');
     await recorded(two, 'Objective horizontal angle')
       .getByText('+12 °')
       .waitFor({ timeout: 15_000 });
 
     // A changes the angle and sends it; B's open Visit shows it within 2 s, untouched.
-    await one.goto(`${baseUrl()}/visit/${visitId}`);
+    await gotoOnTablet(one, `${baseUrl()}/visit/${visitId}`);
     await typeAngle(one, 'Objective horizontal angle', 'eso 16');
     await syncNow(one);
     const sent = Date.now();
@@ -139,7 +141,8 @@ describe('live changes between tablets and the Review desk', () => {
     expect(await reviewTab.locator('ion-badge').count()).toBe(0);
 
     // The two tablets disagree offline about the angle; A sends first, B's send opens a Dispute.
-    await one.goto(`${baseUrl()}/visit/${visitId}`);
+    await gotoOnTablet(one, `${baseUrl()}/visit/${visitId}`);
+    await openSection(one, 'section-amblyoscope');
     await recorded(one, 'Objective horizontal angle').getByText('+16 °').waitFor();
     await tabletA.setOffline(true);
     await tabletB.setOffline(true);

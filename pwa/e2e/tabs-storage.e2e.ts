@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { expectNoSeriousViolations } from './support/accessibility';
 import { baseUrl, launchTablet, screenshot } from './support/browser';
 import { newPerson, newSite, runTag, seedClinic } from './support/clinic-fixtures';
-import { enrolClinicianTablet, signInAdmin } from './support/tablet-flows';
+import { enrolClinicianTablet, openAnotherTab, signInAdmin } from './support/tablet-flows';
 
 const run = runTag();
 const site = newSite(`Quillbrook Eye Room ${run}`);
@@ -159,8 +159,7 @@ describe('two tabs of the app on one tablet', () => {
   });
 
   it('pushes each Outbox entry once from the tab that leads, and both tabs show both edits', async () => {
-    second = await tablet.newPage();
-    await second.goto(`${baseUrl()}/today`);
+    second = await openAnotherTab(first, `${baseUrl()}/today`);
     await second.getByRole('heading', { name: 'Today' }).first().waitFor();
 
     const since = calls.length;

@@ -88,6 +88,18 @@ export async function unlockIfLocked(page: Page) {
   await page.waitForURL((url) => !url.pathname.startsWith('/unlock'));
 }
 
+/**
+ * Another tab of the same tablet: it opens locked, as a reload does, so it is unlocked with the
+ * PIN of the person on `like` (the tab already unlocked).
+ */
+export async function openAnotherTab(like: Page, url: string): Promise<Page> {
+  const page = await like.context().newPage();
+  const known = pinsOf.get(like);
+  if (known) pinsOf.set(page, known);
+  await gotoOnTablet(page, url);
+  return page;
+}
+
 /** Opens `url` on a tablet page, unlocking it with its PIN if it asks. */
 export async function gotoOnTablet(page: Page, url: string) {
   await page.goto(url);
