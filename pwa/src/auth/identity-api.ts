@@ -86,6 +86,8 @@ export interface DeviceStatus {
   deviceId?: string;
   label?: string;
   siteIds?: string[];
+  /** The sites whose records the tablet may hold now (absent from servers before it). */
+  holdSiteIds?: string[];
   /** Optional clinic policy the server may send for offline unlock. */
   offlineUnlockHours?: number;
   maxPinAttempts?: number;

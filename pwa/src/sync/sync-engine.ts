@@ -20,6 +20,7 @@ import {
 } from '@fuselight/shared';
 import type { FuselightDb, OutboxEntry } from '../data/db';
 import { subscribeDataChanges } from '../data/data-events';
+import { readSiteScope, subscribeSiteRemoval } from '../data/site-scope';
 import { isQuotaExceeded } from '../data/storage-full';
 import type { BackoffPolicy } from './backoff';
 import { readFullRepull } from './full-repull';
@@ -306,6 +307,8 @@ export class SyncEngine {
           if (change.outbox) void this.refreshCounts();
         }),
         this.status.subscribe(() => this.announceStatus()),
+        // Records of a site the tablet no longer serves were removed (data/site-scope.ts).
+        subscribeSiteRemoval((note) => this.status.update({ siteRemoval: note })),
       ],
       () => void this.loadPersistedStatus(),
     );
@@ -402,6 +405,7 @@ export class SyncEngine {
     this.status.update({
       fullRepull: await readFullRepull(this.db),
       newerRecords: await reviewNewerRecords(this.db, this.options.build ?? THIS_BUILD),
+      siteRemoval: (await readSiteScope(this.db))?.lastRemoval ?? null,
     });
     await this.refreshCounts();
   }

@@ -23,6 +23,7 @@ import { APP_CONFIG, type AppConfig } from '../config/app-config';
 import {
   assertSitesExist,
   replaceDeviceSites,
+  siteIdsDeviceMayHold,
   siteIdsOfDevice,
   siteIdsOfDevices,
 } from '../users/memberships';
@@ -46,6 +47,12 @@ export interface DeviceSelfView {
   label: string;
   state: DeviceState;
   siteIds: string[];
+  /**
+   * The sites whose records the tablet may hold now: its own sites that an active clinical
+   * person who signed in on it still belongs to. A tablet deletes the records of any other site
+   * it holds, keeping unsent Outbox entries (docs/sync-protocol.md). Absent from older servers.
+   */
+  holdSiteIds: string[];
   /** The clinic setting every tablet follows: hours unsynced edits may wait before it warns. */
   unsyncedWarningHours: number;
 }
@@ -251,7 +258,7 @@ export class DevicesService {
       device.appVersion = report.appVersion;
       device.outboxSize = report.outboxSize;
       await em.flush();
-      return this.selfView(device, caller);
+      return this.selfView(em, device, caller);
     });
   }
 
@@ -269,17 +276,23 @@ export class DevicesService {
   }
 
   async self(caller: AuthUser): Promise<DeviceSelfView> {
-    const device = await this.find(this.em.fork(), caller.deviceId ?? '');
-    return this.selfView(device, caller);
+    const em = this.em.fork();
+    const device = await this.find(em, caller.deviceId ?? '');
+    return this.selfView(em, device, caller);
   }
 
-  private async selfView(device: Device, caller: AuthUser): Promise<DeviceSelfView> {
+  private async selfView(
+    em: EntityManager,
+    device: Device,
+    caller: AuthUser,
+  ): Promise<DeviceSelfView> {
     const settings = await this.settings.read();
     return {
       deviceId: device.id,
       label: device.label,
       state: device.state,
       siteIds: caller.siteIds,
+      holdSiteIds: await siteIdsDeviceMayHold(em, device.id),
       unsyncedWarningHours: settings.unsyncedWarningHours,
     };
   }

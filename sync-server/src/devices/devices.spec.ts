@@ -1,6 +1,7 @@
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { ATTEMPT_LIMITS } from '../auth/attempt-limiter.service';
+import { replaceDeviceSites } from '../users/memberships';
 import {
   bearer,
   createSite,
@@ -124,6 +125,59 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
       outboxSize: 7,
       lastSeenAt: t.clock.now().toISOString(),
     });
+  });
+
+  it('answers the sites the tablet may hold, without a site it or its people lost', async () => {
+    const second = (await createSite(t)).id;
+    const ticket = await register('Two-site tablet', [siteId, second]);
+    const enrolled = await enrol(ticket.body.enrolmentCode);
+    const device = { deviceId: enrolled.body.deviceId, deviceSecret: enrolled.body.deviceSecret };
+    const person = await createUser(t, { role: 'orthoptist', siteIds: [siteId, second] });
+    const session = await signIn(t, { user: person, device });
+    const beat = () =>
+      request(server())
+        .post('/api/devices/heartbeat')
+        .set(bearer(session.accessToken))
+        .send({ appVersion: '0.3.1', outboxSize: 0 });
+    expect((await beat()).body.holdSiteIds).toEqual([siteId, second].sort());
+
+    // The admin takes the second site off the tablet: the very next answer leaves it out, while
+    // the session's own token still names it.
+    await t.em().transactional((em) => replaceDeviceSites(em, device.deviceId, [siteId]));
+    const afterTablet = await beat();
+    expect(afterTablet.body.holdSiteIds).toEqual([siteId]);
+    expect(afterTablet.body.siteIds).toContain(second);
+    const me = await request(server()).get('/api/devices/me').set(bearer(session.accessToken));
+    expect(me.body.holdSiteIds).toEqual([siteId]);
+
+    // A person who loses the site: the tablet serves it, but nobody who signed in on it belongs
+    // to it any more. A colleague at another site only does not bring it back.
+    await t.em().transactional((em) => replaceDeviceSites(em, device.deviceId, [siteId, second]));
+    const colleague = await createUser(t, { role: 'orthoptist', siteIds: [siteId] });
+    const colleagueSession = await signIn(t, { user: colleague, device });
+    const change = await request(server())
+      .patch(`/api/admin/users/${person.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ siteIds: [siteId] });
+    expect(change.status).toBe(200);
+    const byColleague = await request(server())
+      .get('/api/devices/me')
+      .set(bearer(colleagueSession.accessToken));
+    expect(byColleague.body.holdSiteIds).toEqual([siteId]);
+    // A deactivated person's memberships keep nothing either.
+    for (const id of [person.id, colleague.id]) {
+      const off = await request(server())
+        .patch(`/api/admin/users/${id}`)
+        .set(bearer(admin.accessToken))
+        .send({ active: false });
+      expect(off.status).toBe(200);
+    }
+    const third = await createUser(t, { role: 'supervisor', siteIds: [second] });
+    const thirdSession = await signIn(t, { user: third, device });
+    const byThird = await request(server())
+      .get('/api/devices/me')
+      .set(bearer(thirdSession.accessToken));
+    expect(byThird.body.holdSiteIds).toEqual([second]);
   });
 
   it('names the field of a malformed heartbeat', async () => {

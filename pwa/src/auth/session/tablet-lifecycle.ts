@@ -16,6 +16,15 @@ import type { PinLock } from './pin-lock';
 import type { SessionState } from './session-state';
 import type { SessionTokens } from './tokens';
 
+/**
+ * Removes what the tablet holds of sites outside `holdSiteIds` (data/site-scope.ts); `siteName`
+ * names a site for the words on screen.
+ */
+export type SiteScopeApplier = (
+  holdSiteIds: readonly string[],
+  siteName: (siteId: string) => string | null,
+) => Promise<void>;
+
 /** Settings key noting that the browser was asked for persistent storage, and its answer. */
 export const PERSISTENCE_ASKED_KEY = 'storagePersistenceAsked';
 
@@ -29,7 +38,24 @@ export class TabletLifecycle {
     private readonly tokens: () => SessionTokens,
     private readonly eraseDatabases: () => Promise<unknown>,
     private readonly keyRing: Pick<KeyRing, 'destroySlots'>,
+    private readonly applySiteScope: SiteScopeApplier | null = null,
   ) {}
+
+  /**
+   * The server named the sites this tablet may hold now (older servers do not): what it holds
+   * of any other site goes, unsent edits stay (data/site-scope.ts). A failure here is retried at
+   * the next contact and never stops the heartbeat.
+   */
+  private async keepToSites(answer: unknown): Promise<void> {
+    if (!this.applySiteScope || typeof answer !== 'object' || answer === null) return;
+    const hold = (answer as { holdSiteIds?: unknown }).holdSiteIds;
+    if (!Array.isArray(hold) || !hold.every((id) => typeof id === 'string')) return;
+    try {
+      await this.applySiteScope(hold, (id) => this.state.sites.get(id)?.name ?? null);
+    } catch {
+      // Retried at the next contact.
+    }
+  }
 
   async enrol(code: string): Promise<void> {
     const answer = await this.api.enrol(code.trim().toUpperCase());
@@ -74,6 +100,7 @@ export class TabletLifecycle {
     if (!token) return;
     try {
       const status = await this.api.deviceStatus(token);
+      await this.keepToSites(status);
       if (
         status.offlineUnlockHours !== undefined ||
         status.maxPinAttempts !== undefined ||
@@ -119,7 +146,11 @@ export class TabletLifecycle {
     const token = await this.tokens().anyToken();
     if (!token) return;
     try {
-      await this.api.heartbeat(token, { appVersion, outboxSize: await this.state.countOutbox() });
+      const answer = await this.api.heartbeat(token, {
+        appVersion,
+        outboxSize: await this.state.countOutbox(),
+      });
+      await this.keepToSites(answer);
     } catch (error) {
       if (await this.eraseIfTold(error)) return;
       if (!(error instanceof NetworkError)) throw error;
