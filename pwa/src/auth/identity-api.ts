@@ -14,6 +14,7 @@ import {
   type ClinicSettings,
   type ClinicSettingsChange,
   type FleetDevice,
+  type KeyProtectionKind,
   type InvitedPerson,
 } from '@fuselight/shared/admin-views';
 import {
@@ -206,7 +207,10 @@ export class IdentityApi {
     return bytes;
   }
 
-  heartbeat(token: string, report: { appVersion: string; outboxSize: number }): Promise<unknown> {
+  heartbeat(
+    token: string,
+    report: { appVersion: string; outboxSize: number; keyProtection?: KeyProtectionKind },
+  ): Promise<unknown> {
     return this.request('POST', '/api/devices/heartbeat', { token, body: report });
   }
 

@@ -250,4 +250,20 @@ describe('a tablet the clinic takes back', () => {
       { hold: [SITE_A], names: ['Harbourview Eye Clinic', 'Saltmarsh School (outreach)'] },
     ]);
   });
+
+  it('reports in its heartbeat how its data key is protected: PIN only, then passphrase', async () => {
+    const { store, server } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    await signIn(store, AMARA.email);
+    const reported = async () => {
+      await store.heartbeat('0.1.0');
+      const beats = server.calls.filter((c) => c.route === 'POST /api/devices/heartbeat');
+      return (beats.at(-1)?.body as { keyProtection?: string }).keyProtection;
+    };
+    await store.setPin('482913');
+    expect(await reported()).toBe('pin-only');
+    await store.setPin('harbour lights at dusk');
+    expect(await reported()).toBe('passphrase');
+  });
 });

@@ -257,6 +257,7 @@ export class DevicesService {
       device.lastSeenAt = this.clock.now();
       device.appVersion = report.appVersion;
       device.outboxSize = report.outboxSize;
+      if (report.keyProtection !== undefined) device.keyProtection = report.keyProtection;
       await em.flush();
       return this.selfView(em, device, caller);
     });
@@ -331,6 +332,7 @@ export class DevicesService {
       lastSeenAt: iso(device.lastSeenAt),
       appVersion: device.appVersion,
       outboxSize: device.outboxSize,
+      keyProtection: device.keyProtection,
       retiredAt: iso(device.retiredAt),
       revokedAt: iso(device.revokedAt),
     };

@@ -180,6 +180,34 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
     expect(byThird.body.holdSiteIds).toEqual([second]);
   });
 
+  it('stores how the tablet’s data key is protected and shows it in the Fleet list', async () => {
+    const { deviceId, session } = await enrolledTabletSession();
+    const row = async () => {
+      const list = await request(server()).get('/api/admin/devices').set(bearer(admin.accessToken));
+      return list.body.find((d: { id: string }) => d.id === deviceId);
+    };
+    expect((await row()).keyProtection).toBeNull();
+    const beat = (body: object) =>
+      request(server())
+        .post('/api/devices/heartbeat')
+        .set(bearer(session.accessToken))
+        .send({ appVersion: '0.4.0', outboxSize: 0, ...body });
+    expect((await beat({ keyProtection: 'pin-only' })).status).toBe(200);
+    expect((await row()).keyProtection).toBe('pin-only');
+    // A tablet of an earlier build sends none: what was reported stays.
+    expect((await beat({})).status).toBe(200);
+    expect((await row()).keyProtection).toBe('pin-only');
+    expect((await beat({ keyProtection: 'passphrase' })).status).toBe(200);
+    expect(await row()).toMatchObject({ keyProtection: 'passphrase', appVersion: '0.4.0' });
+
+    const bad = await beat({ keyProtection: 'fingerprint' });
+    expect(bad.status).toBe(400);
+    expect(bad.body.message).toContain(
+      'body.keyProtection: must be one of unprotected, server-only, pin-only, passphrase, hardware',
+    );
+    expect((await row()).keyProtection).toBe('passphrase');
+  });
+
   it('names the field of a malformed heartbeat', async () => {
     const { session } = await enrolledTabletSession();
     const res = await request(server())

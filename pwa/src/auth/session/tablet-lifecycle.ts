@@ -2,6 +2,7 @@
 // unlock policy; retired: send what is left, then erase), the heartbeat, and erasure when the
 // clinic revokes or retires it (every database erased, a note kept to say why). At enrolment it
 // asks the browser for persistent storage (pwa/src/storage/storage-health.ts).
+import type { KeyProtectionKind } from '@fuselight/shared/admin-views';
 import type { KeyRing } from '../../data/crypto/key-ring';
 import { askForPersistentStorage } from '../../storage/storage-health';
 import type { TabletCredentials } from '../auth-db';
@@ -12,6 +13,7 @@ import {
   type ErasureCause,
   type ErasureNote,
 } from '../tablet-erasure';
+import { keyProtectionOf } from './key-protection';
 import type { PinLock } from './pin-lock';
 import type { SessionState } from './session-state';
 import type { SessionTokens } from './tokens';
@@ -37,7 +39,7 @@ export class TabletLifecycle {
     private readonly pinLock: PinLock,
     private readonly tokens: () => SessionTokens,
     private readonly eraseDatabases: () => Promise<unknown>,
-    private readonly keyRing: Pick<KeyRing, 'destroySlots'>,
+    private readonly keyRing: Pick<KeyRing, 'destroySlots'> & Partial<Pick<KeyRing, 'slotSummary'>>,
     private readonly applySiteScope: SiteScopeApplier | null = null,
   ) {}
 
@@ -146,14 +148,27 @@ export class TabletLifecycle {
     const token = await this.tokens().anyToken();
     if (!token) return;
     try {
+      const keyProtection = await this.keyProtection();
       const answer = await this.api.heartbeat(token, {
         appVersion,
         outboxSize: await this.state.countOutbox(),
+        ...(keyProtection ? { keyProtection } : {}),
       });
       await this.keepToSites(answer);
     } catch (error) {
       if (await this.eraseIfTold(error)) return;
       if (!(error instanceof NetworkError)) throw error;
+    }
+  }
+
+  /** How the data key is protected now (key-protection.ts); null when it cannot be read. */
+  async keyProtection(): Promise<KeyProtectionKind | null> {
+    if (!this.keyRing.slotSummary) return null;
+    try {
+      const slots = await this.keyRing.slotSummary();
+      return keyProtectionOf(slots, (userId) => this.pinLock.secretKind(userId));
+    } catch {
+      return null;
     }
   }
 

@@ -1,7 +1,8 @@
 // The Fleet: register a tablet and show its one-time enrolment code as a QR code, see each
-// tablet's last contact, app version and Outbox size, and revoke or retire it.
+// tablet's last contact, app version, Outbox size and how its data key is protected (with the
+// risk of a PIN-only tablet in plain words), and revoke or retire it.
 import { zodResolver } from '@hookform/resolvers/zod';
-import type { FleetDevice } from '@fuselight/shared';
+import type { FleetDevice, KeyProtectionKind } from '@fuselight/shared';
 import { QRCodeSVG } from 'qrcode.react';
 import { useState } from 'react';
 import { Controller, useForm } from 'react-hook-form';
@@ -19,6 +20,23 @@ const STATE_WORDS: Record<FleetDevice['state'], string> = {
   retired: 'Retired: sending its last changes, then erasing',
   revoked: 'Revoked',
 };
+
+/** How a tablet's data key is protected (docs/threat-model.md), in words for the admin. */
+export const KEY_PROTECTION_WORDS: Record<KeyProtectionKind, string> = {
+  'pin-only': 'PIN only',
+  passphrase: 'Passphrase',
+  hardware: 'Hardware key with PIN',
+  'server-only': 'Online sign-in only',
+  unprotected: 'Not protected yet',
+};
+
+export function keyProtectionWords(kind: KeyProtectionKind | null | undefined): string {
+  return kind ? KEY_PROTECTION_WORDS[kind] : 'Not reported';
+}
+
+/** The risk of PIN-only tablets, as docs/threat-model.md gives it. */
+export const PIN_ONLY_RISK =
+  'A PIN alone protects these tablets’ data only while the tablet stays out of an attacker’s hands. Someone who copies the browser profile can try every PIN offline, where the wrong-PIN limit does not count: a high-end graphics card tries every 6-digit PIN in about 3 minutes. A passphrase of 12 or more characters that cannot be guessed resists this; revoke a lost tablet at once.';
 
 function when(iso: string | null | undefined): string {
   return iso ? new Date(iso).toLocaleString() : 'never';
@@ -119,6 +137,15 @@ function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: stri
         <td>{when(tablet.lastSeenAt)}</td>
         <td>{tablet.appVersion ?? 'not reported'}</td>
         <td>{tablet.outboxSize ?? 'not reported'}</td>
+        <td>
+          {keyProtectionWords(tablet.keyProtection)}
+          {tablet.keyProtection === 'pin-only' ? (
+            <span className="fl-muted"> (can be opened offline if copied)</span>
+          ) : null}
+          {tablet.keyProtection === 'unprotected' ? (
+            <span className="fl-muted"> (stored unencrypted until someone unlocks it)</span>
+          ) : null}
+        </td>
         <td className="fl-fleet-actions">
           {ended ? null : (
             <div className="fl-fleet-actions__buttons">
@@ -182,8 +209,27 @@ const FLEET_COLUMNS = [
   'Last contact',
   'App version',
   'Outbox',
+  'Data key',
   'Actions',
 ] as const;
+
+/** Names the PIN-only tablets still in use and says their risk plainly. */
+function PinOnlyRisk({ tablets }: { tablets: readonly FleetDevice[] }) {
+  const pinOnly = tablets.filter(
+    (t) => t.keyProtection === 'pin-only' && t.state !== 'revoked' && t.state !== 'retired',
+  );
+  if (pinOnly.length === 0) return null;
+  return (
+    <Notice tone="warning">
+      <strong>
+        {pinOnly.length === 1
+          ? `${pinOnly[0]!.label} is protected by a PIN only.`
+          : `${pinOnly.length} tablets are protected by a PIN only: ${pinOnly.map((t) => t.label).join(', ')}.`}
+      </strong>{' '}
+      {PIN_ONLY_RISK}
+    </Notice>
+  );
+}
 
 export default function FleetScreen() {
   const fleet = useFleet();
@@ -203,6 +249,7 @@ export default function FleetScreen() {
           </Notice>
         ) : null}
         {fleet.data && fleet.data.length === 0 ? <p>No tablets are registered yet.</p> : null}
+        {fleet.data ? <PinOnlyRisk tablets={fleet.data} /> : null}
         {fleet.data && fleet.data.length > 0 ? (
           <div className="fl-fleet-scroll">
             <table className="fl-id-table fl-fleet-table">
