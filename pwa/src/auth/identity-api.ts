@@ -263,6 +263,12 @@ export class IdentityApi {
   ): Promise<RegisteredDevice> {
     return this.request('POST', '/api/admin/devices', { token, body: device });
   }
+  /** Replaces the sites a tablet serves (a site taken off is removed from it at its next contact). */
+  async changeDeviceSites(token: string, id: string, siteIds: string[]): Promise<FleetDevice> {
+    const path = `/api/admin/devices/${encodeURIComponent(id)}/sites`;
+    const body = await this.request('PATCH', path, { token, body: { siteIds } });
+    return parseAnswer(fleetDeviceSchema, body, 'PATCH /api/admin/devices/:id/sites');
+  }
   async revokeDevice(token: string, id: string): Promise<FleetDevice> {
     const path = `/api/admin/devices/${encodeURIComponent(id)}/revoke`;
     const body = await this.request('POST', path, { token });

@@ -15,6 +15,8 @@ export const registerDeviceSchema = z.object({
   siteIds,
 });
 
+export const changeDeviceSitesSchema = z.object({ siteIds });
+
 export const enrolDeviceSchema = z.object({
   code: z
     .string({ error: 'type the enrolment code an admin gave you' })

@@ -29,7 +29,11 @@ import {
 } from '../users/memberships';
 import { ClinicSettingsService } from '../settings/clinic-settings.service';
 import { Device } from './device.entity';
-import type { heartbeatSchema, registerDeviceSchema } from './devices.schemas';
+import type {
+  changeDeviceSitesSchema,
+  heartbeatSchema,
+  registerDeviceSchema,
+} from './devices.schemas';
 
 export const ENROLMENT_CODE_TTL_MS = 24 * 60 * 60 * 1000;
 
@@ -138,6 +142,38 @@ export class DevicesService {
       devices.map((device) => device.id),
     );
     return devices.map((device) => this.view(device, sites.get(device.id) ?? []));
+  }
+
+  /**
+   * Replaces the sites a tablet serves. A site taken off is removed from the tablet at its next
+   * contact (GET /api/devices/me and the heartbeat answer `holdSiteIds`), its unsent edits kept;
+   * sessions already open keep their token's sites until it is renewed (at most the access
+   * token's lifetime), and the tablet does not store that site's records meanwhile.
+   */
+  async changeSites(
+    admin: Pick<AuthUser, 'userId'> | null,
+    deviceId: string,
+    input: z.infer<typeof changeDeviceSitesSchema>,
+  ): Promise<FleetDevice> {
+    return this.em.fork().transactional(async (em) => {
+      const device = await this.find(em, deviceId);
+      if (device.state === 'revoked' || device.state === 'retired') {
+        throw new ConflictException(`This tablet is ${device.state}; its sites cannot change.`);
+      }
+      await assertSitesExist(em, input.siteIds, 'body.siteIds');
+      const before = await siteIdsOfDevice(em, device.id);
+      await replaceDeviceSites(em, device.id, input.siteIds);
+      const after = await siteIdsOfDevice(em, device.id);
+      await this.audit.record(em, {
+        kind: 'device.sites_changed',
+        actorId: admin?.userId ?? null,
+        deviceId: device.id,
+        subjectType: 'device',
+        subjectId: device.id,
+        detail: { before, after },
+      });
+      return this.view(device, after);
+    });
   }
 
   async revoke(admin: Pick<AuthUser, 'userId'> | null, deviceId: string): Promise<FleetDevice> {

@@ -1,7 +1,6 @@
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { ATTEMPT_LIMITS } from '../auth/attempt-limiter.service';
-import { replaceDeviceSites } from '../users/memberships';
 import {
   bearer,
   createSite,
@@ -143,7 +142,12 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
 
     // The admin takes the second site off the tablet: the very next answer leaves it out, while
     // the session's own token still names it.
-    await t.em().transactional((em) => replaceDeviceSites(em, device.deviceId, [siteId]));
+    const changed = await request(server())
+      .patch(`/api/admin/devices/${device.deviceId}/sites`)
+      .set(bearer(admin.accessToken))
+      .send({ siteIds: [siteId] });
+    expect(changed.status).toBe(200);
+    expect(changed.body).toMatchObject({ id: device.deviceId, siteIds: [siteId] });
     const afterTablet = await beat();
     expect(afterTablet.body.holdSiteIds).toEqual([siteId]);
     expect(afterTablet.body.siteIds).toContain(second);
@@ -152,7 +156,11 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
 
     // A person who loses the site: the tablet serves it, but nobody who signed in on it belongs
     // to it any more. A colleague at another site only does not bring it back.
-    await t.em().transactional((em) => replaceDeviceSites(em, device.deviceId, [siteId, second]));
+    await request(server())
+      .patch(`/api/admin/devices/${device.deviceId}/sites`)
+      .set(bearer(admin.accessToken))
+      .send({ siteIds: [siteId, second] })
+      .expect(200);
     const colleague = await createUser(t, { role: 'orthoptist', siteIds: [siteId] });
     const colleagueSession = await signIn(t, { user: colleague, device });
     const change = await request(server())
@@ -206,6 +214,28 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
       'body.keyProtection: must be one of unprotected, server-only, pin-only, passphrase, hardware',
     );
     expect((await row()).keyProtection).toBe('passphrase');
+  });
+
+  it('names the field when a tablet’s new sites are malformed, and refuses a revoked tablet', async () => {
+    const { deviceId } = await enrolledTabletSession();
+    const change = (siteIds: unknown) =>
+      request(server())
+        .patch(`/api/admin/devices/${deviceId}/sites`)
+        .set(bearer(admin.accessToken))
+        .send({ siteIds });
+    const empty = await change([]);
+    expect(empty.status).toBe(400);
+    expect(empty.body.message).toContain('body.siteIds: name at least one site the tablet serves');
+    const unknown = await change(['01935a00-0000-7000-8000-00000000dead']);
+    expect(unknown.status).toBe(400);
+    expect(unknown.body.message).toContain('body.siteIds.0: no site has the id');
+    await request(server())
+      .post(`/api/admin/devices/${deviceId}/revoke`)
+      .set(bearer(admin.accessToken))
+      .expect(200);
+    const revoked = await change([siteId]);
+    expect(revoked.status).toBe(409);
+    expect(revoked.body.message).toBe('This tablet is revoked; its sites cannot change.');
   });
 
   it('names the field of a malformed heartbeat', async () => {

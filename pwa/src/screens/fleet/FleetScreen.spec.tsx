@@ -9,6 +9,7 @@ import {
   PASSWORDS,
   ROSALIND,
   SITE_A,
+  SITE_B,
   fakeClinicServer,
 } from '../../auth/fake-clinic-server.fixture';
 import type { FleetDevice } from '@fuselight/shared';
@@ -38,6 +39,13 @@ async function renderFleet(devices: unknown[]) {
               address: null,
               timeZone: 'Europe/London',
             },
+            {
+              id: SITE_B,
+              name: 'Saltmarsh School',
+              kind: 'outreach',
+              address: null,
+              timeZone: 'Europe/London',
+            },
           ],
         };
       case 'GET /api/admin/devices':
@@ -52,6 +60,13 @@ async function renderFleet(devices: unknown[]) {
             qrPayload: 'http://tablet.test/enrol#code=H4RB0URV',
           },
         };
+      case `PATCH /api/admin/devices/${TABLET_ID}/sites`:
+        devices = devices.map((d) =>
+          (d as FleetDevice).id === TABLET_ID
+            ? { ...(d as FleetDevice), siteIds: (body as { siteIds: string[] }).siteIds }
+            : d,
+        );
+        return { status: 200, body: devices[0] };
       case `POST /api/admin/devices/${TABLET_ID}/revoke`:
         devices = devices.map((d) =>
           (d as FleetDevice).id === TABLET_ID
@@ -171,6 +186,38 @@ describe('the Fleet', () => {
     ]);
     await screen.findByRole('row', { name: /Orthoptics room 2/ });
     expect(document.body.textContent).not.toContain('protected by a PIN only');
+  });
+
+  it('changes a tablet’s sites, saying that a site taken off is removed from the tablet', async () => {
+    const { seen } = await renderFleet([{ ...tablet, siteIds: [SITE_A, SITE_B] }]);
+    const user = userEvent.setup();
+    const row = await screen.findByRole('row', { name: /Orthoptics room 2/ });
+    expect(row.textContent).toContain('Harbourview Clinic, Saltmarsh School');
+    await user.click(
+      within(row).getByRole('button', { name: 'Change the sites of Orthoptics room 2' }),
+    );
+    const dialog = screen.getByRole('alertdialog', { name: 'Sites of Orthoptics room 2' });
+    await user.click(within(dialog).getByRole('checkbox', { name: /Saltmarsh School/ }));
+    expect(dialog.textContent).toContain(
+      'Records of Saltmarsh School will be removed from this tablet the next time it reaches the server. Edits it has not sent yet are kept until they reach the server.',
+    );
+    await user.click(within(dialog).getByRole('checkbox', { name: /Harbourview Clinic/ }));
+    await user.click(within(dialog).getByRole('button', { name: 'Save sites' }));
+    expect(dialog.textContent).toContain('Sites: choose at least one site this tablet serves');
+    expect(seen.some((s) => s.route.startsWith('PATCH'))).toBe(false);
+
+    await user.click(within(dialog).getByRole('checkbox', { name: /Harbourview Clinic/ }));
+    await user.click(within(dialog).getByRole('button', { name: 'Save sites' }));
+    await waitFor(() => expect(screen.queryByRole('alertdialog')).toBeNull());
+    expect(seen.find((s) => s.route.startsWith('PATCH'))).toEqual({
+      route: `PATCH /api/admin/devices/${TABLET_ID}/sites`,
+      body: { siteIds: [SITE_A] },
+    });
+    await waitFor(() =>
+      expect(screen.getByRole('row', { name: /Orthoptics room 2/ }).textContent).not.toContain(
+        'Saltmarsh School',
+      ),
+    );
   });
 
   it('says which field of a malformed answer is wrong instead of showing the tablets', async () => {

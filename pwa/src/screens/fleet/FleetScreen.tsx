@@ -12,7 +12,13 @@ import { IdentityPage } from '../../auth/ui/IdentityPage';
 import './fleet.css';
 import { registerTabletSchema, type RegisterTabletForm } from '../admin/admin-forms.schema';
 import { SiteChecklist, siteNames } from '../admin/SiteChecklist';
-import { useFleet, useRegisterTablet, useSites, useTabletAction } from '../admin/useAdminQueries';
+import {
+  useChangeTabletSites,
+  useFleet,
+  useRegisterTablet,
+  useSites,
+  useTabletAction,
+} from '../admin/useAdminQueries';
 
 const STATE_WORDS: Record<FleetDevice['state'], string> = {
   pending: 'Waiting to be enrolled',
@@ -121,9 +127,56 @@ function RegisterTablet() {
   );
 }
 
+/**
+ * The sites a tablet serves, changed in a row beneath it. Taking a site off removes its records
+ * from the tablet at its next contact (unsent edits are kept until they reach the server), so the
+ * admin is told so before saving.
+ */
+function ChangeTabletSites(props: { tablet: FleetDevice; onDone: () => void }) {
+  const sites = useSites();
+  const change = useChangeTabletSites();
+  const [siteIds, setSiteIds] = useState<string[]>(props.tablet.siteIds);
+  const [error, setError] = useState<string | undefined>(undefined);
+  const removed = props.tablet.siteIds.filter((id) => !siteIds.includes(id));
+  const save = () => {
+    if (siteIds.length === 0) {
+      setError('Sites: choose at least one site this tablet serves');
+      return;
+    }
+    change.mutate({ id: props.tablet.id, siteIds }, { onSuccess: props.onDone });
+  };
+  return (
+    <Confirmation
+      title={`Sites of ${props.tablet.label}`}
+      confirmLabel="Save sites"
+      tone={removed.length > 0 ? 'danger' : 'primary'}
+      busy={change.isPending}
+      onCancel={props.onDone}
+      onConfirm={save}
+    >
+      <SiteChecklist
+        legend="Sites this tablet serves"
+        sites={sites.data ?? []}
+        value={siteIds}
+        onChange={(next) => {
+          setSiteIds(next);
+          setError(undefined);
+        }}
+        error={error}
+      />
+      {removed.length > 0 ? (
+        <p>
+          {`Records of ${siteNames(sites.data, removed)} will be removed from this tablet the next time it reaches the server. Edits it has not sent yet are kept until they reach the server.`}
+        </p>
+      ) : null}
+      {change.isError ? <Notice tone="error">{describeError(change.error)}</Notice> : null}
+    </Confirmation>
+  );
+}
+
 function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: string }) {
   const action = useTabletAction();
-  const [confirming, setConfirming] = useState<'revoke' | 'retire' | null>(null);
+  const [confirming, setConfirming] = useState<'revoke' | 'retire' | 'sites' | null>(null);
   const ended = tablet.state === 'revoked' || tablet.state === 'retired';
   // The buttons stay on one line; a confirmation or a refusal opens in a row of its own beneath
   // the tablet's, across the table, so the Actions column never grows and pushes rows apart.
@@ -133,7 +186,21 @@ function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: stri
       <tr className={followUp ? 'fl-fleet-row--open' : undefined}>
         <th scope="row">{tablet.label}</th>
         <td>{STATE_WORDS[tablet.state]}</td>
-        <td>{sitesText}</td>
+        <td>
+          {sitesText}
+          {ended ? null : (
+            <>
+              {' '}
+              <Button
+                tone="quiet"
+                onClick={() => setConfirming('sites')}
+                aria-label={`Change the sites of ${tablet.label}`}
+              >
+                Change
+              </Button>
+            </>
+          )}
+        </td>
         <td>{when(tablet.lastSeenAt)}</td>
         <td>{tablet.appVersion ?? 'not reported'}</td>
         <td>{tablet.outboxSize ?? 'not reported'}</td>
@@ -170,7 +237,9 @@ function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: stri
       {followUp ? (
         <tr className="fl-fleet-followup">
           <td colSpan={FLEET_COLUMNS.length}>
-            {confirming ? (
+            {confirming === 'sites' ? (
+              <ChangeTabletSites tablet={tablet} onDone={() => setConfirming(null)} />
+            ) : confirming ? (
               <Confirmation
                 title={
                   confirming === 'revoke' ? `Revoke ${tablet.label}?` : `Retire ${tablet.label}?`
