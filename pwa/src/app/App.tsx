@@ -24,6 +24,7 @@ import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
 import { StorageWarningBanner } from '../components/StorageWarningBanner';
+import { DamagedValuesNote } from '../components/DamagedValuesNote';
 import { canSee } from '../auth/access';
 import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
@@ -192,6 +193,7 @@ export function App() {
         {/* The storage warning sits above the Ionic app in the flow, on every screen. */}
         <div className="fl-shell">
           <StorageWarningBanner />
+          <DamagedValuesNote />
           <div className="fl-shell-app">
             <IonApp>
               <IonReactRouter>

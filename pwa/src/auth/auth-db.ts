@@ -43,6 +43,11 @@ export interface PinRecord {
   userId: string;
   /** The PIN opens this person's key slot. */
   keySlot?: true;
+  /**
+   * What the person chose: digits only (`pin`) or a passphrase. Absent for slots made before it
+   * was noted, which count as a PIN (the weaker) in the tablet's report to the Fleet.
+   */
+  secretKind?: 'pin' | 'passphrase';
   /** base64 (a PIN set before the tablet was protected) */
   salt?: string;
   /** base64 of the derived bits (a PIN set before the tablet was protected) */

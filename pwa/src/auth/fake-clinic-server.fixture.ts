@@ -59,6 +59,8 @@ export interface FakeClinicServer {
   deviceState: 'active' | 'retired' | 'revoked';
   /** The clinic setting GET /api/devices/me carries (left out when undefined). */
   unsyncedWarningHours?: number;
+  /** The sites the tablet may hold now (absent: a server from before the field). */
+  holdSiteIds?: string[];
   enrolmentCode: string;
   accessTtlSeconds: number;
   /** Extra routes a test answers itself (admin screens): null means "not mine". */
@@ -167,6 +169,7 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
             ...(server.unsyncedWarningHours === undefined
               ? {}
               : { unsyncedWarningHours: server.unsyncedWarningHours }),
+            ...(server.holdSiteIds ? { holdSiteIds: server.holdSiteIds } : {}),
           });
         case 'GET /api/me/sites': {
           if (server.deviceState === 'revoked') return revoked();
@@ -199,7 +202,12 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
           return json(200, { share: btoa(String.fromCharCode(...new Uint8Array(32).fill(7))) });
         case 'POST /api/devices/heartbeat':
           if (server.deviceState === 'revoked') return revoked();
-          return caller ? json(201, { ok: true }) : json(401, { message: 'Sign in first.' });
+          return caller
+            ? json(201, {
+                ok: true,
+                ...(server.holdSiteIds ? { holdSiteIds: server.holdSiteIds } : {}),
+              })
+            : json(401, { message: 'Sign in first.' });
         default: {
           const extra = server.adminRoutes?.(`${method} ${path}`, body, caller);
           if (extra) return json(extra.status, extra.body);

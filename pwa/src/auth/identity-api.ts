@@ -14,6 +14,7 @@ import {
   type ClinicSettings,
   type ClinicSettingsChange,
   type FleetDevice,
+  type KeyProtectionKind,
   type InvitedPerson,
 } from '@fuselight/shared/admin-views';
 import {
@@ -86,6 +87,8 @@ export interface DeviceStatus {
   deviceId?: string;
   label?: string;
   siteIds?: string[];
+  /** The sites whose records the tablet may hold now (absent from servers before it). */
+  holdSiteIds?: string[];
   /** Optional clinic policy the server may send for offline unlock. */
   offlineUnlockHours?: number;
   maxPinAttempts?: number;
@@ -204,7 +207,10 @@ export class IdentityApi {
     return bytes;
   }
 
-  heartbeat(token: string, report: { appVersion: string; outboxSize: number }): Promise<unknown> {
+  heartbeat(
+    token: string,
+    report: { appVersion: string; outboxSize: number; keyProtection?: KeyProtectionKind },
+  ): Promise<unknown> {
     return this.request('POST', '/api/devices/heartbeat', { token, body: report });
   }
 
@@ -256,6 +262,12 @@ export class IdentityApi {
     device: { label: string; siteIds: string[] },
   ): Promise<RegisteredDevice> {
     return this.request('POST', '/api/admin/devices', { token, body: device });
+  }
+  /** Replaces the sites a tablet serves (a site taken off is removed from it at its next contact). */
+  async changeDeviceSites(token: string, id: string, siteIds: string[]): Promise<FleetDevice> {
+    const path = `/api/admin/devices/${encodeURIComponent(id)}/sites`;
+    const body = await this.request('PATCH', path, { token, body: { siteIds } });
+    return parseAnswer(fleetDeviceSchema, body, 'PATCH /api/admin/devices/:id/sites');
   }
   async revokeDevice(token: string, id: string): Promise<FleetDevice> {
     const path = `/api/admin/devices/${encodeURIComponent(id)}/revoke`;

@@ -15,11 +15,12 @@ import { getAttachmentDb, SEALED_ATTACHMENT_TABLES } from '../attachments/attach
 import { tabletVault } from '../data/crypto/data-key-vault';
 import { KeyRing } from '../data/crypto/key-ring';
 import { getDefaultDb, SEALED_TABLES } from '../data/db';
+import { applySiteScope } from '../data/site-scope';
 import { IdentityApi, type SignInResponse } from './identity-api';
 import { countOutboxEntries, type OutboxCounter } from './outbox-count';
 import { PinLock } from './session/pin-lock';
 import { ACTIVE_KEY, SessionState } from './session/session-state';
-import { TabletLifecycle } from './session/tablet-lifecycle';
+import { TabletLifecycle, type SiteScopeApplier } from './session/tablet-lifecycle';
 import { SessionTokens, personFrom } from './session/tokens';
 import {
   type AuthSnapshot,
@@ -48,7 +49,27 @@ export interface SessionStoreOptions {
   eraseDatabases?: () => Promise<unknown>;
   /** The tablet's key slots (default: on the tablet's records and attachments databases). */
   keyRing?: KeyRing;
+  /** Deletes what the tablet holds of sites it no longer serves (default: its own databases). */
+  applySiteScope?: SiteScopeApplier;
 }
+
+/** The tablet's own site scope: records and attachment files outside the sites it may hold go. */
+export const tabletSiteScope: SiteScopeApplier = async (holdSiteIds, siteName) => {
+  const db = getDefaultDb();
+  // Locked: nothing sealed can be read; the next contact while someone is unlocked does it.
+  if (db.vault.isProtected && !db.vault.unlocked) return;
+  await applySiteScope({
+    db,
+    files: getAttachmentDb(),
+    holdSiteIds,
+    siteName,
+    nowMs: Date.now(),
+    onSiteRegained: async () => {
+      const { beginFullRepull } = await import('../sync/full-repull');
+      await beginFullRepull(db, 'site-returned', Date.now());
+    },
+  });
+};
 
 /** The key ring of this tablet's own databases. */
 export function tabletKeyRing(): KeyRing {
@@ -95,6 +116,7 @@ export class SessionStore {
       () => this.tokens,
       options.eraseDatabases ?? eraseAllDatabases,
       this.keyRing,
+      options.applySiteScope ?? tabletSiteScope,
     );
     this.tokens = new SessionTokens(this.state, this.api, (error) =>
       this.lifecycle.eraseIfTold(error),

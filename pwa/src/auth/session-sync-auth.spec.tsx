@@ -3,7 +3,14 @@ import { MemoryRouter } from 'react-router-dom';
 import { beforeEach, describe, expect, it } from 'vitest';
 import { FuselightDb, type OutboxEntry } from '../data/db';
 import { AuthDb } from './auth-db';
-import { AMARA, PASSWORDS, TOMASZ, fakeClinicServer } from './fake-clinic-server.fixture';
+import {
+  AMARA,
+  PASSWORDS,
+  SITE_A,
+  SITE_B,
+  TOMASZ,
+  fakeClinicServer,
+} from './fake-clinic-server.fixture';
 import { IdentityApi } from './identity-api';
 import { countOutboxEntries } from './outbox-count';
 import { SessionProvider } from './SessionProvider';
@@ -213,5 +220,50 @@ describe('a tablet the clinic takes back', () => {
     await store.heartbeat('0.1.0');
     const beat = server.calls.find((c) => c.route === 'POST /api/devices/heartbeat');
     expect(beat).toMatchObject({ userId: AMARA.id, body: { appVersion: '0.1.0', outboxSize: 1 } });
+  });
+
+  it('hands the sites the server says the tablet may hold to the site scope, with their names', async () => {
+    const clock = { now: Date.UTC(2026, 11, 1, 8, 0) };
+    const server = fakeClinicServer(() => clock.now);
+    const calls: Array<{ hold: readonly string[]; names: (string | null)[] }> = [];
+    const store = new SessionStore({
+      api: new IdentityApi({ fetch: server.fetch }),
+      now: () => clock.now,
+      countOutbox: countOutboxEntries,
+      applySiteScope: async (hold, siteName) => {
+        calls.push({ hold, names: [SITE_A, SITE_B].map(siteName) });
+      },
+    });
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    await signIn(store, AMARA.email);
+    await store.refreshSites();
+    // A server from before the field: nothing is removed.
+    await store.heartbeat('0.1.0');
+    await store.checkTablet();
+    expect(calls).toEqual([]);
+    server.holdSiteIds = [SITE_A];
+    await store.heartbeat('0.1.0');
+    await store.checkTablet();
+    expect(calls).toEqual([
+      { hold: [SITE_A], names: ['Harbourview Eye Clinic', 'Saltmarsh School (outreach)'] },
+      { hold: [SITE_A], names: ['Harbourview Eye Clinic', 'Saltmarsh School (outreach)'] },
+    ]);
+  });
+
+  it('reports in its heartbeat how its data key is protected: PIN only, then passphrase', async () => {
+    const { store, server } = setUp();
+    await store.load();
+    await store.enrol(server.enrolmentCode);
+    await signIn(store, AMARA.email);
+    const reported = async () => {
+      await store.heartbeat('0.1.0');
+      const beats = server.calls.filter((c) => c.route === 'POST /api/devices/heartbeat');
+      return (beats.at(-1)?.body as { keyProtection?: string }).keyProtection;
+    };
+    await store.setPin('482913');
+    expect(await reported()).toBe('pin-only');
+    await store.setPin('harbour lights at dusk');
+    expect(await reported()).toBe('passphrase');
   });
 });

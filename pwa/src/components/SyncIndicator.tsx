@@ -10,6 +10,7 @@ import {
   warningOutline,
 } from 'ionicons/icons';
 import { useEffect, useState } from 'react';
+import { describeSiteRemoval } from '../data/site-scope';
 import {
   describeFullRepull,
   describeNewerRecords,
@@ -118,6 +119,11 @@ export function SyncIndicator(props: {
   const repull = describeRepullForBar(status, nowMs, props.compact === true);
   const newer = describeNewerRecords(status.newerRecords);
   const live = describeLive(status);
+  // Records of a site this tablet no longer serves were removed: said for a while after.
+  const removal =
+    status.siteRemoval && nowMs - status.siteRemoval.at <= REPULL_DONE_SHOWN_MS
+      ? describeSiteRemoval(status.siteRemoval)
+      : null;
   const syncNow = () => {
     if (props.onSyncNow) void props.onSyncNow();
     else if (props.engine) void props.engine.syncNow();
@@ -165,6 +171,11 @@ export function SyncIndicator(props: {
         )}
         {progress ? <span>· {progress}</span> : null}
         {repull ? <span className="fl-sync-repull">· {repull}</span> : null}
+        {removal ? (
+          <span className="fl-sync-repull" title={removal}>
+            · {props.compact ? 'Records of a site removed' : removal}
+          </span>
+        ) : null}
         {newer ? (
           <span className="fl-sync-update" title={newer}>
             · {UPDATE_AVAILABLE_SHORT}

@@ -9,7 +9,11 @@ import { CURSOR_KEY } from './local-apply';
 
 export const FULL_REPULL_KEY = 'fullRepull';
 
-export type FullRepullReason = PullResetReason | 'unknown';
+/**
+ * The tablet's own reasons: `site-returned`, a site it had stopped serving was given back;
+ * `damaged`, a stored record failed authentication and a good copy is fetched.
+ */
+export type FullRepullReason = PullResetReason | 'unknown' | 'site-returned' | 'damaged';
 
 export interface FullRepull {
   reason: FullRepullReason;
@@ -27,7 +31,10 @@ function isFullRepull(value: unknown): value is FullRepull {
     typeof v.startedAt === 'number' &&
     typeof v.received === 'number' &&
     (v.finishedAt === null || typeof v.finishedAt === 'number') &&
-    (v.reason === 'unknown' || (PULL_RESET_REASONS as readonly unknown[]).includes(v.reason))
+    (v.reason === 'unknown' ||
+      v.reason === 'site-returned' ||
+      v.reason === 'damaged' ||
+      (PULL_RESET_REASONS as readonly unknown[]).includes(v.reason))
   );
 }
 
@@ -103,7 +110,11 @@ export function describeFullRepull(
         ? 'this tablet was offline longer than the clinic server keeps deletions'
         : repull.reason === 'restored'
           ? 'the clinic server was restored from a backup'
-          : 'the clinic server asked this tablet to start over';
+          : repull.reason === 'site-returned'
+            ? 'a site this tablet had stopped serving was given back to it'
+            : repull.reason === 'damaged'
+              ? 'a record stored on this tablet could not be read, so good copies are fetched from the clinic server'
+              : 'the clinic server asked this tablet to start over';
   const count = `${repull.received.toLocaleString()} record${repull.received === 1 ? '' : 's'}`;
   if (repull.finishedAt === null) {
     return `Full re-sync under way (${why}): ${count} received so far. Your edits and Outbox are kept.`;

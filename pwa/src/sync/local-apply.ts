@@ -17,6 +17,7 @@ import type { CollectionName, PulledRecord } from '@fuselight/shared';
 import type { FuselightDb, StoredRecord } from '../data/db';
 import { receiveIntoDeviceClock } from '../data/device-clock';
 import { mergePulled } from '../data/outbox-transitions';
+import { removedSites } from '../data/site-scope';
 import { noteNewerContent, type NewerContent } from './newer-records';
 
 export {
@@ -110,11 +111,15 @@ export async function applyPullPage(
       const existing = skipRead
         ? []
         : await db.records.bulkGet(chunk.map((record) => recordKey(record.collection, record.id)));
+      // A site this tablet no longer serves (data/site-scope.ts): a session that began before
+      // the change may still be sent its records for a few minutes; they are not stored.
+      const removed = await removedSites(db);
       timings.readMs += options.now() - started;
       started = options.now();
       const merged: StoredRecord[] = [];
       for (let i = 0; i < chunk.length; i += 1) {
         const pulled = chunk[i] as PulledRecord;
+        if (removed.size > 0 && removed.has(pulled.fields.siteId as string)) continue;
         const next = mergePulled(existing[i], pulled, options.nowMs);
         if (next) {
           merged.push(next);

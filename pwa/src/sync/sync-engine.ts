@@ -20,9 +20,10 @@ import {
 } from '@fuselight/shared';
 import type { FuselightDb, OutboxEntry } from '../data/db';
 import { subscribeDataChanges } from '../data/data-events';
+import { readSiteScope, subscribeSiteRemoval } from '../data/site-scope';
 import { isQuotaExceeded } from '../data/storage-full';
 import type { BackoffPolicy } from './backoff';
-import { readFullRepull } from './full-repull';
+import { beginFullRepull, readFullRepull } from './full-repull';
 import { THIS_BUILD, reviewNewerRecords, type BuildSchema } from './newer-records';
 import { LiveStream } from './live-stream';
 import { LAST_SYNCED_KEY, readCursor } from './local-apply';
@@ -150,6 +151,8 @@ export class SyncEngine {
   private readonly timers: SyncTimers;
   /** Timings of the last sync. */
   lastTimings: SyncTimings | null = null;
+  /** Damaged records a full re-pull was already started for (each starts one, once). */
+  private readonly repulledForDamage = new Set<string>();
 
   constructor(private readonly options: SyncEngineOptions) {
     const fetchFn = options.fetch ?? ((input, init) => globalThis.fetch(input, init));
@@ -306,6 +309,8 @@ export class SyncEngine {
           if (change.outbox) void this.refreshCounts();
         }),
         this.status.subscribe(() => this.announceStatus()),
+        // Records of a site the tablet no longer serves were removed (data/site-scope.ts).
+        subscribeSiteRemoval((note) => this.status.update({ siteRemoval: note })),
       ],
       () => void this.loadPersistedStatus(),
     );
@@ -402,6 +407,7 @@ export class SyncEngine {
     this.status.update({
       fullRepull: await readFullRepull(this.db),
       newerRecords: await reviewNewerRecords(this.db, this.options.build ?? THIS_BUILD),
+      siteRemoval: (await readSiteScope(this.db))?.lastRemoval ?? null,
     });
     await this.refreshCounts();
   }
@@ -432,6 +438,7 @@ export class SyncEngine {
     try {
       const needsSignIn = new Set<string>();
       const pushed = await this.pusher.push(needsSignIn, timings);
+      await this.repullForDamagedRecords();
       const pulled = await this.puller.pull(needsSignIn, timings);
       const now = this.clock.now();
       await this.db.meta.put({ key: LAST_SYNCED_KEY, value: now });
@@ -480,6 +487,23 @@ export class SyncEngine {
     this.runAfterSync();
     await this.refreshCounts();
     return outcome;
+  }
+
+  /**
+   * A record of this database failed authentication (altered or damaged on the tablet): it is
+   * left out of every answer, and a full re-pull fetches a good copy from the server (its version
+   * may be behind the cursor). Once per damaged record; a good copy written clears the report.
+   */
+  private async repullForDamagedRecords(): Promise<void> {
+    const fresh = this.db.vault
+      .damagedValues()
+      .filter((d) => d.database === this.db.name && d.table === 'records')
+      .map((d) => d.key)
+      .filter((key) => !this.repulledForDamage.has(key));
+    if (fresh.length === 0) return;
+    for (const key of fresh) this.repulledForDamage.add(key);
+    const repull = await beginFullRepull(this.db, 'damaged', this.clock.now());
+    this.status.update({ fullRepull: repull });
   }
 
   /** Starts the `afterSync` work, or has it run once more when it is running already. */

@@ -4,6 +4,7 @@
 import type { FullRepull } from './full-repull';
 import type { NewerRecordsNote } from './newer-records';
 import type { LiveState } from './live-stream';
+import type { SiteRemovalNote } from '../data/site-scope';
 
 export type SyncPhase = 'idle' | 'pushing' | 'pulling' | 'waiting-to-retry' | 'blocked';
 
@@ -41,6 +42,8 @@ export interface SyncStatus {
   fullRepull: FullRepull | null;
   /** Records from a newer build that this one keeps as they came: an update is available. */
   newerRecords: NewerRecordsNote | null;
+  /** The last time records of sites this tablet no longer serves were removed from it. */
+  siteRemoval: SiteRemovalNote | null;
   /** The live-changes stream: 'live' while other tablets' changes arrive without waiting. */
   live: LiveState;
   tabRole: TabRole;
@@ -61,6 +64,7 @@ export const INITIAL_SYNC_STATUS: SyncStatus = {
   consecutiveFailures: 0,
   fullRepull: null,
   newerRecords: null,
+  siteRemoval: null,
   live: 'off',
   tabRole: 'alone',
 };

@@ -40,6 +40,25 @@ export const invitedPersonSchema = z.object({
 export type InvitedPerson = z.infer<typeof invitedPersonSchema>;
 
 /** One tablet of the Fleet as an admin sees it. */
+/**
+ * How a tablet's data key is protected (docs/threat-model.md), as the tablet last reported it:
+ * `unprotected` (no key yet: data from before the upgrade, until the next unlock), `server-only`
+ * (only an online sign-in opens it), `pin-only` (at least one person's slot opens with a PIN of
+ * digits), `passphrase` (every person's slot needs a passphrase of 12 or more characters),
+ * `hardware` (a hardware-held share with the PIN; not built yet).
+ */
+export const KEY_PROTECTION_KINDS = [
+  'unprotected',
+  'server-only',
+  'pin-only',
+  'passphrase',
+  'hardware',
+] as const;
+export const keyProtectionSchema = z.enum(KEY_PROTECTION_KINDS, {
+  error: `must be one of ${KEY_PROTECTION_KINDS.join(', ')}`,
+});
+export type KeyProtectionKind = z.infer<typeof keyProtectionSchema>;
+
 export const fleetDeviceSchema = z.object({
   id: z.uuid({ error: 'must be a tablet id (a UUID)' }),
   label: z.string().min(1, { error: 'cannot be empty' }),
@@ -54,6 +73,8 @@ export const fleetDeviceSchema = z.object({
   lastSeenAt: isoTime.nullable(),
   appVersion: z.string().nullable(),
   outboxSize: z.int({ error: 'must be a whole number' }).min(0).nullable(),
+  /** How its data key is protected, from its last heartbeat; null until it reports it. */
+  keyProtection: keyProtectionSchema.nullable().optional(),
   retiredAt: isoTime.nullable(),
   revokedAt: isoTime.nullable(),
 });

@@ -208,6 +208,13 @@ describe('permission matrix of the identity routes', () => {
       expect: only(['admin'], 201),
     },
     {
+      method: 'patch',
+      route: '/api/admin/devices/{id}/sites',
+      path: () => `/api/admin/devices/${reissueDeviceId}/sites`,
+      body: () => ({ siteIds: [siteId] }),
+      expect: only(['admin'], 200),
+    },
+    {
       method: 'post',
       route: '/api/admin/devices/{id}/enrolment-code',
       path: () => `/api/admin/devices/${reissueDeviceId}/enrolment-code`,

@@ -1,14 +1,19 @@
-import { Body, Controller, Get, HttpCode, Inject, Param, Post } from '@nestjs/common';
+import { Body, Controller, Get, HttpCode, Inject, Param, Patch, Post } from '@nestjs/common';
 import { ApiOperation, ApiParam, ApiResponse, ApiTags } from '@nestjs/swagger';
 import { fleetDeviceListSchema, fleetDeviceSchema, type FleetDevice } from '@fuselight/shared';
 import { ApiSignedIn, ApiZodBody, ApiZodResponse } from '../auth/api-docs';
 import { CurrentUser, Roles } from '../auth/auth.decorators';
 import type { AuthUser } from '../auth/auth-user';
 import { ZodValidationPipe, zodDto } from '../common/zod-validation.pipe';
-import { deviceIdParamSchema, registerDeviceSchema } from './devices.schemas';
+import {
+  changeDeviceSitesSchema,
+  deviceIdParamSchema,
+  registerDeviceSchema,
+} from './devices.schemas';
 import { DevicesService, type EnrolmentTicket } from './devices.service';
 
 class RegisterDeviceBody extends zodDto(registerDeviceSchema) {}
+class ChangeDeviceSitesBody extends zodDto(changeDeviceSitesSchema) {}
 const DeviceId = new ZodValidationPipe(deviceIdParamSchema);
 
 @ApiTags('fleet')
@@ -42,6 +47,23 @@ export class AdminDevicesController {
   )
   list(): Promise<FleetDevice[]> {
     return this.devices.list();
+  }
+
+  @Patch(':id/sites')
+  @ApiOperation({
+    summary:
+      'Change the sites a tablet serves; a site taken off is removed from the tablet at its next contact',
+  })
+  @ApiParam({ name: 'id', format: 'uuid' })
+  @ApiZodBody(changeDeviceSitesSchema)
+  @ApiZodResponse(200, fleetDeviceSchema, 'The tablet as changed')
+  @ApiResponse({ status: 409, description: 'The tablet is revoked or retired' })
+  changeSites(
+    @CurrentUser() admin: AuthUser,
+    @Param('id', DeviceId) id: string,
+    @Body() body: ChangeDeviceSitesBody,
+  ): Promise<FleetDevice> {
+    return this.devices.changeSites(admin, id, body);
   }
 
   @Post(':id/enrolment-code')

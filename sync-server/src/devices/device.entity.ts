@@ -1,3 +1,4 @@
+import type { KeyProtectionKind } from '@fuselight/shared';
 import { Entity, PrimaryKey, Property } from '@mikro-orm/core';
 import type { DeviceState } from '@fuselight/shared';
 
@@ -39,6 +40,10 @@ export class Device {
 
   @Property({ type: 'integer', nullable: true })
   outboxSize: number | null = null;
+
+  /** How the tablet's data key is protected, as its last heartbeat said; null until it does. */
+  @Property({ type: 'text', nullable: true })
+  keyProtection: KeyProtectionKind | null = null;
 
   @Property({ type: 'uuid', nullable: true })
   createdBy: string | null = null;

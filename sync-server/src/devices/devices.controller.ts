@@ -37,7 +37,10 @@ export class DevicesController {
   @ApiSignedIn()
   @ApiOperation({ summary: 'Report app version and outbox size; answers the tablet’s state' })
   @ApiZodBody(heartbeatSchema)
-  @ApiResponse({ status: 200, description: '{ deviceId, label, state, siteIds }' })
+  @ApiResponse({
+    status: 200,
+    description: '{ deviceId, label, state, siteIds, holdSiteIds, unsyncedWarningHours }',
+  })
   heartbeat(@CurrentUser() user: AuthUser, @Body() body: HeartbeatBody): Promise<DeviceSelfView> {
     return this.devices.heartbeat(user, body);
   }
@@ -59,7 +62,10 @@ export class DevicesController {
   @DeviceBound()
   @ApiSignedIn()
   @ApiOperation({ summary: 'This tablet’s state; `retired` means push the outbox, then erase' })
-  @ApiResponse({ status: 200, description: '{ deviceId, label, state, siteIds }' })
+  @ApiResponse({
+    status: 200,
+    description: '{ deviceId, label, state, siteIds, holdSiteIds, unsyncedWarningHours }',
+  })
   me(@CurrentUser() user: AuthUser): Promise<DeviceSelfView> {
     return this.devices.self(user);
   }

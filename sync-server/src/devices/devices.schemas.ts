@@ -1,3 +1,4 @@
+import { keyProtectionSchema } from '@fuselight/shared';
 import { z } from 'zod';
 
 const siteIds = z
@@ -13,6 +14,8 @@ export const registerDeviceSchema = z.object({
     .max(80, { error: 'at most 80 characters' }),
   siteIds,
 });
+
+export const changeDeviceSitesSchema = z.object({ siteIds });
 
 export const enrolDeviceSchema = z.object({
   code: z
@@ -32,6 +35,8 @@ export const heartbeatSchema = z.object({
     .number({ error: 'send the number of unsent edits' })
     .int({ error: 'must be a whole number' })
     .min(0, { error: 'cannot be negative' }),
+  /** How the tablet's data key is protected (tablets of earlier builds do not send it). */
+  keyProtection: keyProtectionSchema.optional(),
 });
 
 export const deviceIdParamSchema = z.uuid({ error: 'must be a tablet id (a UUID)' });

@@ -23,12 +23,17 @@ import { APP_CONFIG, type AppConfig } from '../config/app-config';
 import {
   assertSitesExist,
   replaceDeviceSites,
+  siteIdsDeviceMayHold,
   siteIdsOfDevice,
   siteIdsOfDevices,
 } from '../users/memberships';
 import { ClinicSettingsService } from '../settings/clinic-settings.service';
 import { Device } from './device.entity';
-import type { heartbeatSchema, registerDeviceSchema } from './devices.schemas';
+import type {
+  changeDeviceSitesSchema,
+  heartbeatSchema,
+  registerDeviceSchema,
+} from './devices.schemas';
 
 export const ENROLMENT_CODE_TTL_MS = 24 * 60 * 60 * 1000;
 
@@ -46,6 +51,12 @@ export interface DeviceSelfView {
   label: string;
   state: DeviceState;
   siteIds: string[];
+  /**
+   * The sites whose records the tablet may hold now: its own sites that an active clinical
+   * person who signed in on it still belongs to. A tablet deletes the records of any other site
+   * it holds, keeping unsent Outbox entries (docs/sync-protocol.md). Absent from older servers.
+   */
+  holdSiteIds: string[];
   /** The clinic setting every tablet follows: hours unsynced edits may wait before it warns. */
   unsyncedWarningHours: number;
 }
@@ -131,6 +142,38 @@ export class DevicesService {
       devices.map((device) => device.id),
     );
     return devices.map((device) => this.view(device, sites.get(device.id) ?? []));
+  }
+
+  /**
+   * Replaces the sites a tablet serves. A site taken off is removed from the tablet at its next
+   * contact (GET /api/devices/me and the heartbeat answer `holdSiteIds`), its unsent edits kept;
+   * sessions already open keep their token's sites until it is renewed (at most the access
+   * token's lifetime), and the tablet does not store that site's records meanwhile.
+   */
+  async changeSites(
+    admin: Pick<AuthUser, 'userId'> | null,
+    deviceId: string,
+    input: z.infer<typeof changeDeviceSitesSchema>,
+  ): Promise<FleetDevice> {
+    return this.em.fork().transactional(async (em) => {
+      const device = await this.find(em, deviceId);
+      if (device.state === 'revoked' || device.state === 'retired') {
+        throw new ConflictException(`This tablet is ${device.state}; its sites cannot change.`);
+      }
+      await assertSitesExist(em, input.siteIds, 'body.siteIds');
+      const before = await siteIdsOfDevice(em, device.id);
+      await replaceDeviceSites(em, device.id, input.siteIds);
+      const after = await siteIdsOfDevice(em, device.id);
+      await this.audit.record(em, {
+        kind: 'device.sites_changed',
+        actorId: admin?.userId ?? null,
+        deviceId: device.id,
+        subjectType: 'device',
+        subjectId: device.id,
+        detail: { before, after },
+      });
+      return this.view(device, after);
+    });
   }
 
   async revoke(admin: Pick<AuthUser, 'userId'> | null, deviceId: string): Promise<FleetDevice> {
@@ -250,8 +293,9 @@ export class DevicesService {
       device.lastSeenAt = this.clock.now();
       device.appVersion = report.appVersion;
       device.outboxSize = report.outboxSize;
+      if (report.keyProtection !== undefined) device.keyProtection = report.keyProtection;
       await em.flush();
-      return this.selfView(device, caller);
+      return this.selfView(em, device, caller);
     });
   }
 
@@ -269,17 +313,23 @@ export class DevicesService {
   }
 
   async self(caller: AuthUser): Promise<DeviceSelfView> {
-    const device = await this.find(this.em.fork(), caller.deviceId ?? '');
-    return this.selfView(device, caller);
+    const em = this.em.fork();
+    const device = await this.find(em, caller.deviceId ?? '');
+    return this.selfView(em, device, caller);
   }
 
-  private async selfView(device: Device, caller: AuthUser): Promise<DeviceSelfView> {
+  private async selfView(
+    em: EntityManager,
+    device: Device,
+    caller: AuthUser,
+  ): Promise<DeviceSelfView> {
     const settings = await this.settings.read();
     return {
       deviceId: device.id,
       label: device.label,
       state: device.state,
       siteIds: caller.siteIds,
+      holdSiteIds: await siteIdsDeviceMayHold(em, device.id),
       unsyncedWarningHours: settings.unsyncedWarningHours,
     };
   }
@@ -318,6 +368,7 @@ export class DevicesService {
       lastSeenAt: iso(device.lastSeenAt),
       appVersion: device.appVersion,
       outboxSize: device.outboxSize,
+      keyProtection: device.keyProtection,
       retiredAt: iso(device.retiredAt),
       revokedAt: iso(device.revokedAt),
     };

@@ -126,6 +126,118 @@ describe('the Fleet: registering, enrolling, revoking and retiring tablets', () 
     });
   });
 
+  it('answers the sites the tablet may hold, without a site it or its people lost', async () => {
+    const second = (await createSite(t)).id;
+    const ticket = await register('Two-site tablet', [siteId, second]);
+    const enrolled = await enrol(ticket.body.enrolmentCode);
+    const device = { deviceId: enrolled.body.deviceId, deviceSecret: enrolled.body.deviceSecret };
+    const person = await createUser(t, { role: 'orthoptist', siteIds: [siteId, second] });
+    const session = await signIn(t, { user: person, device });
+    const beat = () =>
+      request(server())
+        .post('/api/devices/heartbeat')
+        .set(bearer(session.accessToken))
+        .send({ appVersion: '0.3.1', outboxSize: 0 });
+    expect((await beat()).body.holdSiteIds).toEqual([siteId, second].sort());
+
+    // The admin takes the second site off the tablet: the very next answer leaves it out, while
+    // the session's own token still names it.
+    const changed = await request(server())
+      .patch(`/api/admin/devices/${device.deviceId}/sites`)
+      .set(bearer(admin.accessToken))
+      .send({ siteIds: [siteId] });
+    expect(changed.status).toBe(200);
+    expect(changed.body).toMatchObject({ id: device.deviceId, siteIds: [siteId] });
+    const afterTablet = await beat();
+    expect(afterTablet.body.holdSiteIds).toEqual([siteId]);
+    expect(afterTablet.body.siteIds).toContain(second);
+    const me = await request(server()).get('/api/devices/me').set(bearer(session.accessToken));
+    expect(me.body.holdSiteIds).toEqual([siteId]);
+
+    // A person who loses the site: the tablet serves it, but nobody who signed in on it belongs
+    // to it any more. A colleague at another site only does not bring it back.
+    await request(server())
+      .patch(`/api/admin/devices/${device.deviceId}/sites`)
+      .set(bearer(admin.accessToken))
+      .send({ siteIds: [siteId, second] })
+      .expect(200);
+    const colleague = await createUser(t, { role: 'orthoptist', siteIds: [siteId] });
+    const colleagueSession = await signIn(t, { user: colleague, device });
+    const change = await request(server())
+      .patch(`/api/admin/users/${person.id}`)
+      .set(bearer(admin.accessToken))
+      .send({ siteIds: [siteId] });
+    expect(change.status).toBe(200);
+    const byColleague = await request(server())
+      .get('/api/devices/me')
+      .set(bearer(colleagueSession.accessToken));
+    expect(byColleague.body.holdSiteIds).toEqual([siteId]);
+    // A deactivated person's memberships keep nothing either.
+    for (const id of [person.id, colleague.id]) {
+      const off = await request(server())
+        .patch(`/api/admin/users/${id}`)
+        .set(bearer(admin.accessToken))
+        .send({ active: false });
+      expect(off.status).toBe(200);
+    }
+    const third = await createUser(t, { role: 'supervisor', siteIds: [second] });
+    const thirdSession = await signIn(t, { user: third, device });
+    const byThird = await request(server())
+      .get('/api/devices/me')
+      .set(bearer(thirdSession.accessToken));
+    expect(byThird.body.holdSiteIds).toEqual([second]);
+  });
+
+  it('stores how the tablet’s data key is protected and shows it in the Fleet list', async () => {
+    const { deviceId, session } = await enrolledTabletSession();
+    const row = async () => {
+      const list = await request(server()).get('/api/admin/devices').set(bearer(admin.accessToken));
+      return list.body.find((d: { id: string }) => d.id === deviceId);
+    };
+    expect((await row()).keyProtection).toBeNull();
+    const beat = (body: object) =>
+      request(server())
+        .post('/api/devices/heartbeat')
+        .set(bearer(session.accessToken))
+        .send({ appVersion: '0.4.0', outboxSize: 0, ...body });
+    expect((await beat({ keyProtection: 'pin-only' })).status).toBe(200);
+    expect((await row()).keyProtection).toBe('pin-only');
+    // A tablet of an earlier build sends none: what was reported stays.
+    expect((await beat({})).status).toBe(200);
+    expect((await row()).keyProtection).toBe('pin-only');
+    expect((await beat({ keyProtection: 'passphrase' })).status).toBe(200);
+    expect(await row()).toMatchObject({ keyProtection: 'passphrase', appVersion: '0.4.0' });
+
+    const bad = await beat({ keyProtection: 'fingerprint' });
+    expect(bad.status).toBe(400);
+    expect(bad.body.message).toContain(
+      'body.keyProtection: must be one of unprotected, server-only, pin-only, passphrase, hardware',
+    );
+    expect((await row()).keyProtection).toBe('passphrase');
+  });
+
+  it('names the field when a tablet’s new sites are malformed, and refuses a revoked tablet', async () => {
+    const { deviceId } = await enrolledTabletSession();
+    const change = (siteIds: unknown) =>
+      request(server())
+        .patch(`/api/admin/devices/${deviceId}/sites`)
+        .set(bearer(admin.accessToken))
+        .send({ siteIds });
+    const empty = await change([]);
+    expect(empty.status).toBe(400);
+    expect(empty.body.message).toContain('body.siteIds: name at least one site the tablet serves');
+    const unknown = await change(['01935a00-0000-7000-8000-00000000dead']);
+    expect(unknown.status).toBe(400);
+    expect(unknown.body.message).toContain('body.siteIds.0: no site has the id');
+    await request(server())
+      .post(`/api/admin/devices/${deviceId}/revoke`)
+      .set(bearer(admin.accessToken))
+      .expect(200);
+    const revoked = await change([siteId]);
+    expect(revoked.status).toBe(409);
+    expect(revoked.body.message).toBe('This tablet is revoked; its sites cannot change.');
+  });
+
   it('names the field of a malformed heartbeat', async () => {
     const { session } = await enrolledTabletSession();
     const res = await request(server())

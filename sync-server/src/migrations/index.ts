@@ -14,6 +14,7 @@ import { Migration20261204100000OpenDisputeOrder } from './Migration202612041000
 import { Migration20261204300000ClinicSettings } from './Migration20261204300000ClinicSettings';
 import { Migration20261205000000RestoreTimeline } from './Migration20261205000000RestoreTimeline';
 import { Migration20261205000000FhirHandoff } from './Migration20261205000000FhirHandoff';
+import { Migration20261206000000DeviceKeyProtection } from './Migration20261206000000DeviceKeyProtection';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -47,4 +48,8 @@ export const migrationsList: MigrationObject[] = [
     class: Migration20261205000000RestoreTimeline,
   },
   { name: 'Migration20261205000000FhirHandoff', class: Migration20261205000000FhirHandoff },
+  {
+    name: 'Migration20261206000000DeviceKeyProtection',
+    class: Migration20261206000000DeviceKeyProtection,
+  },
 ];

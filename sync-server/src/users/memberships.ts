@@ -45,6 +45,27 @@ export async function siteIdsOfDevices(
   return byDevice;
 }
 
+/**
+ * The sites whose records a tablet may hold now (docs/sync-protocol.md, Sites a tablet no longer
+ * serves): the tablet's own sites that at least one active clinical person who has signed in on
+ * it still belongs to. Read fresh, not from any token, so a change made a moment ago counts.
+ */
+export async function siteIdsDeviceMayHold(em: EntityManager, deviceId: string): Promise<string[]> {
+  const rows = await em.getConnection().execute<{ site_id: string }[]>(
+    `select distinct ds."site_id" from "device_site" ds
+       join "user_site" us on us."site_id" = ds."site_id"
+       join "app_user" u on u."id" = us."user_id"
+      where ds."device_id" = ?
+        and u."active"
+        and u."role" in ('orthoptist', 'outreach', 'supervisor')
+        and exists (select 1 from "auth_session" s
+                     where s."device_id" = ds."device_id" and s."user_id" = u."id")
+      order by ds."site_id"`,
+    [deviceId],
+  );
+  return rows.map((row) => row.site_id);
+}
+
 /** 400 naming the first unknown site, so a typo is caught before anything is written. */
 export async function assertSitesExist(
   em: EntityManager,

@@ -51,6 +51,11 @@ export class PinLock {
       this.current = { ...DEFAULT_UNLOCK_POLICY, ...(policy.value as UnlockPolicy) };
   }
 
+  /** Whether the person's secret is digits or a passphrase; null when it was never noted. */
+  secretKind(userId: string): 'pin' | 'passphrase' | null {
+    return this.pins.get(userId)?.secretKind ?? null;
+  }
+
   hasPin(userId: string): boolean {
     return this.pins.has(userId);
   }
@@ -80,6 +85,7 @@ export class PinLock {
     const record: PinRecord = {
       userId,
       keySlot: true,
+      secretKind: secretKindOf(pin),
       failedAttempts: 0,
       setAt: this.options.now(),
     };
@@ -124,6 +130,7 @@ export class PinLock {
     const moved: PinRecord = {
       userId: record.userId,
       keySlot: true,
+      secretKind: secretKindOf(pin),
       failedAttempts: record.failedAttempts,
       setAt: record.setAt,
     };
@@ -255,4 +262,9 @@ function fail(
   attemptsLeft: number,
 ): UnlockFailure {
   return { ok: false, reason, message, attemptsLeft };
+}
+
+/** Digits only: a PIN; anything else the rule accepts is a passphrase of 12 or more characters. */
+export function secretKindOf(secret: string): 'pin' | 'passphrase' {
+  return /^\d+$/.test(secret) ? 'pin' : 'passphrase';
 }

@@ -2,6 +2,7 @@
 // unlock policy; retired: send what is left, then erase), the heartbeat, and erasure when the
 // clinic revokes or retires it (every database erased, a note kept to say why). At enrolment it
 // asks the browser for persistent storage (pwa/src/storage/storage-health.ts).
+import type { KeyProtectionKind } from '@fuselight/shared/admin-views';
 import type { KeyRing } from '../../data/crypto/key-ring';
 import { askForPersistentStorage } from '../../storage/storage-health';
 import type { TabletCredentials } from '../auth-db';
@@ -12,9 +13,19 @@ import {
   type ErasureCause,
   type ErasureNote,
 } from '../tablet-erasure';
+import { keyProtectionOf } from './key-protection';
 import type { PinLock } from './pin-lock';
 import type { SessionState } from './session-state';
 import type { SessionTokens } from './tokens';
+
+/**
+ * Removes what the tablet holds of sites outside `holdSiteIds` (data/site-scope.ts); `siteName`
+ * names a site for the words on screen.
+ */
+export type SiteScopeApplier = (
+  holdSiteIds: readonly string[],
+  siteName: (siteId: string) => string | null,
+) => Promise<void>;
 
 /** Settings key noting that the browser was asked for persistent storage, and its answer. */
 export const PERSISTENCE_ASKED_KEY = 'storagePersistenceAsked';
@@ -28,8 +39,25 @@ export class TabletLifecycle {
     private readonly pinLock: PinLock,
     private readonly tokens: () => SessionTokens,
     private readonly eraseDatabases: () => Promise<unknown>,
-    private readonly keyRing: Pick<KeyRing, 'destroySlots'>,
+    private readonly keyRing: Pick<KeyRing, 'destroySlots'> & Partial<Pick<KeyRing, 'slotSummary'>>,
+    private readonly applySiteScope: SiteScopeApplier | null = null,
   ) {}
+
+  /**
+   * The server named the sites this tablet may hold now (older servers do not): what it holds
+   * of any other site goes, unsent edits stay (data/site-scope.ts). A failure here is retried at
+   * the next contact and never stops the heartbeat.
+   */
+  private async keepToSites(answer: unknown): Promise<void> {
+    if (!this.applySiteScope || typeof answer !== 'object' || answer === null) return;
+    const hold = (answer as { holdSiteIds?: unknown }).holdSiteIds;
+    if (!Array.isArray(hold) || !hold.every((id) => typeof id === 'string')) return;
+    try {
+      await this.applySiteScope(hold, (id) => this.state.sites.get(id)?.name ?? null);
+    } catch {
+      // Retried at the next contact.
+    }
+  }
 
   async enrol(code: string): Promise<void> {
     const answer = await this.api.enrol(code.trim().toUpperCase());
@@ -74,6 +102,7 @@ export class TabletLifecycle {
     if (!token) return;
     try {
       const status = await this.api.deviceStatus(token);
+      await this.keepToSites(status);
       if (
         status.offlineUnlockHours !== undefined ||
         status.maxPinAttempts !== undefined ||
@@ -119,10 +148,27 @@ export class TabletLifecycle {
     const token = await this.tokens().anyToken();
     if (!token) return;
     try {
-      await this.api.heartbeat(token, { appVersion, outboxSize: await this.state.countOutbox() });
+      const keyProtection = await this.keyProtection();
+      const answer = await this.api.heartbeat(token, {
+        appVersion,
+        outboxSize: await this.state.countOutbox(),
+        ...(keyProtection ? { keyProtection } : {}),
+      });
+      await this.keepToSites(answer);
     } catch (error) {
       if (await this.eraseIfTold(error)) return;
       if (!(error instanceof NetworkError)) throw error;
+    }
+  }
+
+  /** How the data key is protected now (key-protection.ts); null when it cannot be read. */
+  async keyProtection(): Promise<KeyProtectionKind | null> {
+    if (!this.keyRing.slotSummary) return null;
+    try {
+      const slots = await this.keyRing.slotSummary();
+      return keyProtectionOf(slots, (userId) => this.pinLock.secretKind(userId));
+    } catch {
+      return null;
     }
   }
 

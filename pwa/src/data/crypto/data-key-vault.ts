@@ -26,6 +26,8 @@ export class DataKeyVault {
   private protectedFlag = false;
   private readonly listeners = new Set<() => void>();
   private readonly damaged = new Map<string, DamagedValue>();
+  /** The same list, rebuilt only when it changes (a stable snapshot for React). */
+  private damagedList: readonly DamagedValue[] = [];
 
   /** The data key, or null while locked. */
   get dataKey(): CryptoKey | null {
@@ -65,6 +67,7 @@ export class DataKeyVault {
     this.key = null;
     this.protectedFlag = false;
     this.damaged.clear();
+    this.damagedList = [];
     this.emit();
   }
 
@@ -85,12 +88,26 @@ export class DataKeyVault {
     const id = `${value.database}/${value.table}/${value.key}`;
     if (this.damaged.has(id)) return;
     this.damaged.set(id, value);
+    this.damagedList = [...this.damaged.values()];
     this.emit();
   }
 
-  /** Values that failed authentication since this page loaded, in words for the screen. */
-  damagedValues(): DamagedValue[] {
-    return [...this.damaged.values()];
+  /**
+   * A damaged value was replaced (a good copy was written, from a pull) or deleted: it is no
+   * longer reported. Keys as in DamagedValue.
+   */
+  forgetDamaged(database: string, table: string, keys: readonly string[]): void {
+    if (this.damaged.size === 0) return;
+    let changed = false;
+    for (const key of keys) changed = this.damaged.delete(`${database}/${table}/${key}`) || changed;
+    if (!changed) return;
+    this.damagedList = [...this.damaged.values()];
+    this.emit();
+  }
+
+  /** Values that failed authentication since this page loaded and were not replaced since. */
+  damagedValues(): readonly DamagedValue[] {
+    return this.damagedList;
   }
 
   subscribe(listener: () => void): () => void {

@@ -77,6 +77,15 @@ export class KeyRing {
     return slots.some((slot) => slot.kind === 'server') ? 'pin+server' : 'pin';
   }
 
+  /** Which slots exist: the people whose PIN or passphrase opens the key, and the server's. */
+  async slotSummary(): Promise<{ pinUserIds: string[]; server: boolean }> {
+    const slots = await this.options.db().keySlots.toArray();
+    return {
+      pinUserIds: slots.filter((slot) => slot.kind === 'pin').map((slot) => slot.userId),
+      server: slots.some((slot) => slot.kind === 'server'),
+    };
+  }
+
   /**
    * Wraps the data key for `userId` under `secret`. On a tablet not protected yet, the key is
    * made here and everything already stored is sealed in place. A protected tablet must be

@@ -128,6 +128,24 @@ function sealedTable(table: DBCoreTable, spec: TableSealing, vault: DataKeyVault
     }
   }
 
+  function forgetReplaced(req: DBCoreMutateRequest): void {
+    const keys: unknown[] =
+      req.type === 'delete'
+        ? [...req.keys]
+        : req.type === 'add' || req.type === 'put'
+          ? req.values.map((value, index) =>
+              keyPath === null ? req.keys?.[index] : keyPathValue(value, keyPath),
+            )
+          : [];
+    if (keys.length === 0) return;
+    const database = (req.trans as unknown as IDBTransaction).db?.name ?? '';
+    // Forgotten once the write commits; a write that fails leaves the report as it was.
+    const done = () => vault.forgetDamaged(database, name, keys.map(describeKey));
+    const idb = req.trans as unknown as IDBTransaction;
+    if (typeof idb.addEventListener === 'function') idb.addEventListener('complete', done);
+    else done();
+  }
+
   function openMany(rows: readonly unknown[], trans: DBCoreTransaction): Promise<unknown[]> | null {
     if (!rows.some(isSealed)) return null;
     return keepingAlive(trans, name, Promise.all(rows.map((row) => openOne(row, trans))));
@@ -136,6 +154,8 @@ function sealedTable(table: DBCoreTable, spec: TableSealing, vault: DataKeyVault
   return {
     ...table,
     mutate: (req: DBCoreMutateRequest) => {
+      // A value written or deleted over a damaged one replaces it: it is no longer reported.
+      if (vault.damagedValues().length > 0) forgetReplaced(req);
       if (req.type !== 'add' && req.type !== 'put') return table.mutate(req);
       const key = vault.keyForWriting();
       if (!key) return table.mutate(req);

@@ -90,6 +90,16 @@ export function useTabletAction() {
   });
 }
 
+export function useChangeTabletSites() {
+  const { api, asActivePerson } = useAuthActions();
+  const client = useQueryClient();
+  return useMutation({
+    mutationFn: ({ id, siteIds }: { id: string; siteIds: string[] }) =>
+      asActivePerson((t) => api.changeDeviceSites(t, id, siteIds)),
+    onSuccess: () => client.invalidateQueries({ queryKey: queryKeys.identity.fleet() }),
+  });
+}
+
 export function useClinicSettings() {
   const { api, asActivePerson } = useAuthActions();
   return useQuery({

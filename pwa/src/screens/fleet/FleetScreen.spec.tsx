@@ -9,6 +9,7 @@ import {
   PASSWORDS,
   ROSALIND,
   SITE_A,
+  SITE_B,
   fakeClinicServer,
 } from '../../auth/fake-clinic-server.fixture';
 import type { FleetDevice } from '@fuselight/shared';
@@ -38,6 +39,13 @@ async function renderFleet(devices: unknown[]) {
               address: null,
               timeZone: 'Europe/London',
             },
+            {
+              id: SITE_B,
+              name: 'Saltmarsh School',
+              kind: 'outreach',
+              address: null,
+              timeZone: 'Europe/London',
+            },
           ],
         };
       case 'GET /api/admin/devices':
@@ -52,6 +60,13 @@ async function renderFleet(devices: unknown[]) {
             qrPayload: 'http://tablet.test/enrol#code=H4RB0URV',
           },
         };
+      case `PATCH /api/admin/devices/${TABLET_ID}/sites`:
+        devices = devices.map((d) =>
+          (d as FleetDevice).id === TABLET_ID
+            ? { ...(d as FleetDevice), siteIds: (body as { siteIds: string[] }).siteIds }
+            : d,
+        );
+        return { status: 200, body: devices[0] };
       case `POST /api/admin/devices/${TABLET_ID}/revoke`:
         devices = devices.map((d) =>
           (d as FleetDevice).id === TABLET_ID
@@ -125,6 +140,86 @@ describe('the Fleet', () => {
     expect(row.textContent).toContain(new Date('2026-12-01T09:30:00.000Z').toLocaleString());
   });
 
+  it('shows how each tablet’s data key is protected, and says the risk of PIN-only tablets plainly', async () => {
+    const other = (n: number, label: string, keyProtection: FleetDevice['keyProtection']) => ({
+      ...tablet,
+      id: `0190c6a0-0000-7000-8000-0000000000f${n}`,
+      label,
+      keyProtection,
+    });
+    await renderFleet([
+      { ...tablet, keyProtection: 'pin-only' },
+      other(1, 'Outreach van', 'passphrase'),
+      other(2, 'Spare tablet', null),
+      other(3, 'Old tablet', 'pin-only'),
+      // A tablet of an earlier build whose Fleet row has no such field at all.
+      (({ keyProtection: _dropped, ...rest }) => rest)(other(4, 'Desk drawer', 'hardware')),
+    ]);
+    const dataKey = async (name: RegExp) => {
+      const row = await screen.findByRole('row', { name });
+      const headers = screen.getAllByRole('columnheader').map((h) => h.textContent);
+      return row.children[headers.indexOf('Data key')]?.textContent;
+    };
+    expect(await dataKey(/Orthoptics room 2/)).toBe('PIN only (can be opened offline if copied)');
+    expect(await dataKey(/Outreach van/)).toBe('Passphrase');
+    expect(await dataKey(/Spare tablet/)).toBe('Not reported');
+    expect(await dataKey(/Desk drawer/)).toBe('Not reported');
+    const risk = screen.getByText(/are protected by a PIN only/).closest('[role="status"]');
+    expect(risk?.textContent).toContain(
+      '2 tablets are protected by a PIN only: Orthoptics room 2, Old tablet.',
+    );
+    expect(risk?.textContent).toContain(
+      'Someone who copies the browser profile can try every PIN offline, where the wrong-PIN limit does not count: a high-end graphics card tries every 6-digit PIN in about 3 minutes.',
+    );
+  });
+
+  it('says nothing of PIN risk when no tablet in use is PIN-only', async () => {
+    await renderFleet([
+      { ...tablet, keyProtection: 'passphrase' },
+      {
+        ...tablet,
+        id: '0190c6a0-0000-7000-8000-0000000000f9',
+        label: 'Lost one',
+        state: 'revoked',
+        keyProtection: 'pin-only',
+      },
+    ]);
+    await screen.findByRole('row', { name: /Orthoptics room 2/ });
+    expect(document.body.textContent).not.toContain('protected by a PIN only');
+  });
+
+  it('changes a tablet’s sites, saying that a site taken off is removed from the tablet', async () => {
+    const { seen } = await renderFleet([{ ...tablet, siteIds: [SITE_A, SITE_B] }]);
+    const user = userEvent.setup();
+    const row = await screen.findByRole('row', { name: /Orthoptics room 2/ });
+    expect(row.textContent).toContain('Harbourview Clinic, Saltmarsh School');
+    await user.click(
+      within(row).getByRole('button', { name: 'Change the sites of Orthoptics room 2' }),
+    );
+    const dialog = screen.getByRole('alertdialog', { name: 'Sites of Orthoptics room 2' });
+    await user.click(within(dialog).getByRole('checkbox', { name: /Saltmarsh School/ }));
+    expect(dialog.textContent).toContain(
+      'Records of Saltmarsh School will be removed from this tablet the next time it reaches the server. Edits it has not sent yet are kept until they reach the server.',
+    );
+    await user.click(within(dialog).getByRole('checkbox', { name: /Harbourview Clinic/ }));
+    await user.click(within(dialog).getByRole('button', { name: 'Save sites' }));
+    expect(dialog.textContent).toContain('Sites: choose at least one site this tablet serves');
+    expect(seen.some((s) => s.route.startsWith('PATCH'))).toBe(false);
+
+    await user.click(within(dialog).getByRole('checkbox', { name: /Harbourview Clinic/ }));
+    await user.click(within(dialog).getByRole('button', { name: 'Save sites' }));
+    await waitFor(() => expect(screen.queryByRole('alertdialog')).toBeNull());
+    expect(seen.find((s) => s.route.startsWith('PATCH'))).toEqual({
+      route: `PATCH /api/admin/devices/${TABLET_ID}/sites`,
+      body: { siteIds: [SITE_A] },
+    });
+    await waitFor(() =>
+      expect(screen.getByRole('row', { name: /Orthoptics room 2/ }).textContent).not.toContain(
+        'Saltmarsh School',
+      ),
+    );
+  });
+
   it('says which field of a malformed answer is wrong instead of showing the tablets', async () => {
     await renderFleet([{ ...tablet, state: 'lost' }]);
     const notice = await screen.findByText(/Could not load the Fleet/);
@@ -169,7 +264,7 @@ describe('the Fleet', () => {
       await renderFleet([tablet, { ...tablet, id: crypto.randomUUID(), label: 'Outreach bag 1' }]);
       const user = userEvent.setup();
       const row = await screen.findByRole('row', { name: /Orthoptics room 2/ });
-      const actions = row.children[6] as HTMLElement;
+      const actions = row.children[7] as HTMLElement;
       expect(
         within(actions)
           .getAllByRole('button')
@@ -189,7 +284,7 @@ describe('the Fleet', () => {
       expect(within(actions).getAllByRole('button')).toHaveLength(2);
       const followUp = dialog.closest('tr') as HTMLTableRowElement;
       expect(followUp.previousElementSibling).toBe(row);
-      expect((followUp.firstElementChild as HTMLTableCellElement).colSpan).toBe(7);
+      expect((followUp.firstElementChild as HTMLTableCellElement).colSpan).toBe(8);
       expect(followUp.nextElementSibling?.querySelector('th')?.textContent).toBe('Outreach bag 1');
       await user.click(within(dialog).getByRole('button', { name: 'Cancel' }));
       expect(screen.queryByRole('alertdialog')).toBeNull();

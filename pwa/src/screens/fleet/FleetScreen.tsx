@@ -1,7 +1,8 @@
 // The Fleet: register a tablet and show its one-time enrolment code as a QR code, see each
-// tablet's last contact, app version and Outbox size, and revoke or retire it.
+// tablet's last contact, app version, Outbox size and how its data key is protected (with the
+// risk of a PIN-only tablet in plain words), and revoke or retire it.
 import { zodResolver } from '@hookform/resolvers/zod';
-import type { FleetDevice } from '@fuselight/shared';
+import type { FleetDevice, KeyProtectionKind } from '@fuselight/shared';
 import { QRCodeSVG } from 'qrcode.react';
 import { useState } from 'react';
 import { Controller, useForm } from 'react-hook-form';
@@ -11,7 +12,13 @@ import { IdentityPage } from '../../auth/ui/IdentityPage';
 import './fleet.css';
 import { registerTabletSchema, type RegisterTabletForm } from '../admin/admin-forms.schema';
 import { SiteChecklist, siteNames } from '../admin/SiteChecklist';
-import { useFleet, useRegisterTablet, useSites, useTabletAction } from '../admin/useAdminQueries';
+import {
+  useChangeTabletSites,
+  useFleet,
+  useRegisterTablet,
+  useSites,
+  useTabletAction,
+} from '../admin/useAdminQueries';
 
 const STATE_WORDS: Record<FleetDevice['state'], string> = {
   pending: 'Waiting to be enrolled',
@@ -19,6 +26,23 @@ const STATE_WORDS: Record<FleetDevice['state'], string> = {
   retired: 'Retired: sending its last changes, then erasing',
   revoked: 'Revoked',
 };
+
+/** How a tablet's data key is protected (docs/threat-model.md), in words for the admin. */
+export const KEY_PROTECTION_WORDS: Record<KeyProtectionKind, string> = {
+  'pin-only': 'PIN only',
+  passphrase: 'Passphrase',
+  hardware: 'Hardware key with PIN',
+  'server-only': 'Online sign-in only',
+  unprotected: 'Not protected yet',
+};
+
+export function keyProtectionWords(kind: KeyProtectionKind | null | undefined): string {
+  return kind ? KEY_PROTECTION_WORDS[kind] : 'Not reported';
+}
+
+/** The risk of PIN-only tablets, as docs/threat-model.md gives it. */
+export const PIN_ONLY_RISK =
+  'A PIN alone protects these tablets’ data only while the tablet stays out of an attacker’s hands. Someone who copies the browser profile can try every PIN offline, where the wrong-PIN limit does not count: a high-end graphics card tries every 6-digit PIN in about 3 minutes. A passphrase of 12 or more characters that cannot be guessed resists this; revoke a lost tablet at once.';
 
 function when(iso: string | null | undefined): string {
   return iso ? new Date(iso).toLocaleString() : 'never';
@@ -103,9 +127,56 @@ function RegisterTablet() {
   );
 }
 
+/**
+ * The sites a tablet serves, changed in a row beneath it. Taking a site off removes its records
+ * from the tablet at its next contact (unsent edits are kept until they reach the server), so the
+ * admin is told so before saving.
+ */
+function ChangeTabletSites(props: { tablet: FleetDevice; onDone: () => void }) {
+  const sites = useSites();
+  const change = useChangeTabletSites();
+  const [siteIds, setSiteIds] = useState<string[]>(props.tablet.siteIds);
+  const [error, setError] = useState<string | undefined>(undefined);
+  const removed = props.tablet.siteIds.filter((id) => !siteIds.includes(id));
+  const save = () => {
+    if (siteIds.length === 0) {
+      setError('Sites: choose at least one site this tablet serves');
+      return;
+    }
+    change.mutate({ id: props.tablet.id, siteIds }, { onSuccess: props.onDone });
+  };
+  return (
+    <Confirmation
+      title={`Sites of ${props.tablet.label}`}
+      confirmLabel="Save sites"
+      tone={removed.length > 0 ? 'danger' : 'primary'}
+      busy={change.isPending}
+      onCancel={props.onDone}
+      onConfirm={save}
+    >
+      <SiteChecklist
+        legend="Sites this tablet serves"
+        sites={sites.data ?? []}
+        value={siteIds}
+        onChange={(next) => {
+          setSiteIds(next);
+          setError(undefined);
+        }}
+        error={error}
+      />
+      {removed.length > 0 ? (
+        <p>
+          {`Records of ${siteNames(sites.data, removed)} will be removed from this tablet the next time it reaches the server. Edits it has not sent yet are kept until they reach the server.`}
+        </p>
+      ) : null}
+      {change.isError ? <Notice tone="error">{describeError(change.error)}</Notice> : null}
+    </Confirmation>
+  );
+}
+
 function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: string }) {
   const action = useTabletAction();
-  const [confirming, setConfirming] = useState<'revoke' | 'retire' | null>(null);
+  const [confirming, setConfirming] = useState<'revoke' | 'retire' | 'sites' | null>(null);
   const ended = tablet.state === 'revoked' || tablet.state === 'retired';
   // The buttons stay on one line; a confirmation or a refusal opens in a row of its own beneath
   // the tablet's, across the table, so the Actions column never grows and pushes rows apart.
@@ -115,10 +186,33 @@ function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: stri
       <tr className={followUp ? 'fl-fleet-row--open' : undefined}>
         <th scope="row">{tablet.label}</th>
         <td>{STATE_WORDS[tablet.state]}</td>
-        <td>{sitesText}</td>
+        <td>
+          {sitesText}
+          {ended ? null : (
+            <>
+              {' '}
+              <Button
+                tone="quiet"
+                onClick={() => setConfirming('sites')}
+                aria-label={`Change the sites of ${tablet.label}`}
+              >
+                Change
+              </Button>
+            </>
+          )}
+        </td>
         <td>{when(tablet.lastSeenAt)}</td>
         <td>{tablet.appVersion ?? 'not reported'}</td>
         <td>{tablet.outboxSize ?? 'not reported'}</td>
+        <td>
+          {keyProtectionWords(tablet.keyProtection)}
+          {tablet.keyProtection === 'pin-only' ? (
+            <span className="fl-muted"> (can be opened offline if copied)</span>
+          ) : null}
+          {tablet.keyProtection === 'unprotected' ? (
+            <span className="fl-muted"> (stored unencrypted until someone unlocks it)</span>
+          ) : null}
+        </td>
         <td className="fl-fleet-actions">
           {ended ? null : (
             <div className="fl-fleet-actions__buttons">
@@ -143,7 +237,9 @@ function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: stri
       {followUp ? (
         <tr className="fl-fleet-followup">
           <td colSpan={FLEET_COLUMNS.length}>
-            {confirming ? (
+            {confirming === 'sites' ? (
+              <ChangeTabletSites tablet={tablet} onDone={() => setConfirming(null)} />
+            ) : confirming ? (
               <Confirmation
                 title={
                   confirming === 'revoke' ? `Revoke ${tablet.label}?` : `Retire ${tablet.label}?`
@@ -182,8 +278,27 @@ const FLEET_COLUMNS = [
   'Last contact',
   'App version',
   'Outbox',
+  'Data key',
   'Actions',
 ] as const;
+
+/** Names the PIN-only tablets still in use and says their risk plainly. */
+function PinOnlyRisk({ tablets }: { tablets: readonly FleetDevice[] }) {
+  const pinOnly = tablets.filter(
+    (t) => t.keyProtection === 'pin-only' && t.state !== 'revoked' && t.state !== 'retired',
+  );
+  if (pinOnly.length === 0) return null;
+  return (
+    <Notice tone="warning">
+      <strong>
+        {pinOnly.length === 1
+          ? `${pinOnly[0]!.label} is protected by a PIN only.`
+          : `${pinOnly.length} tablets are protected by a PIN only: ${pinOnly.map((t) => t.label).join(', ')}.`}
+      </strong>{' '}
+      {PIN_ONLY_RISK}
+    </Notice>
+  );
+}
 
 export default function FleetScreen() {
   const fleet = useFleet();
@@ -203,6 +318,7 @@ export default function FleetScreen() {
           </Notice>
         ) : null}
         {fleet.data && fleet.data.length === 0 ? <p>No tablets are registered yet.</p> : null}
+        {fleet.data ? <PinOnlyRisk tablets={fleet.data} /> : null}
         {fleet.data && fleet.data.length > 0 ? (
           <div className="fl-fleet-scroll">
             <table className="fl-id-table fl-fleet-table">

@@ -13,6 +13,7 @@ import { IdentityPage } from '../../auth/ui/IdentityPage';
 import { UpdateAvailableNote } from '../../components/UpdateAvailableNote';
 import { describeFullRepull, useSyncStatus, type FullRepull, type TabRole } from '../../sync';
 import { queryKeys } from '../../data/query-keys';
+import { describeSiteRemoval } from '../../data/site-scope';
 import { describeUsage, type StorageHealth } from '../../storage/storage-health';
 import { useStorageHealth } from '../../storage/useStorageHealth';
 import { BenchKeysSettings } from './BenchKeysSettings';
@@ -120,6 +121,12 @@ export default function PersonScreen() {
         </p>
       ) : null}
       {deviceId ? <FullRepullNote repull={sync.fullRepull} /> : null}
+      {deviceId && sync.siteRemoval ? (
+        <p role="status">
+          {describeSiteRemoval(sync.siteRemoval)}{' '}
+          {`(${new Date(sync.siteRemoval.at).toLocaleString()})`}
+        </p>
+      ) : null}
       {deviceId ? <UpdateAvailableNote note={sync.newerRecords} /> : null}
       {deviceId && tabRoleWords(sync.tabRole) ? <p>{tabRoleWords(sync.tabRole)}</p> : null}
       {deviceId ? <StorageNote health={storage.data} failed={storage.isError} /> : null}
