@@ -23,7 +23,6 @@ import {
 import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
-import { StorageWarningBanner } from '../components/StorageWarningBanner';
 import { DamagedValuesNote } from '../components/DamagedValuesNote';
 import { canSee } from '../auth/access';
 import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
@@ -43,6 +42,7 @@ import {
   ReviewTabBadge,
   SignInScreen,
   SitesScreen,
+  StorageWarningBanner,
   SyncDock,
   SyncRuntime,
   TabletErasedScreen,
@@ -192,7 +192,9 @@ export function App() {
       <SessionProvider>
         {/* The storage warning sits above the Ionic app in the flow, on every screen. */}
         <div className="fl-shell">
-          <StorageWarningBanner />
+          <Suspense fallback={null}>
+            <StorageWarningBanner />
+          </Suspense>
           <DamagedValuesNote />
           <div className="fl-shell-app">
             <IonApp>

@@ -31,3 +31,10 @@ export const ReviewTabBadge = lazy(() =>
 export const UpdatePrompt = lazy(() =>
   import('../components/UpdatePrompt').then((m) => ({ default: m.UpdatePrompt })),
 );
+// The storage warning reads the Outbox (the records database and its repositories), so it comes
+// after the first screen; it only ever warns of what a tablet has stored.
+export const StorageWarningBanner = lazy(() =>
+  import('../components/StorageWarningBanner').then((m) => ({
+    default: m.StorageWarningBanner,
+  })),
+);
