@@ -7,11 +7,23 @@ import {
   clinicNumberSystem,
   FUSELIGHT_CODE_SYSTEM,
   fuselightConcepts,
+  LOINC_UNCORRECTED_ACUITY,
   SNOMED,
   UCUM_UNITS,
 } from './fhir-codes';
 
 const ucumUtils = ucum.UcumLhcUtils.getInstance();
+
+/** LOINC's mod-10 check digit [memory]: Luhn over the digits, doubling from the rightmost. */
+function loincCheckDigit(body: string): number {
+  let sum = 0;
+  const digits = body.split('').reverse().map(Number);
+  digits.forEach((d, i) => {
+    const v = i % 2 === 0 ? d * 2 : d;
+    sum += v > 9 ? v - 9 : v;
+  });
+  return (10 - (sum % 10)) % 10;
+}
 
 describe("the export's codes and units", () => {
   // Each unit code checked against UCUM as the @lhncbc/ucum-lhc package (the US National Library
@@ -48,6 +60,42 @@ describe("the export's codes and units", () => {
     // VisualAcuityTargetSiteCodes. Displays [memory] from SNOMED CT.
     expect(SNOMED.rightEye.code).toBe('362502000');
     expect(SNOMED.leftEye.code).toBe('362503005');
+  });
+
+  it('uses LOINC only for uncorrected acuity of one eye, each term read from a stored source', () => {
+    // Each code and display read from the stored LOINC pages of healthassure.in (LOINC 2.82,
+    // status ACTIVE, scale quantitative, property length ratio):
+    //   98505-1 Visual acuity far uncorrected Right eye  (www.healthassure.in/codes/loinc-98505-1-…)
+    //   98501-0 Visual acuity near uncorrected Left eye  (www.healthassure.in/codes/loinc-98501-0-…)
+    //   98499-7 Visual acuity uncorrected Right eye      (www.healthassure.in/codes/loinc-98499-7-…)
+    //   98498-9 Visual acuity uncorrected Left eye       (the Taiwan SFAA FHIR IG's example
+    //           Observation visual-acuity-min, build.fhir.org/ig/sfaassn2025-source/base)
+    // No far-specific term for the left eye and no near-specific term for the right eye could be
+    // read from a stored source, so those two carry the eye-specific term without distance.
+    expect(LOINC_UNCORRECTED_ACUITY).toEqual({
+      rightDistanceUncorrectedLogMar: {
+        code: '98505-1',
+        display: 'Visual acuity far uncorrected Right eye',
+      },
+      leftDistanceUncorrectedLogMar: {
+        code: '98498-9',
+        display: 'Visual acuity uncorrected Left eye',
+      },
+      rightNearUncorrectedLogMar: {
+        code: '98499-7',
+        display: 'Visual acuity uncorrected Right eye',
+      },
+      leftNearUncorrectedLogMar: {
+        code: '98501-0',
+        display: 'Visual acuity near uncorrected Left eye',
+      },
+    });
+    // Every LOINC code's check digit is right (LOINC's mod-10 algorithm, as LOINC's users' guide
+    // describes it [memory]): a typo in a code fails here.
+    for (const { code } of Object.values(LOINC_UNCORRECTED_ACUITY)) {
+      const [body, check] = code.split('-') as [string, string];
+      expect(loincCheckDigit(body)).toBe(Number(check));
+    }
   });
 
   it("lists every concept of Fuselight's CodeSystem, with its display, in docs/fhir.md", () => {

@@ -17,6 +17,7 @@ import {
 /** Fuselight's own CodeSystem: a stable URI, its concepts listed in docs/fhir.md. */
 export const FUSELIGHT_CODE_SYSTEM = 'https://fuselight.app/fhir/CodeSystem/orthoptics';
 export const SNOMED_CT = 'http://snomed.info/sct';
+export const LOINC = 'http://loinc.org';
 export const UCUM = 'http://unitsofmeasure.org';
 export const OBSERVATION_CATEGORY = 'http://terminology.hl7.org/CodeSystem/observation-category';
 export const DATA_ABSENT_REASON = 'http://terminology.hl7.org/CodeSystem/data-absent-reason';
@@ -41,6 +42,31 @@ export const SNOMED = {
   rightEye: { code: '362502000', display: 'Entire right eye' },
   leftEye: { code: '362503005', display: 'Entire left eye' },
 } as const;
+
+/**
+ * LOINC terms for uncorrected acuity of one eye (quantitative, length ratio), each read from a
+ * stored LOINC page named beside it in fhir-codes.spec.ts. Where no far- or near-specific term
+ * could be verified, the eye-specific term without distance is used (the SNOMED CT code beside
+ * it says distance or near). Corrected and pinhole acuity carry no LOINC code: LOINC's terms say
+ * "best corrected", which a reading with the patient's own correction is not.
+ */
+export const LOINC_UNCORRECTED_ACUITY: Record<string, { code: string; display: string }> = {
+  rightDistanceUncorrectedLogMar: {
+    code: '98505-1',
+    display: 'Visual acuity far uncorrected Right eye',
+  },
+  leftDistanceUncorrectedLogMar: { code: '98498-9', display: 'Visual acuity uncorrected Left eye' },
+  rightNearUncorrectedLogMar: { code: '98499-7', display: 'Visual acuity uncorrected Right eye' },
+  leftNearUncorrectedLogMar: {
+    code: '98501-0',
+    display: 'Visual acuity near uncorrected Left eye',
+  },
+};
+
+export const loinc = (concept: { code: string; display: string }): Coding => ({
+  system: LOINC,
+  ...concept,
+});
 
 export const snomed = (concept: { code: string; display: string }): Coding => ({
   system: SNOMED_CT,

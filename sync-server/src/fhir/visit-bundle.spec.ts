@@ -144,4 +144,52 @@ describe('the Bundle of one visit', () => {
     );
     expect(interpretation.note?.[0]?.text).toMatch(/does not replace clinical judgement/);
   });
+
+  it('codes uncorrected acuity with LOINC beside SNOMED CT, keeps the value as stored, and gives corrected acuity no LOINC code', () => {
+    const acuityId = sectionRecordId(VISIT, 'visualAcuity');
+    const acuity = record('visualAcuity', acuityId, {
+      visitId: VISIT,
+      patientId: PATIENT,
+      rightDistanceUncorrectedLogMar: 0.18,
+      leftDistanceUncorrectedLogMar: -0.08,
+      rightNearUncorrectedLogMar: 0.3,
+      leftNearUncorrectedLogMar: 0.1,
+      rightDistanceCorrectedLogMar: 0,
+    });
+    const resources = visitResources({ patient, visit, visitRecords: [acuity], people });
+    for (const resource of resources) expect(fhirErrors(resource)).toEqual([]);
+    const observation = (field: string) =>
+      resources.find(
+        (r): r is Observation =>
+          r.resourceType === 'Observation' && r.id === derivedId(acuityId, field),
+      )!;
+    const loincOf = (field: string) =>
+      observation(field)
+        .code.coding?.filter((c) => c.system === 'http://loinc.org')
+        .map((c) => c.code);
+    // Sources (stored LOINC pages of healthassure.in, LOINC 2.82): 98505-1 "Visual acuity far
+    // uncorrected Right eye", 98501-0 "Visual acuity near uncorrected Left eye", 98499-7 "Visual
+    // acuity uncorrected Right eye", 98498-9 "Visual acuity uncorrected Left eye" (the last also in
+    // the Taiwan SFAA FHIR IG's example Observation visual-acuity-min).
+    expect(loincOf('rightDistanceUncorrectedLogMar')).toEqual(['98505-1']);
+    expect(loincOf('leftNearUncorrectedLogMar')).toEqual(['98501-0']);
+    expect(loincOf('rightNearUncorrectedLogMar')).toEqual(['98499-7']);
+    expect(loincOf('leftDistanceUncorrectedLogMar')).toEqual(['98498-9']);
+    expect(loincOf('rightDistanceCorrectedLogMar')).toEqual([]);
+    // SNOMED CT 251743004 "Near visual acuity": HL7 Eye Care IG visual acuity value set.
+    expect(observation('rightNearUncorrectedLogMar').code.coding?.[0]).toEqual({
+      system: 'http://snomed.info/sct',
+      code: '251743004',
+      display: 'Near visual acuity',
+    });
+    // Values round-trip exactly as stored, including a negative logMAR.
+    expect(observation('leftDistanceUncorrectedLogMar').valueQuantity).toEqual({
+      value: -0.08,
+      unit: 'logMAR',
+      system: 'http://unitsofmeasure.org',
+      code: '1',
+    });
+    // SNOMED CT 362503005 "Entire left eye": HL7 CDA eye care guide, target sites.
+    expect(observation('leftNearUncorrectedLogMar').bodySite?.coding?.[0]?.code).toBe('362503005');
+  });
 });

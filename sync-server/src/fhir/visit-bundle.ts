@@ -35,6 +35,8 @@ import {
   EXPORTED_SECTIONS,
   FINDING_FIELDS,
   fuselight,
+  loinc,
+  LOINC_UNCORRECTED_ACUITY,
   INTERPRETATION_CONCEPTS,
   OBSERVATION_CATEGORY,
   PROVENANCE_PARTICIPANT,
@@ -117,8 +119,13 @@ function acuityCode(finding: FindingField): CodeableConcept {
     return { coding: [own], text: finding.display };
   }
   const distance = finding.field.includes('Distance');
+  const loincTerm = LOINC_UNCORRECTED_ACUITY[finding.field];
   return {
-    coding: [snomed(distance ? SNOMED.distanceVisualAcuity : SNOMED.nearVisualAcuity), own],
+    coding: [
+      snomed(distance ? SNOMED.distanceVisualAcuity : SNOMED.nearVisualAcuity),
+      ...(loincTerm ? [loinc(loincTerm)] : []),
+      own,
+    ],
     text: finding.display,
   };
 }
