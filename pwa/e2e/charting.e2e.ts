@@ -1,6 +1,7 @@
 // Today, Chart and Visit in Debian's Chromium at tablet sizes, against the real server and an
 // empty migrated database: the people and the tablet are made here, the patient through the UI.
 // Axe checks each screen for serious violations; a screenshot of each goes to the artifacts.
+import { readFileSync } from 'node:fs';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { expectNoSeriousViolations } from './support/accessibility';
@@ -108,6 +109,43 @@ describe('the charting screens on an enrolled tablet', () => {
       .getByText('Signed', { exact: true })
       .waitFor();
     expect(await npc.getByLabel('Near point of convergence, break').isDisabled()).toBe(true);
+  });
+
+  it('offers Download FHIR on the signed visit and saves the Bundle with the recorded finding', async () => {
+    const panel = page.locator('#section-hospital');
+    const button = panel.getByRole('button', { name: 'Download FHIR' });
+    // The server answers once the signed visit has synced; until then the panel says why not.
+    // 15 tries of about 4 s each stay inside the 90 s test timeout.
+    let saved: string | null = null;
+    for (let attempt = 0; attempt < 15 && saved === null; attempt += 1) {
+      await button.waitFor();
+      const download = page.waitForEvent('download', { timeout: 3_000 }).catch(() => null);
+      await button.click();
+      const done = await download;
+      if (done) {
+        expect(done.suggestedFilename()).toMatch(/^visit-[0-9a-f-]{36}\.fhir\.json$/);
+        saved = readFileSync((await done.path())!, 'utf8');
+      } else {
+        await panel.getByText(/^Not downloaded: /).waitFor();
+        await page.waitForTimeout(1_000);
+      }
+    }
+    expect(saved).not.toBeNull();
+    const bundle = JSON.parse(saved!) as {
+      resourceType: string;
+      type: string;
+      entry: { resource: { resourceType: string; status?: string; valueQuantity?: unknown } }[];
+    };
+    expect([bundle.resourceType, bundle.type]).toEqual(['Bundle', 'collection']);
+    const encounter = bundle.entry.find((e) => e.resource.resourceType === 'Encounter')!;
+    expect(encounter.resource.status).toBe('finished');
+    expect(bundle.entry.map((e) => e.resource.valueQuantity)).toContainEqual({
+      value: 12,
+      unit: 'cm',
+      system: 'http://unitsofmeasure.org',
+      code: 'cm',
+    });
+    await panel.getByText('FHIR export downloaded.').waitFor();
   });
 
   it('finds the patient on Today by date of birth and shows the signed visit', async () => {
