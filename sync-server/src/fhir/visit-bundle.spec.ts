@@ -192,4 +192,70 @@ describe('the Bundle of one visit', () => {
     // SNOMED CT 362503005 "Entire left eye": HL7 CDA eye care guide, target sites.
     expect(observation('leftNearUncorrectedLogMar').bodySite?.coding?.[0]?.code).toBe('362503005');
   });
+
+  it('writes only codes of named systems, each FHIR core code with its source', () => {
+    const countersigned = record('visit', VISIT, {
+      ...visit.fields,
+      status: 'countersigned',
+      countersignedBy: SUPERVISOR,
+      countersignedAt: '2026-11-30T16:00:00.000Z',
+    });
+    const resources = visitResources({
+      patient,
+      visit: countersigned,
+      visitRecords: [angles, cover],
+      people,
+    });
+    for (const resource of resources) expect(fhirErrors(resource)).toEqual([]);
+    const codings = new Map<string, Set<string>>();
+    const walk = (value: unknown): void => {
+      if (Array.isArray(value)) value.forEach(walk);
+      else if (value && typeof value === 'object') {
+        const o = value as Record<string, unknown>;
+        if (typeof o.system === 'string' && typeof o.code === 'string') {
+          const seen = codings.get(o.system) ?? new Set<string>();
+          codings.set(o.system, seen.add(o.code));
+        }
+        Object.values(o).forEach(walk);
+      }
+    };
+    walk(resources);
+    // Every system the Bundle codes with is one docs/fhir.md names (the clinic number's system is
+    // an identifier, not a coding, and is checked in fhir-codes.spec.ts).
+    expect([...codings.keys()].sort()).toEqual(
+      [
+        'http://terminology.hl7.org/CodeSystem/data-absent-reason',
+        'http://terminology.hl7.org/CodeSystem/observation-category',
+        'http://terminology.hl7.org/CodeSystem/provenance-participant-type',
+        'http://terminology.hl7.org/CodeSystem/v3-ActCode',
+        'http://terminology.hl7.org/CodeSystem/v3-DataOperation',
+        'http://unitsofmeasure.org',
+        'https://fuselight.app/fhir/CodeSystem/orthoptics',
+        'urn:iso-astm:E1762-95:2013',
+      ].sort(),
+    );
+    // 1.2.840.10065.1.12.1.1 Author's Signature, 1.2.840.10065.1.12.1.5 Verification Signature:
+    // FHIR's SignatureTypeCodes (hl7.org/fhir/r4b/codesystem-signature-type, and the R5-to-R4
+    // lookup of hl7.org/fhir/uv/xver-r5.r4 for the R4 value set signature-type).
+    expect([...codings.get('urn:iso-astm:E1762-95:2013')!].sort()).toEqual([
+      '1.2.840.10065.1.12.1.1',
+      '1.2.840.10065.1.12.1.5',
+    ]);
+    // The following from FHIR R4 core code systems [memory]: observation-category exam,
+    // data-absent-reason not-performed, v3-ActCode AMB (ambulatory), provenance-participant-type
+    // author and verifier, v3-DataOperation CREATE and UPDATE.
+    expect([...codings.get('http://terminology.hl7.org/CodeSystem/observation-category')!]).toEqual(
+      ['exam'],
+    );
+    expect([...codings.get('http://terminology.hl7.org/CodeSystem/data-absent-reason')!]).toEqual([
+      'not-performed',
+    ]);
+    expect([...codings.get('http://terminology.hl7.org/CodeSystem/v3-ActCode')!]).toEqual(['AMB']);
+    expect(
+      [...codings.get('http://terminology.hl7.org/CodeSystem/provenance-participant-type')!].sort(),
+    ).toEqual(['author', 'verifier']);
+    expect(
+      [...codings.get('http://terminology.hl7.org/CodeSystem/v3-DataOperation')!].sort(),
+    ).toEqual(['CREATE', 'UPDATE']);
+  });
 });
