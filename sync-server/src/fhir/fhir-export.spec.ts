@@ -245,6 +245,12 @@ describe('the FHIR export of one visit', () => {
 
   it('answers 404 outside the visit site, 403 to an admin and 400 naming a bad id', async () => {
     await get(`/api/visits/${mainVisit.id}/fhir`, outreachClinician).expect(404);
+    // A supervisor of another site only is no supervisor of this visit.
+    const otherSupervisor = await signInAs(t, {
+      role: 'supervisor',
+      siteIds: [DEMO_SITES.outreach.id],
+    });
+    await get(`/api/visits/${mainVisit.id}/fhir`, otherSupervisor.accessToken).expect(404);
     const forbidden = await get(`/api/visits/${mainVisit.id}/fhir`, admin).expect(403);
     expect(JSON.stringify(forbidden.body)).toMatch(/admin/);
     await get(`/api/visits/01935a10-0002-7000-8000-0000000fffff/fhir`, supervisor).expect(404);
