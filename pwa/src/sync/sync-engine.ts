@@ -216,7 +216,11 @@ export class SyncEngine {
           timers,
           random: options.random ?? Math.random,
           onChanged: (version) => void this.heardVersion(version, timers),
-          onReview: () => options.onReview?.(),
+          onReview: () => {
+            options.onReview?.();
+            // Only the leading tab holds the stream: the other tabs' desks hear it from here.
+            this.options.tabChannel?.post({ kind: 'review' });
+          },
           onState: (live) => status.update({ live }),
           onRefused: () => this.schedule.request(),
         })
@@ -388,6 +392,9 @@ export class SyncEngine {
         void this.schedule.syncNow().then((outcome) => {
           this.options.tabChannel?.post({ kind: 'outcome', requestId: message.requestId, outcome });
         });
+        return;
+      case 'review':
+        if (role === 'following') this.options.onReview?.();
         return;
       case 'outcome': {
         const resolve = this.awaitingLeader.get(message.requestId);

@@ -16,7 +16,9 @@ export type TabMessage =
   /** A follower's "Sync now". */
   | { kind: 'sync-now'; requestId: string }
   /** The leader's answer to one "Sync now". */
-  | { kind: 'outcome'; requestId: string; outcome: SyncOutcome };
+  | { kind: 'outcome'; requestId: string; outcome: SyncOutcome }
+  /** The leader's live stream said the Review desk's queues may have changed. */
+  | { kind: 'review' };
 
 /** A message channel to the app's other tabs (a BroadcastChannel, or an in-memory one in tests). */
 export interface TabChannel {

@@ -311,4 +311,44 @@ describe('two tabs syncing one tablet', () => {
     expect(serverA.pushedChangeIds).toHaveLength(2);
     b.stop();
   });
+  it('tells a following tab’s Review desk what the leader’s live stream heard', async () => {
+    const [dbA, dbB] = twoTabs();
+    const locks = fakeLocks();
+    const hub = channelHub();
+    const server = countingServer();
+    const heardA = vi.fn();
+    const heardB = vi.fn();
+    const fetchFn = server.fetchFn as unknown as typeof fetch;
+    const a = tab(
+      dbA,
+      {
+        leadership: webLocksLeadership('fuselight-sync:x', locks),
+        tabChannel: hub(),
+        onReview: heardA,
+      },
+      fetchFn,
+    );
+    const b = tab(
+      dbB,
+      {
+        leadership: webLocksLeadership('fuselight-sync:x', locks),
+        tabChannel: hub(),
+        onReview: heardB,
+      },
+      fetchFn,
+    );
+    a.start();
+    await vi.waitFor(() => expect(a.snapshot().tabRole).toBe('leading'));
+    b.start();
+    await settle();
+    // What the leader posts when its stream says the desk's queues moved.
+    const leaderSays = hub();
+    leaderSays.post({ kind: 'review' });
+    await settle();
+    expect(heardB).toHaveBeenCalledTimes(1);
+    // The leading tab heard it from its own stream already; a relayed copy is not taken twice.
+    expect(heardA).not.toHaveBeenCalled();
+    a.stop();
+    b.stop();
+  });
 });
