@@ -83,6 +83,9 @@ export default defineConfig({
         },
       },
     },
+    // Fonts stay files of their own (precached, fetched only for the glyphs a page shows):
+    // inlined in the CSS, every font subset would weigh on the first screen's stylesheet.
+    assetsInlineLimit: (file: string) => (/\.(woff2?|ttf)$/.test(file) ? false : undefined),
     sourcemap: true,
     // No chunk over 500 kB minified (bench:bundle prints the largest).
     chunkSizeWarningLimit: 500,

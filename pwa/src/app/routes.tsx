@@ -1,33 +1,13 @@
-// Route table: each screen is its own chunk so the first screen stays lean (bench:bundle).
+// Route table of the signed-out shell: each screen is its own chunk so the first screen stays
+// lean (bench:bundle). The signed-in app's screens are in signed-in-routes.tsx.
 import { lazy } from 'react';
 
-export const TodayScreen = lazy(() => import('../screens/today/TodayScreen'));
-export const ChartScreen = lazy(() => import('../screens/chart/ChartScreen'));
-export const VisitScreen = lazy(() => import('../screens/visit/VisitScreen'));
-export const OutboxScreen = lazy(() => import('../screens/outbox/OutboxScreen'));
-export const ReviewDeskScreen = lazy(() => import('../screens/review/ReviewDeskScreen'));
-export const FleetScreen = lazy(() => import('../screens/fleet/FleetScreen'));
 export const SignInScreen = lazy(() => import('../screens/signin/SignInScreen'));
 export const EnrolScreen = lazy(() => import('../screens/enrol/EnrolScreen'));
 export const TabletErasedScreen = lazy(() => import('../screens/enrol/TabletErasedScreen'));
 export const UnlockScreen = lazy(() => import('../screens/unlock/UnlockScreen'));
-export const PinSetupScreen = lazy(() => import('../screens/unlock/PinSetupScreen'));
-export const PersonScreen = lazy(() => import('../screens/unlock/PersonScreen'));
-export const PeopleScreen = lazy(() => import('../screens/admin/PeopleScreen'));
-export const SitesScreen = lazy(() => import('../screens/admin/SitesScreen'));
-export const BenchScreen = lazy(() => import('../screens/bench/BenchScreen'));
 
-// Parts of the shell that only a signed-in person on an enrolled tablet sees: the sync engine
-// and its indicator, and the Review desk's count (they bring the records database, the sync
-// engine and the shared schemas, which sign-in does not need).
-export const SyncRuntime = lazy(() =>
-  import('../sync/SyncRuntime').then((m) => ({ default: m.SyncRuntime })),
-);
-export const SyncDock = lazy(() => import('./SyncDock').then((m) => ({ default: m.SyncDock })));
-export const ReviewTabBadge = lazy(() =>
-  import('../screens/review/ReviewTabCount').then((m) => ({ default: m.ReviewTabBadge })),
-);
-// The update prompt (Ionic's toast) registers the service worker once the first screen is up.
+// The update prompt registers the service worker once the first screen is up.
 export const UpdatePrompt = lazy(() =>
   import('../components/UpdatePrompt').then((m) => ({ default: m.UpdatePrompt })),
 );

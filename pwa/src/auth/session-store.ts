@@ -16,7 +16,8 @@ import { tabletVault } from '../data/crypto/data-key-vault';
 import { KeyRing } from '../data/crypto/key-ring';
 import { getDefaultDb, SEALED_TABLES } from '../data/db';
 import { applySiteScope } from '../data/site-scope';
-import { IdentityApi, type SignInResponse } from './identity-api';
+import type { IdentityApi, SignInResponse } from './identity-api';
+import { lazyIdentityApi } from './lazy-identity-api';
 import { countOutboxEntries, type OutboxCounter } from './outbox-count';
 import { PinLock } from './session/pin-lock';
 import { ACTIVE_KEY, SessionState } from './session/session-state';
@@ -94,7 +95,7 @@ export class SessionStore {
   private snapshot: AuthSnapshot;
 
   constructor(options: SessionStoreOptions = {}) {
-    this.api = options.api ?? new IdentityApi();
+    this.api = options.api ?? lazyIdentityApi();
     this.keyRing = options.keyRing ?? tabletKeyRing();
     const now = options.now ?? (() => Date.now());
     this.state = new SessionState(

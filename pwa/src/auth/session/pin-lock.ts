@@ -6,7 +6,8 @@
 // unlocks and makes the person active itself.
 import type { AuthDb, PersonSession, PinRecord } from '../auth-db';
 import { KeyUnavailableError, type KeyRing } from '../../data/crypto/key-ring';
-import { pinSchema, verifyPin } from '../pin-hash';
+import { verifyPin } from '../pin-hash';
+import { isAcceptablePin, PIN_RULE } from '../pin-rule';
 import {
   DEFAULT_UNLOCK_POLICY,
   type KnownPerson,
@@ -80,7 +81,7 @@ export class PinLock {
 
   /** Sets a person's PIN (a key slot wrapped under it), with no wrong attempts. */
   async setPin(userId: string, pin: string): Promise<void> {
-    pinSchema.parse(pin);
+    if (!isAcceptablePin(pin)) throw new Error(PIN_RULE);
     await this.options.keys.addPinSlot(userId, pin);
     const record: PinRecord = {
       userId,
@@ -111,7 +112,7 @@ export class PinLock {
     const { salt, hash, iterations } = record;
     if (salt === undefined || hash === undefined || iterations === undefined) return 'wrong';
     if (!(await verifyPin(pin, { salt, hash, iterations }))) return 'wrong';
-    if (!pinSchema.safeParse(pin).success) {
+    if (!isAcceptablePin(pin)) {
       await this.options.db().pins.delete(record.userId);
       this.pins.delete(record.userId);
       this.options.publish();

@@ -6,7 +6,8 @@ import type { KeyProtectionKind } from '@fuselight/shared/admin-views';
 import type { KeyRing } from '../../data/crypto/key-ring';
 import { askForPersistentStorage } from '../../storage/storage-health';
 import type { TabletCredentials } from '../auth-db';
-import { ApiError, NetworkError, type IdentityApi } from '../identity-api';
+import { ApiError, NetworkError } from '../../net/api-client';
+import type { IdentityApi } from '../identity-api';
 import {
   clearErasureNote,
   writeErasureNote,

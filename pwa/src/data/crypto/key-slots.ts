@@ -3,7 +3,6 @@
 // parameters are stored in each slot so they can be raised later without locking anyone out.
 // A wrong PIN makes the unwrap fail AES-GCM's authentication: nothing about the PIN is stored
 // apart from the slot itself (docs/threat-model.md).
-import { argon2id } from 'hash-wasm';
 
 export interface KdfParams {
   name: 'argon2id';
@@ -69,6 +68,8 @@ export async function deriveBytes(
   salt: Uint8Array,
   params: KdfParams,
 ): Promise<Uint8Array> {
+  // hash-wasm (its WebAssembly inlined) loads at the first derivation: setting or typing a PIN.
+  const { argon2id } = await import('hash-wasm');
   return argon2id({
     password: secret.normalize('NFC'),
     salt,

@@ -3,7 +3,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useMutation } from '@tanstack/react-query';
 import { useForm } from 'react-hook-form';
 import { useNavigate } from 'react-router-dom';
-import { pinSetupSchema, type PinSetup } from '../../auth/pin-hash';
+import { pinSetupSchema, type PinSetup } from '../../auth/pin-schemas';
 import { useAuthState } from '../../auth/SessionProvider';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Notice, TextField, describeError } from '../../auth/ui/controls';

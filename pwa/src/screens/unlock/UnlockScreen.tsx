@@ -8,7 +8,7 @@ import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Notice, TextField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
-import { PIN_RULE, pinSchema } from '../../auth/pin-hash';
+import { PIN_RULE, pinSchema } from '../../auth/pin-schemas';
 
 function whyNoPin(person: KnownPerson): string {
   if (person.signInRequired) return person.signInRequired.reason;
