@@ -16,7 +16,14 @@
 //                             [--searches 15]
 /* global window, document, HTMLInputElement, MutationObserver, requestAnimationFrame -- code run inside the page */
 import { spawn, spawnSync } from 'node:child_process';
-import { createReadStream, existsSync, mkdtempSync, readFileSync, statSync } from 'node:fs';
+import {
+  copyFileSync,
+  createReadStream,
+  existsSync,
+  mkdtempSync,
+  readFileSync,
+  statSync,
+} from 'node:fs';
 import { createServer } from 'node:http';
 import { tmpdir } from 'node:os';
 import { extname, join, normalize, resolve } from 'node:path';
@@ -281,6 +288,21 @@ try {
             window.benchLongTasks.push({ start: entry.startTime, ms: entry.duration });
           }
         }).observe({ type: 'longtask', buffered: true });
+        // And layout shifts, with what moved: the screen must not jump while it fills in.
+        window.benchShifts = [];
+        new PerformanceObserver((list) => {
+          for (const entry of list.getEntries()) {
+            if (entry.hadRecentInput) continue;
+            const moved = (entry.sources ?? []).map((source) => {
+              const node = source.node;
+              if (!node || node.nodeType !== 1) return '?';
+              const classes =
+                node.className && typeof node.className === 'string' ? node.className : '';
+              return `${node.tagName.toLowerCase()}${classes ? '.' + classes.trim().split(/\s+/).slice(0, 2).join('.') : ''}`;
+            });
+            window.benchShifts.push({ at: entry.startTime, value: entry.value, moved });
+          }
+        }).observe({ type: 'layout-shift', buffered: true });
       });
     }
     await p.goto(`${origin}/today`);
@@ -307,6 +329,7 @@ try {
         { start: load.start, end: load.start + load.ms },
       );
       const fullHeap = await heapAfterGc(p);
+      const shifts = await p.evaluate(() => window.benchShifts);
 
       // 5. Search latency: type a query, time until its results are listed; beside it the bare
       //    Dexie query for the same text, run in the same page right before or after it.
@@ -445,6 +468,20 @@ try {
       console.log(
         `  JS heap after GC: ${mb(fullHeap)} holding ${load.patients} patients, ${mb(emptyHeap)} with ${emptyLoad.patients} (the directory and its records: ≈ ${mb(fullHeap - emptyHeap)})`,
       );
+      const shiftTotal = shifts.reduce((sum, shift) => sum + shift.value, 0);
+      console.log(
+        `  layout shift during cold start and the directory's load: ${shiftTotal.toFixed(3)}` +
+          (shifts.length > 0
+            ? ` (${shifts
+                .sort((a, b) => b.value - a.value)
+                .slice(0, 3)
+                .map(
+                  (shift) =>
+                    `${shift.value.toFixed(3)} at ${shift.at.toFixed(0)} ms moving ${shift.moved.join(', ') || '?'}`,
+                )
+                .join('; ')})`
+            : ''),
+      );
       console.log(
         `  Today search, typed query to results in the DOM:    median ${fmt(median(ui))} (runs: ${ui.map(fmt).join(', ')})`,
       );
@@ -507,6 +544,15 @@ async function lighthouseRun(url, { profile } = {}) {
   const status = await new Promise((done) => child.on('exit', done));
   if (status !== 0 || !existsSync(out)) {
     throw new Error(`Lighthouse failed on ${url}: ${output.trim().slice(-400)}`);
+  }
+  // FUSELIGHT_LIGHTHOUSE_REPORTS=<dir> keeps each full report there, to read its audits.
+  if (process.env.FUSELIGHT_LIGHTHOUSE_REPORTS) {
+    const kept = join(
+      process.env.FUSELIGHT_LIGHTHOUSE_REPORTS,
+      `${new URL(url).pathname.slice(1)}.json`,
+    );
+    copyFileSync(out, kept);
+    console.log(`  (report kept: ${kept})`);
   }
   return JSON.parse(readFileSync(out, 'utf8'));
 }

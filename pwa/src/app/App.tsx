@@ -7,7 +7,7 @@ import '../theme/fonts';
 import '../theme/variables.css';
 import '../theme/base.css';
 import { QueryClient, QueryClientProvider, notifyManager } from '@tanstack/react-query';
-import { lazy, Suspense, type ReactNode } from 'react';
+import { lazy, Suspense, useEffect, type ReactNode } from 'react';
 import { BrowserRouter, Route, Routes } from 'react-router-dom';
 import { DamagedValuesNote } from '../components/DamagedValuesNote';
 import { IdentityGate, SignedOutLanding } from '../auth/IdentityGate';
@@ -33,7 +33,18 @@ const queryClient = new QueryClient({
   defaultOptions: { queries: { networkMode: 'always', staleTime: 5_000, retry: 1 } },
 });
 
-const SignedInApp = lazy(() => import('./SignedInApp'));
+const loadSignedInApp = () => import('./SignedInApp');
+const SignedInApp = lazy(loadSignedInApp);
+
+// Whether someone was signed in when this tablet last ran the app (a flag, nothing about who):
+// if so, the signed-in app's code is fetched at once, beside the session's own load, rather
+// than after it. A wrong guess only fetches code the service worker has cached anyway.
+const SIGNED_IN_HINT = 'fuselight:signed-in';
+try {
+  if (globalThis.localStorage?.getItem(SIGNED_IN_HINT) === '1') void loadSignedInApp();
+} catch {
+  // Storage blocked: no head start.
+}
 
 const screen = (node: ReactNode) => <Suspense fallback={<Loading />}>{node}</Suspense>;
 
@@ -56,6 +67,14 @@ function SignedOutShell() {
 
 function ShellForPerson() {
   const signedIn = useAuthState().activeUser !== null;
+  useEffect(() => {
+    try {
+      if (signedIn) localStorage.setItem(SIGNED_IN_HINT, '1');
+      else localStorage.removeItem(SIGNED_IN_HINT);
+    } catch {
+      // Storage blocked: the next start has no head start, nothing else changes.
+    }
+  }, [signedIn]);
   if (!signedIn) return <SignedOutShell />;
   return (
     <div className="fl-shell-app">
