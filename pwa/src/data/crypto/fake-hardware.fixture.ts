@@ -2,11 +2,7 @@
 // is HMAC-SHA-256 of the salt under it, as a real authenticator's hmac-secret is. Credentials can
 // be removed and prompts cancelled, as a person or a screen-lock reset would. The end-to-end test
 // (pwa/e2e/hardware-key.e2e.ts) uses Chromium's virtual authenticator instead.
-import {
-  HARDWARE_REFUSED,
-  HardwareShareError,
-  type HardwareShare,
-} from './hardware-share';
+import { HARDWARE_REFUSED, HardwareShareError, type HardwareShare } from './hardware-share';
 
 export interface FakeHardware extends HardwareShare {
   /** The ids of the credentials the authenticator holds. */
@@ -19,7 +15,8 @@ export interface FakeHardware extends HardwareShare {
   prompts: number;
 }
 
-const hex = (bytes: Uint8Array) => Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('');
+const hex = (bytes: Uint8Array) =>
+  Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('');
 
 export function fakeHardware(options: { prf?: boolean } = {}): FakeHardware {
   const secrets = new Map<string, CryptoKey>();

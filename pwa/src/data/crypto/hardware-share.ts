@@ -59,8 +59,7 @@ type PrfResults = { enabled?: boolean; results?: { first?: BufferSource } };
 
 function prfOf(credential: Credential | null): PrfResults | undefined {
   const results = (credential as PublicKeyCredential | null)?.getClientExtensionResults() as
-    | { prf?: PrfResults }
-    | undefined;
+    { prf?: PrfResults } | undefined;
   return results?.prf;
 }
 
@@ -84,9 +83,7 @@ export function webAuthnShare(): HardwareShare {
       credential = await navigator.credentials.get({
         publicKey: {
           challenge: crypto.getRandomValues(new Uint8Array(32)),
-          allowCredentials: [
-            { type: 'public-key', id: credentialId as Uint8Array<ArrayBuffer> },
-          ],
+          allowCredentials: [{ type: 'public-key', id: credentialId as Uint8Array<ArrayBuffer> }],
           userVerification: 'required',
           timeout: TIMEOUT_MS,
           extensions: { prf: { eval: { first: salt as Uint8Array<ArrayBuffer> } } },

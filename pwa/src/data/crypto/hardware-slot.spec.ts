@@ -99,7 +99,9 @@ describe('a key slot that needs the PIN and the hardware share', () => {
     expect(await openHardwarePinSlot(slot, '482914', prfOutput)).toBeNull();
     expect(await openHardwarePinSlot(slot, '482913', random32())).toBeNull();
     // A slot moved onto another person fails too (its id is in the derivation and the AAD).
-    expect(await openHardwarePinSlot({ ...slot, id: 'pin:tomasz' }, '482913', prfOutput)).toBeNull();
+    expect(
+      await openHardwarePinSlot({ ...slot, id: 'pin:tomasz' }, '482913', prfOutput),
+    ).toBeNull();
   });
 });
 

@@ -36,11 +36,7 @@ export interface SealedDatabase {
  * Neither says anything about the PIN, so neither counts as a wrong one.
  */
 export type PinUnlock =
-  | 'unlocked'
-  | 'wrong'
-  | 'no-slot'
-  | 'hardware-refused'
-  | 'hardware-unavailable';
+  'unlocked' | 'wrong' | 'no-slot' | 'hardware-refused' | 'hardware-unavailable';
 
 /** Who a slot is made for (the platform authenticator shows the name when it asks). */
 export interface SlotPerson {
