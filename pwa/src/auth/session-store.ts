@@ -13,6 +13,7 @@ import type { LoginRequest, SessionUser } from '@fuselight/shared';
 import { AuthDb, type KnownColleague, type KnownSite } from './auth-db';
 import { getAttachmentDb, SEALED_ATTACHMENT_TABLES } from '../attachments/attachment-db';
 import { tabletVault } from '../data/crypto/data-key-vault';
+import { webAuthnShare, type HardwareShare } from '../data/crypto/hardware-share';
 import { KeyRing } from '../data/crypto/key-ring';
 import { getDefaultDb, SEALED_TABLES } from '../data/db';
 import { applySiteScope } from '../data/site-scope';
@@ -51,6 +52,8 @@ export interface SessionStoreOptions {
   keyRing?: KeyRing;
   /** Deletes what the tablet holds of sites it no longer serves (default: its own databases). */
   applySiteScope?: SiteScopeApplier;
+  /** The platform authenticator for the default key ring (default: the browser's WebAuthn). */
+  hardware?: HardwareShare;
 }
 
 /** The tablet's own site scope: records and attachment files outside the sites it may hold go. */
@@ -72,8 +75,9 @@ export const tabletSiteScope: SiteScopeApplier = async (holdSiteIds, siteName) =
 };
 
 /** The key ring of this tablet's own databases. */
-export function tabletKeyRing(): KeyRing {
+export function tabletKeyRing(hardware: HardwareShare = webAuthnShare()): KeyRing {
   return new KeyRing({
+    hardware,
     db: getDefaultDb,
     sealed: () => [
       { db: getDefaultDb(), tables: Object.keys(SEALED_TABLES) },
@@ -95,7 +99,7 @@ export class SessionStore {
 
   constructor(options: SessionStoreOptions = {}) {
     this.api = options.api ?? new IdentityApi();
-    this.keyRing = options.keyRing ?? tabletKeyRing();
+    this.keyRing = options.keyRing ?? tabletKeyRing(options.hardware);
     const now = options.now ?? (() => Date.now());
     this.state = new SessionState(
       options.db ?? (() => new AuthDb()),
@@ -355,12 +359,25 @@ export class SessionStore {
     if (!person) throw new SignInRequiredError('Sign in before setting a PIN.');
     if (!this.state.tablet)
       throw new Error('A PIN unlocks an enrolled tablet only; enrol it first.');
-    await this.pinLock.setPin(person.userId, pin);
+    await this.pinLock.setPin(person.userId, pin, {
+      name: person.user.name,
+      email: person.user.email,
+    });
     this.state.pinOfferFor = null;
     this.publish();
     // Keep the key under the server's share too (if the PIN made it), so that an online sign-in
     // can always open it (another person, or too many wrong PINs).
     await this.openKeyAfterSignIn(await this.tokens.tokenFor(person.userId));
+  }
+
+  /** Whether a PIN set here is combined with the tablet's platform authenticator. */
+  hardwareKeyAvailable(): Promise<boolean> {
+    return this.keyRing.hardwareAvailable();
+  }
+
+  /** What `secret` still lacks under the clinic's rule for this tablet; null when it may be set. */
+  pinShortfall(secret: string): Promise<string | null> {
+    return this.pinLock.shortfall(secret);
   }
 
   async unlock(userId: string, pin: string): Promise<UnlockResult> {

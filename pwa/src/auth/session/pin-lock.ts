@@ -4,9 +4,12 @@
 // are allowed). A wrong PIN only counts: it never erases anything. It keeps its own rows of the
 // auth database (the pins table and the policy setting); the session store asks it whether a PIN
 // unlocks and makes the person active itself.
+import { unlockWithoutHardwareSchema } from '@fuselight/shared/admin-views';
 import type { AuthDb, PersonSession, PinRecord } from '../auth-db';
-import { KeyUnavailableError, type KeyRing } from '../../data/crypto/key-ring';
+import { HARDWARE_REFUSED, HARDWARE_UNAVAILABLE } from '../../data/crypto/hardware-share';
+import { KeyUnavailableError, type KeyRing, type SlotPerson } from '../../data/crypto/key-ring';
 import { pinSchema, verifyPin } from '../pin-hash';
+import { secretShortfall } from '../secret-policy';
 import {
   DEFAULT_UNLOCK_POLICY,
   type KnownPerson,
@@ -24,7 +27,7 @@ export interface PinLockOptions {
   /** Rebuilds the session snapshot and tells its listeners. */
   publish: () => void;
   /** The tablet's key slots: a PIN is set by wrapping the data key under it. */
-  keys: Pick<KeyRing, 'addPinSlot' | 'unlockWithPin' | 'removePinSlot'>;
+  keys: Pick<KeyRing, 'addPinSlot' | 'unlockWithPin' | 'removePinSlot' | 'hardwareAvailable'>;
 }
 
 export type PinStatus = Pick<
@@ -78,10 +81,25 @@ export class PinLock {
     };
   }
 
-  /** Sets a person's PIN (a key slot wrapped under it), with no wrong attempts. */
-  async setPin(userId: string, pin: string): Promise<void> {
+  /**
+   * What is still missing from `secret` under the clinic's rule for tablets without a platform
+   * authenticator; null when it may be set (always, on a tablet with one).
+   */
+  async shortfall(secret: string): Promise<string | null> {
+    if (await this.options.keys.hardwareAvailable()) return null;
+    return secretShortfall(secret, this.current.unlockWithoutHardware);
+  }
+
+  /**
+   * Sets a person's PIN (a key slot wrapped under it, with the tablet's hardware share where it
+   * has a platform authenticator), with no wrong attempts. Without one, the clinic's rule for
+   * such tablets is enforced here too, in words naming what is missing.
+   */
+  async setPin(userId: string, pin: string, person?: SlotPerson): Promise<void> {
     pinSchema.parse(pin);
-    await this.options.keys.addPinSlot(userId, pin);
+    const missing = await this.shortfall(pin);
+    if (missing) throw new Error(missing);
+    await this.options.keys.addPinSlot(userId, pin, person);
     const record: PinRecord = {
       userId,
       keySlot: true,
@@ -97,6 +115,14 @@ export class PinLock {
   private async verify(record: PinRecord, pin: string): Promise<'right' | 'wrong' | UnlockFailure> {
     if (record.keySlot) {
       const opened = await this.options.keys.unlockWithPin(record.userId, pin);
+      if (opened === 'hardware-refused' || opened === 'hardware-unavailable') {
+        // Says nothing about the PIN: not counted as a wrong one, and nothing is erased.
+        return fail(
+          'hardware',
+          opened === 'hardware-refused' ? HARDWARE_REFUSED : HARDWARE_UNAVAILABLE,
+          Math.max(0, this.current.maxPinAttempts - record.failedAttempts),
+        );
+      }
       if (opened === 'no-slot') {
         return fail(
           'no-pin',
@@ -243,6 +269,8 @@ export class PinLock {
     if (policy.unsyncedWarningHours !== undefined && policy.unsyncedWarningHours >= 1) {
       next.unsyncedWarningHours = Math.floor(policy.unsyncedWarningHours);
     }
+    const rule = unlockWithoutHardwareSchema.safeParse(policy.unlockWithoutHardware);
+    if (rule.success) next.unlockWithoutHardware = rule.data;
     this.current = next;
     await this.options.db().settings.put({ key: POLICY_KEY, value: next });
   }
