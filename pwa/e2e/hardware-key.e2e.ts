@@ -4,7 +4,8 @@
 // under the PIN and the credential's PRF output together; a reload locks it; a wrong PIN fails
 // and counts; the right PIN with the authenticator unlocks; the Fleet screen says the tablet is
 // hardware-backed; and with the credential removed (a screen lock reset) the unlock says so in
-// words and offers a password sign-in, after which the patient is still there.
+// words and offers a password sign-in, after which the patient is still there and the PIN can be
+// set again with a new credential.
 import type { BrowserContext, CDPSession, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
@@ -165,12 +166,22 @@ describe('a tablet whose PIN needs its platform authenticator', () => {
 
     await page.getByRole('link', { name: 'Sign in with your password' }).click();
     await signIn(page, clinician);
-    await page.getByRole('heading', { name: 'Today' }).first().waitFor();
+    // The sign-in offers to set the PIN again, saying why; a new credential is made for it.
+    await page.getByRole('heading', { name: 'PIN for offline use' }).first().waitFor();
+    await page.getByText('Last time, this tablet’s screen lock did not confirm you').waitFor();
+    await setPin(page, '862047');
+    expect(await credentials()).toHaveLength(1);
+    expect((await credentials())[0]!.credentialId).not.toBe(credential!.credentialId);
     const search = page.getByLabel('Name, clinic number or date of birth');
     await search.fill(patient.family);
     await page
       .getByRole('list', { name: 'Search results' })
       .getByText(`${patient.given} ${patient.family}`)
       .waitFor();
+
+    // The new PIN with the new credential opens the tablet after a reload.
+    await page.goto(`${localhostUrl()}/today`);
+    await unlockWith('862047');
+    await page.getByRole('heading', { name: 'Today' }).first().waitFor();
   });
 });

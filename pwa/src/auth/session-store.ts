@@ -240,7 +240,12 @@ export class SessionStore {
     state.waiting.delete(person.userId);
     state.activeUserId = person.userId;
     await this.openKeyAfterSignIn(answer.accessToken);
-    state.pinOfferFor = state.tablet && !this.pinLock.hasPin(person.userId) ? person.userId : null;
+    // Offered a PIN: someone without one, or whose PIN's screen-lock key did not answer.
+    state.pinOfferFor =
+      state.tablet &&
+      (!this.pinLock.hasPin(person.userId) || this.pinLock.hardwareRefused(person.userId))
+        ? person.userId
+        : null;
     this.publish();
     // The names are for showing only: the sign-in never waits for them or fails with them.
     this.refreshSites().catch(() => undefined);

@@ -32,7 +32,7 @@ export interface PinLockOptions {
 
 export type PinStatus = Pick<
   KnownPerson,
-  'hasPin' | 'pinAttemptsLeft' | 'canUnlockWithPin' | 'unlockWindowEndsAt'
+  'hasPin' | 'pinAttemptsLeft' | 'canUnlockWithPin' | 'unlockWindowEndsAt' | 'pinHardwareRefused'
 >;
 
 export class PinLock {
@@ -63,6 +63,11 @@ export class PinLock {
     return this.pins.has(userId);
   }
 
+  /** The platform authenticator did not answer for the person's PIN the last time it was asked. */
+  hardwareRefused(userId: string): boolean {
+    return this.pins.get(userId)?.hardwareRefusedAt !== undefined;
+  }
+
   /** What the unlock screen shows of a person's PIN. */
   status(person: PersonSession, tabletEnrolled: boolean): PinStatus {
     const pin = this.pins.get(person.userId);
@@ -78,6 +83,7 @@ export class PinLock {
         !person.signInRequired &&
         tabletEnrolled,
       unlockWindowEndsAt: windowEnds,
+      pinHardwareRefused: pin?.hardwareRefusedAt !== undefined,
     };
   }
 
@@ -116,7 +122,12 @@ export class PinLock {
     if (record.keySlot) {
       const opened = await this.options.keys.unlockWithPin(record.userId, pin);
       if (opened === 'hardware-refused' || opened === 'hardware-unavailable') {
-        // Says nothing about the PIN: not counted as a wrong one, and nothing is erased.
+        // Says nothing about the PIN: not counted as a wrong one, and nothing is erased. Noted,
+        // so that the person's next online sign-in offers to set the PIN again.
+        const hardwareRefusedAt = this.options.now();
+        await this.options.db().pins.update(record.userId, { hardwareRefusedAt });
+        this.pins.set(record.userId, { ...record, hardwareRefusedAt });
+        this.options.publish();
         return fail(
           'hardware',
           opened === 'hardware-refused' ? HARDWARE_REFUSED : HARDWARE_UNAVAILABLE,

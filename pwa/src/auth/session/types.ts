@@ -39,6 +39,8 @@ export interface KnownPerson {
   canUnlockWithPin: boolean;
   /** Epoch ms after which the PIN no longer unlocks (the window closes). */
   unlockWindowEndsAt: number;
+  /** The tablet's screen lock did not answer for this person's PIN the last time it was asked. */
+  pinHardwareRefused: boolean;
   signInRequired: { reason: string; at: number } | null;
 }
 

@@ -56,7 +56,8 @@ function Explanation({
 }
 
 export default function PinSetupScreen() {
-  const { policy, tablet } = useAuthState();
+  const { policy, tablet, people, activeUser } = useAuthState();
+  const me = people.find((person) => person.user.id === activeUser?.id);
   const actions = useAuthActions();
   const navigate = useNavigate();
   const hardware = useQuery({
@@ -97,6 +98,13 @@ export default function PinSetupScreen() {
         hours after the clinic server last saw you. After {policy.maxPinAttempts} wrong tries you
         will need your password again.
       </p>
+      {me?.pinHardwareRefused ? (
+        <Notice tone="warning">
+          Last time, this tablet’s screen lock did not confirm you when you typed your PIN. If the
+          key it kept for your PIN is gone (for example after the screen lock was reset), set your
+          PIN again here: the old one cannot open the tablet without it.
+        </Notice>
+      ) : null}
       <Explanation hardware={hardware.isError ? false : hardware.data} rule={rule} />
       <form noValidate aria-label="Set a PIN" onSubmit={handleSubmit((form) => save.mutate(form))}>
         <TextField

@@ -108,5 +108,10 @@ describe('the person switcher', () => {
     // An online sign-in opens the key with the server's slot.
     await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
     expect(store.keyRing.vault.unlocked).toBe(true);
+    // …and offers to set the PIN again, since its screen-lock key did not answer.
+    expect(store.getSnapshot().pinOfferFor).toBe(AMARA.id);
+    expect(store.getSnapshot().people.find((p) => p.user.id === AMARA.id)?.pinHardwareRefused).toBe(
+      true,
+    );
   });
 });
