@@ -16,6 +16,7 @@ import {
   type FleetDevice,
   type KeyProtectionKind,
   type InvitedPerson,
+  type UnlockWithoutHardware,
 } from '@fuselight/shared/admin-views';
 import {
   sessionUserSchema,
@@ -94,6 +95,8 @@ export interface DeviceStatus {
   maxPinAttempts?: number;
   /** The clinic setting: hours unsynced edits may wait before the tablet warns on every screen. */
   unsyncedWarningHours?: number;
+  /** The clinic setting: what a secret must be on a tablet without a platform authenticator. */
+  unlockWithoutHardware?: UnlockWithoutHardware;
 }
 
 export interface NewPerson {

@@ -13,6 +13,7 @@ import type { LoginRequest, SessionUser } from '@fuselight/shared';
 import { AuthDb, type KnownColleague, type KnownSite } from './auth-db';
 import { getAttachmentDb, SEALED_ATTACHMENT_TABLES } from '../attachments/attachment-db';
 import { tabletVault } from '../data/crypto/data-key-vault';
+import { webAuthnShare, type HardwareShare } from '../data/crypto/hardware-share';
 import { KeyRing } from '../data/crypto/key-ring';
 import { getDefaultDb, SEALED_TABLES } from '../data/db';
 import { applySiteScope } from '../data/site-scope';
@@ -52,6 +53,8 @@ export interface SessionStoreOptions {
   keyRing?: KeyRing;
   /** Deletes what the tablet holds of sites it no longer serves (default: its own databases). */
   applySiteScope?: SiteScopeApplier;
+  /** The platform authenticator for the default key ring (default: the browser's WebAuthn). */
+  hardware?: HardwareShare;
 }
 
 /** The tablet's own site scope: records and attachment files outside the sites it may hold go. */
@@ -73,8 +76,9 @@ export const tabletSiteScope: SiteScopeApplier = async (holdSiteIds, siteName) =
 };
 
 /** The key ring of this tablet's own databases. */
-export function tabletKeyRing(): KeyRing {
+export function tabletKeyRing(hardware: HardwareShare = webAuthnShare()): KeyRing {
   return new KeyRing({
+    hardware,
     db: getDefaultDb,
     sealed: () => [
       { db: getDefaultDb(), tables: Object.keys(SEALED_TABLES) },
@@ -96,7 +100,7 @@ export class SessionStore {
 
   constructor(options: SessionStoreOptions = {}) {
     this.api = options.api ?? lazyIdentityApi();
-    this.keyRing = options.keyRing ?? tabletKeyRing();
+    this.keyRing = options.keyRing ?? tabletKeyRing(options.hardware);
     const now = options.now ?? (() => Date.now());
     this.state = new SessionState(
       options.db ?? (() => new AuthDb()),
@@ -237,7 +241,12 @@ export class SessionStore {
     state.waiting.delete(person.userId);
     state.activeUserId = person.userId;
     await this.openKeyAfterSignIn(answer.accessToken);
-    state.pinOfferFor = state.tablet && !this.pinLock.hasPin(person.userId) ? person.userId : null;
+    // Offered a PIN: someone without one, or whose PIN's screen-lock key did not answer.
+    state.pinOfferFor =
+      state.tablet &&
+      (!this.pinLock.hasPin(person.userId) || this.pinLock.hardwareRefused(person.userId))
+        ? person.userId
+        : null;
     this.publish();
     // The names are for showing only: the sign-in never waits for them or fails with them.
     this.refreshSites().catch(() => undefined);
@@ -356,12 +365,25 @@ export class SessionStore {
     if (!person) throw new SignInRequiredError('Sign in before setting a PIN.');
     if (!this.state.tablet)
       throw new Error('A PIN unlocks an enrolled tablet only; enrol it first.');
-    await this.pinLock.setPin(person.userId, pin);
+    await this.pinLock.setPin(person.userId, pin, {
+      name: person.user.name,
+      email: person.user.email,
+    });
     this.state.pinOfferFor = null;
     this.publish();
     // Keep the key under the server's share too (if the PIN made it), so that an online sign-in
     // can always open it (another person, or too many wrong PINs).
     await this.openKeyAfterSignIn(await this.tokens.tokenFor(person.userId));
+  }
+
+  /** Whether a PIN set here is combined with the tablet's platform authenticator. */
+  hardwareKeyAvailable(): Promise<boolean> {
+    return this.keyRing.hardwareAvailable();
+  }
+
+  /** What `secret` still lacks under the clinic's rule for this tablet; null when it may be set. */
+  pinShortfall(secret: string): Promise<string | null> {
+    return this.pinLock.shortfall(secret);
   }
 
   async unlock(userId: string, pin: string): Promise<UnlockResult> {

@@ -107,12 +107,14 @@ export class TabletLifecycle {
       if (
         status.offlineUnlockHours !== undefined ||
         status.maxPinAttempts !== undefined ||
-        status.unsyncedWarningHours !== undefined
+        status.unsyncedWarningHours !== undefined ||
+        status.unlockWithoutHardware !== undefined
       ) {
         await this.pinLock.setPolicy({
           offlineUnlockHours: status.offlineUnlockHours,
           maxPinAttempts: status.maxPinAttempts,
           unsyncedWarningHours: status.unsyncedWarningHours,
+          unlockWithoutHardware: status.unlockWithoutHardware,
         });
         this.state.publish();
       }
