@@ -16,7 +16,6 @@ import { tabletVault } from '../data/crypto/data-key-vault';
 import { webAuthnShare, type HardwareShare } from '../data/crypto/hardware-share';
 import { KeyRing } from '../data/crypto/key-ring';
 import { getDefaultDb, SEALED_TABLES } from '../data/db';
-import { applySiteScope } from '../data/site-scope';
 import type { IdentityApi, SignInResponse } from './identity-api';
 import { lazyIdentityApi } from './lazy-identity-api';
 import { countOutboxEntries, type OutboxCounter } from './outbox-count';
@@ -62,6 +61,8 @@ export const tabletSiteScope: SiteScopeApplier = async (holdSiteIds, siteName) =
   const db = getDefaultDb();
   // Locked: nothing sealed can be read; the next contact while someone is unlocked does it.
   if (db.vault.isProtected && !db.vault.unlocked) return;
+  // Loaded at the first contact with the server, not with the first screen.
+  const { applySiteScope } = await import('../data/site-scope');
   await applySiteScope({
     db,
     files: getAttachmentDb(),
