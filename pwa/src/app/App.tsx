@@ -16,6 +16,7 @@ import { SignInPrompt } from '../auth/SignInPrompt';
 import { Loading } from './Loading';
 import {
   EnrolScreen,
+  preloadShellScreen,
   SignInScreen,
   StorageWarningBanner,
   TabletErasedScreen,
@@ -45,6 +46,7 @@ try {
 } catch {
   // Storage blocked: no head start.
 }
+if (typeof location !== 'undefined') preloadShellScreen(location.pathname);
 
 const screen = (node: ReactNode) => <Suspense fallback={<Loading />}>{node}</Suspense>;
 
