@@ -9,10 +9,14 @@
 //     its own results in the DOM, as a mutation observer sees the commit; and to the next
 //     animation frame, which paints them), beside a bare Dexie indexed prefix query over the same
 //     patients' terms (a database of its own, since the app keeps no search index) followed by a
-//     bulkGet of their records from the app's database, measured in the same run.
+//     bulkGet of their records from the app's database, measured in the same run;
+//   - layout shifts while Today fills in, with what moved;
+//   - Lighthouse on /signin and on Today (see printLighthouse);
+//   - the same tablet protected: setting a PIN seals every patient in place, then each run
+//     reloads it locked and times Unlock → an interactive Today, and → the patient search loaded.
 // The tablet's session and the patients are written straight into IndexedDB with Dexie (its
 // UMD build injected into the page), in the shapes the app's own stores use.
-//   node scripts/bench-ui.mjs [--no-build] [--no-lighthouse] [--patients 20000] [--runs 7]
+//   node scripts/bench-ui.mjs [--no-build] [--no-lighthouse] [--no-unlock] [--patients 20000] [--runs 7]
 //                             [--searches 15]
 /* global window, document, HTMLInputElement, MutationObserver, requestAnimationFrame -- code run inside the page */
 import { spawn, spawnSync } from 'node:child_process';
@@ -101,7 +105,7 @@ await new Promise((done) => server.listen(0, '127.0.0.1', done));
 const origin = `http://127.0.0.1:${server.address().port}`;
 
 const profileDir = mkdtempSync(join(tmpdir(), 'fl-bench-ui-'));
-const context = await chromium.launchPersistentContext(profileDir, {
+const browserOptions = {
   executablePath: chromiumPath(),
   headless: true,
   viewport: { width: 1280, height: 800 },
@@ -115,7 +119,8 @@ const context = await chromium.launchPersistentContext(profileDir, {
     '--disable-component-update',
     '--disable-sync',
   ],
-});
+};
+const context = await chromium.launchPersistentContext(profileDir, browserOptions);
 
 const SITE = '0190c6a0-0000-7000-8000-00000000b001';
 const USER = {
@@ -577,6 +582,72 @@ function printLighthouse(name, report) {
   if (failing.length > 0) console.log(`    audits not passed: ${failing.join(', ')}`);
 }
 
+const PIN = '604182';
+
+/**
+ * The same tablet protected (docs/threat-model.md): a PIN set on the You screen's PIN page seals
+ * every patient in place; then each run reloads it (a protected tablet opens locked), types the
+ * PIN and presses Unlock, timed from the press to an interactive Today and to the patient
+ * search loaded. Offline, as an outreach tablet would be.
+ */
+async function protectedUnlock() {
+  const protectedContext = await chromium.launchPersistentContext(profileDir, browserOptions);
+  try {
+    await protectedContext.setOffline(true);
+    const pinPage = await protectedContext.newPage();
+    await pinPage.goto(`${origin}/pin`);
+    await pinPage.getByLabel('New PIN (at least 6 digits)').fill(PIN);
+    await pinPage.getByLabel('The same PIN again').fill(PIN);
+    const sealStart = performance.now();
+    await pinPage.getByRole('button', { name: 'Save PIN' }).click();
+    await pinPage.waitForURL((url) => !url.pathname.startsWith('/pin'), { timeout: 600_000 });
+    const sealMs = performance.now() - sealStart;
+    await pinPage.close();
+
+    const toToday = [];
+    const toSearch = [];
+    for (let i = 0; i < RUNS; i += 1) {
+      const p = await protectedContext.newPage();
+      await p.goto(`${origin}/today`);
+      await p.getByRole('button', { name: `Unlock as ${USER.name}` }).click();
+      await p.getByLabel(`PIN for ${USER.name}`).fill(PIN);
+      await p.evaluate(() => {
+        document.addEventListener('submit', () => (window.benchUnlockAt = performance.now()), {
+          capture: true,
+          once: true,
+        });
+      });
+      await p.getByRole('button', { name: 'Unlock', exact: true }).click();
+      const at = await p.waitForFunction(
+        () => {
+          const box = document.querySelector('input[type="search"]');
+          const list = document.body.innerText.includes('No visits booked or seen today');
+          return box && !box.disabled && list ? performance.now() : false;
+        },
+        undefined,
+        { polling: 'raf', timeout: 60_000 },
+      );
+      const unlockAt = await p.evaluate(() => window.benchUnlockAt);
+      toToday.push((await at.jsonValue()) - unlockAt);
+      const load = await directoryLoad(p);
+      toSearch.push(load.start + load.ms - unlockAt);
+      await p.close();
+    }
+    console.log(
+      '  Protected tablet (key slot under a 6-digit PIN, every patient sealed), offline:',
+    );
+    console.log(`    setting the PIN, sealing every patient in place: ${fmt(sealMs)}`);
+    console.log(
+      `    Unlock pressed → interactive Today: median ${fmt(median(toToday))} (aim ≤ 1500 ms: ${median(toToday) <= 1500 ? 'met' : 'NOT met'}; runs: ${toToday.map(fmt).join(', ')})`,
+    );
+    console.log(
+      `    Unlock pressed → patient search loaded (every patient unsealed): median ${fmt(median(toSearch))} (runs: ${toSearch.map(fmt).join(', ')})`,
+    );
+  } finally {
+    await protectedContext.close();
+  }
+}
+
 try {
   if (!args.includes('--no-lighthouse')) {
     apiUnreachable = true;
@@ -585,7 +656,10 @@ try {
       '/today (enrolled tablet, signed in)',
       await lighthouseRun(`${origin}/today`, { profile: profileDir }),
     );
+    apiUnreachable = false;
   }
+  // After Lighthouse, which measures the tablet unprotected.
+  if (!args.includes('--no-unlock')) await protectedUnlock();
 } finally {
   server.close();
 }
