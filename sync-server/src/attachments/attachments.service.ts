@@ -30,7 +30,7 @@ import { assertSiteAccess } from '../auth/scope';
 import { CLOCK, type Clock } from '../common/clock.provider';
 import { APP_CONFIG, type AppConfig } from '../config/app-config';
 import { RecordAccess } from '../letters/record-access';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import type { StoredRecord } from '../records/stored-record';
 import { OBJECT_STORE, type ObjectStore } from './object-store';
 import { parseContentRange, readUploadBody } from './upload-body';

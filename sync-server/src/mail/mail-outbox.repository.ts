@@ -2,7 +2,7 @@
 // transaction with FOR UPDATE SKIP LOCKED and given a lease (status `sending`, lease_until), so no
 // two processes send the same row, and a row whose process died is picked up once its lease ends.
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import { SERVER_DEVICE } from '../records/stored-record';
 
 export type MailStatus = 'queued' | 'sending' | 'sent' | 'failed';

@@ -18,7 +18,7 @@ import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
 import { LetterSourceService } from '../letters/letter-source.service';
 import { letterFileName } from '../letters/letters.service';
 import { RecordAccess } from '../letters/record-access';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import {
   claimDueMail,
   enqueueMail,

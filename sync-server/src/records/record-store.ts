@@ -5,14 +5,14 @@
 // hundreds. Writes of the server's own field changes go through ServerWriter (server-writer.ts).
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Injectable } from '@nestjs/common';
-import type { CollectionName, JsonValue } from '@fuselight/shared';
+import type { CollectionName } from '@fuselight/shared';
 import { encodeRecordRows, type RecordWrite } from './record-row.codec';
 import {
   BEGIN_VERSIONED_WRITE_SQL,
   SAFE_VERSION_BOUND_SQL,
   VersionAllocator,
 } from './record-version';
-import { jsonParam, sqlRows } from './sql';
+import { jsonParam, sqlRows } from '../database/sql';
 import {
   RECORD_COLUMNS,
   RECORD_COLUMNS_R,
@@ -48,17 +48,6 @@ export interface PullHead {
   deviceGeneration: number | null;
   generation: number;
   restoredThrough: number | null;
-}
-
-/** How a supervisor's resolution closes a conflict. */
-export interface ConflictResolution {
-  conflictId: string;
-  at: Date;
-  by: string;
-  device: string;
-  value: JsonValue;
-  version: number;
-  note: string | null;
 }
 
 /**
@@ -409,24 +398,5 @@ export class RecordStore {
       [cutoff.toISOString(), now.toISOString()],
     );
     return { removed: Number(row?.removed ?? 0), horizonVersion: Number(row?.horizon ?? 0) };
-  }
-
-  /** Closes a conflict with the value a supervisor chose (written by ServerWriter first). */
-  async markResolved(em: EntityManager, resolution: ConflictResolution): Promise<void> {
-    await sqlRows(
-      em,
-      `update "sync_conflict" set "status" = 'resolved', "resolved_at" = ?::timestamptz, "resolved_by" = ?::uuid,
-              "resolved_device" = ?, "resolved_value" = ?::jsonb, "resolution_version" = ?, "note" = ?
-        where "id" = ?`,
-      [
-        resolution.at.toISOString(),
-        resolution.by,
-        resolution.device,
-        JSON.stringify(resolution.value),
-        resolution.version,
-        resolution.note,
-        resolution.conflictId,
-      ],
-    );
   }
 }

@@ -1,7 +1,9 @@
 import { Module } from '@nestjs/common';
 import { RecordStore } from './record-store';
 import { RecordsService } from './records.service';
+import { FieldHistory } from './field-history';
 import { ServerWriter } from './server-writer';
+import { VisitRecords } from './visit-records';
 
 /**
  * Storage of synced records, their conflicts and versions: the only module whose SQL touches
@@ -9,7 +11,7 @@ import { ServerWriter } from './server-writer';
  * RecordStore, and the server writes its own field changes through the ServerWriter.
  */
 @Module({
-  providers: [RecordsService, RecordStore, ServerWriter],
-  exports: [RecordsService, RecordStore, ServerWriter],
+  providers: [FieldHistory, RecordsService, RecordStore, ServerWriter, VisitRecords],
+  exports: [FieldHistory, RecordsService, RecordStore, ServerWriter, VisitRecords],
 })
 export class RecordsModule {}

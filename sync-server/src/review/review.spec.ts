@@ -11,8 +11,8 @@ import {
   type PullPage,
   type PushResponse,
 } from '@fuselight/shared';
-import { sqlRows } from '../records/sql';
-import { AddendumPublisher } from './addendum-publisher.service';
+import { sqlRows } from '../database/sql';
+import { AddendumPublisher } from '../disputes/addendum-publisher.service';
 import {
   bearer,
   createDevice,

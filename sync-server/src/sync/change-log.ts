@@ -8,7 +8,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { PushResult } from '@fuselight/shared';
 import type { AuditService } from '../audit/audit.service';
-import { jsonParam, sqlRows } from '../records/sql';
+import { jsonParam, sqlRows } from '../database/sql';
 import {
   encodeChangeLog,
   type ChangeLogEntry,

@@ -38,7 +38,7 @@ import { parseWith } from '../common/zod-validation.pipe';
 import { ChangeTouch } from '../records/change-notice';
 import { RecordStore, type PullHead } from '../records/record-store';
 import { CURSOR_EPOCH, VersionAllocator } from '../records/record-version';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import { wireStamps } from '../records/stored-record';
 import { firstResults, storeResults, type ChangeLogEntry } from './change-log';
 import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
