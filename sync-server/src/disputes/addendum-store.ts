@@ -89,7 +89,10 @@ export class AddendumStore {
   }
 
   /** The Addenda of a record, or of every record of a visit, oldest first. */
-  of(em: EntityManager, filter: { recordId: string } | { visitId: string }): Promise<AddendumRow[]> {
+  of(
+    em: EntityManager,
+    filter: { recordId: string } | { visitId: string },
+  ): Promise<AddendumRow[]> {
     const [column, id] =
       'recordId' in filter ? ['record_id', filter.recordId] : ['visit_id', filter.visitId];
     return sqlRows<AddendumRow>(

@@ -61,7 +61,9 @@ export class DisputeDeskService {
     return this.em.fork().transactional(
       async (em) => {
         const page = await this.disputes.pageOfOpen(em, query, { siteIds: sites, openedBy });
-        const found = new Map((await this.disputes.byIds(em, page.ids)).map((row) => [row.id, row]));
+        const found = new Map(
+          (await this.disputes.byIds(em, page.ids)).map((row) => [row.id, row]),
+        );
         const items = await this.describe(
           em,
           page.ids

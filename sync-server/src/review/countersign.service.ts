@@ -54,7 +54,10 @@ export class CountersignService {
       em,
       visits.map((v) => v.siteId),
     );
-    const disputes = await this.disputes.openCountsByRecord(em, [...visitIds, ...sections.map((s) => s.id)]);
+    const disputes = await this.disputes.openCountsByRecord(em, [
+      ...visitIds,
+      ...sections.map((s) => s.id),
+    ]);
     const people = visits.flatMap((v) => [str(v.fields.clinicianId), str(v.fields.signedBy)]);
     const names = await NameBook.load(
       em,
@@ -102,7 +105,10 @@ export class CountersignService {
       await this.assertVisitInScope(em, user, visitId);
       // Open disputes anywhere in the visit must be resolved before its content is vouched for.
       const sections = await this.visits.sectionsOf(em, [visitId]);
-      const counts = await this.disputes.openCountsByRecord(em, [visitId, ...sections.map((s) => s.id)]);
+      const counts = await this.disputes.openCountsByRecord(em, [
+        visitId,
+        ...sections.map((s) => s.id),
+      ]);
       const open = [...counts.values()].reduce((a, b) => a + b, 0);
       if (open > 0) {
         throw new ConflictException(

@@ -1,16 +1,7 @@
 // The Review desk's countersigning and record-history routes (its Disputes routes are the
 // disputes module's): supervisors only, each scoped to the supervisor's sites by the
 // services. Controllers are one-liners (docs/conventions.md).
-import {
-  Body,
-  Controller,
-  Get,
-  Header,
-  HttpCode,
-  Inject,
-  Param,
-  Post,
-} from '@nestjs/common';
+import { Body, Controller, Get, Header, HttpCode, Inject, Param, Post } from '@nestjs/common';
 import { ApiOperation, ApiResponse, ApiTags } from '@nestjs/swagger';
 import { ApiSignedIn, ApiZodBody } from '../auth/api-docs';
 import { CurrentUser, Roles } from '../auth/auth.decorators';
