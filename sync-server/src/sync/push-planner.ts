@@ -32,7 +32,7 @@ import {
   type StoredRecord,
   type StoredStamp,
 } from '../records/stored-record';
-import type { ChangeAudit } from './change-log';
+import type { ChangeAudit } from '../records/change-log';
 
 export interface ChangePlan {
   result: AcceptedPushResult;
@@ -42,7 +42,7 @@ export interface ChangePlan {
   joined: { conflictId: string; candidate: StoredCandidate }[];
   /** Conflicts opened by this change, by field. */
   opened: Map<string, string>;
-  /** Its audit event, written with its log row (change-log.ts). */
+  /** Its audit event, written with its log row (records/change-log.ts). */
   audit: ChangeAudit;
 }
 
