@@ -1,8 +1,9 @@
-// The record store: every statement on synced records and their conflicts that the push, pull,
-// conflicts, Review desk, letters and mail paths share. It is a Nest provider of RecordsModule;
-// each method runs on the entity manager it is given, so it joins the caller's transaction. Every
-// batch travels as one JSON parameter so a request of 500 changes is a handful of statements, not
-// hundreds. Writes of the server's own field changes go through ServerWriter (server-writer.ts).
+// The record store: every statement on synced records that the push, pull, disputes, Review
+// desk, letters and mail paths share, and the push's statements on the disputes it opens or
+// joins (the disputes module owns the rest of "sync_conflict", disputes/dispute-store.ts). It is
+// a Nest provider of RecordsModule; each method runs on the entity manager it is given, so it
+// joins the caller's transaction. Every batch travels as one JSON parameter so a request of 500
+// changes is a handful of statements, not hundreds. Writes of the server's own field changes go through ServerWriter (server-writer.ts).
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Injectable } from '@nestjs/common';
 import type { CollectionName } from '@fuselight/shared';
@@ -26,13 +27,13 @@ export type { RecordWrite } from './record-row.codec';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-export interface OpenConflictRow {
+export interface OpenDisputeRow {
   id: string;
   record_id: string;
   field: string;
 }
 
-export interface ConflictInsert {
+export interface DisputeInsert {
   id: string;
   collection: string;
   recordId: string;
@@ -280,12 +281,9 @@ export class RecordStore {
     return found;
   }
 
-  async openConflictsOf(
-    em: EntityManager,
-    recordIds: readonly string[],
-  ): Promise<OpenConflictRow[]> {
+  async openDisputesOf(em: EntityManager, recordIds: readonly string[]): Promise<OpenDisputeRow[]> {
     if (recordIds.length === 0) return [];
-    return sqlRows<OpenConflictRow>(
+    return sqlRows<OpenDisputeRow>(
       em,
       `select "id", "record_id", "field" from "sync_conflict"
         where "status" = 'open' and "record_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
@@ -335,12 +333,12 @@ export class RecordStore {
     );
   }
 
-  async insertConflicts(
+  async insertDisputes(
     em: EntityManager,
-    conflicts: readonly ConflictInsert[],
+    disputes: readonly DisputeInsert[],
     at: Date,
   ): Promise<void> {
-    if (conflicts.length === 0) return;
+    if (disputes.length === 0) return;
     await sqlRows(
       em,
       `insert into "sync_conflict" ("id", "collection", "record_id", "site_id", "field", "status", "opened_at", "candidates")
@@ -349,7 +347,7 @@ export class RecordStore {
       [
         at.toISOString(),
         jsonParam(
-          conflicts.map((c) => ({
+          disputes.map((c) => ({
             id: c.id,
             collection: c.collection,
             record_id: c.recordId,
@@ -362,10 +360,10 @@ export class RecordStore {
     );
   }
 
-  /** Adds candidates to open conflicts (a further edit joins the conflict). */
+  /** Adds candidates to open disputes (a further edit joins the dispute). */
   async appendCandidates(
     em: EntityManager,
-    additions: readonly { conflictId: string; candidates: StoredCandidate[] }[],
+    additions: readonly { disputeId: string; candidates: StoredCandidate[] }[],
   ): Promise<void> {
     if (additions.length === 0) return;
     await sqlRows(
@@ -373,7 +371,7 @@ export class RecordStore {
       `update "sync_conflict" c set "candidates" = c."candidates" || x."candidates"
        from jsonb_to_recordset(?::jsonb) as x("id" uuid, "candidates" jsonb)
       where c."id" = x."id" and c."status" = 'open'`,
-      [jsonParam(additions.map((a) => ({ id: a.conflictId, candidates: a.candidates })))],
+      [jsonParam(additions.map((a) => ({ id: a.disputeId, candidates: a.candidates })))],
     );
   }
 

@@ -119,7 +119,7 @@ export class SyncService {
       });
       const recordIds = PushPlanner.recordIdsOf(toPlan.map((c) => c.raw));
       const records = await this.store.lockForUpdate(em, recordIds);
-      const open = await this.store.openConflictsOf(em, [...records.keys()]);
+      const open = await this.store.openDisputesOf(em, [...records.keys()]);
       lap('lockMs');
 
       const makePlanner = () =>
@@ -177,9 +177,9 @@ export class SyncService {
     touched: ChangeTouch,
   ): Promise<void> {
     const batch = collapsePlans(plans);
-    touched.records(batch.records).disputes(batch.newConflicts.length + batch.joined.length);
+    touched.records(batch.records).disputes(batch.newDisputes.length + batch.joined.length);
     await this.store.upsert(em, batch.records, now);
-    await this.store.insertConflicts(em, batch.newConflicts, now);
+    await this.store.insertDisputes(em, batch.newDisputes, now);
     await this.store.appendCandidates(em, batch.joined);
   }
 
@@ -245,7 +245,7 @@ export class SyncService {
         const more =
           rows.length > limit || (await this.store.heldBack(em, { after, bound, sites }));
         const page = rows.slice(0, limit);
-        const conflicts = await this.store.openConflictsOf(
+        const conflicts = await this.store.openDisputesOf(
           em,
           page.map((r) => r.id),
         );
