@@ -3,7 +3,8 @@
 // joins (the disputes module owns the rest of "sync_conflict", disputes/dispute-store.ts). It is
 // a Nest provider of RecordsModule; each method runs on the entity manager it is given, so it
 // joins the caller's transaction. Every batch travels as one JSON parameter so a request of 500
-// changes is a handful of statements, not hundreds. Writes of the server's own field changes go through ServerWriter (server-writer.ts).
+// changes is a handful of statements, not hundreds. Writes of the server's own field changes go
+// through ServerWriter (server-writer.ts).
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Injectable } from '@nestjs/common';
 import type { CollectionName } from '@fuselight/shared';
