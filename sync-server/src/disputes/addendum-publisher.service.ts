@@ -50,7 +50,8 @@ export class AddendumPublisher implements OnApplicationBootstrap, OnApplicationS
   }
 
   private publishInBackground(): Promise<unknown> {
-    this.running ??= this.publishPending()
+    // Every row left behind, however many: nothing runs again until the next start.
+    this.running ??= this.publishPending(Number.POSITIVE_INFINITY)
       .catch((error: unknown) => this.logger.error(`publishing Addenda failed: ${String(error)}`))
       .finally(() => {
         this.running = null;
@@ -78,7 +79,8 @@ export class AddendumPublisher implements OnApplicationBootstrap, OnApplicationS
 
   /**
    * Publishes every unpublished Addendum (up to `limit`); returns the ids of the records written.
-   * A row that cannot be published (its visit is gone) is logged and left for a later run.
+   * A row that cannot be published (its visit or author is not on the server) is logged and left
+   * for the next start's sweep.
    */
   async publishPending(limit = 100): Promise<string[]> {
     const written: string[] = [];

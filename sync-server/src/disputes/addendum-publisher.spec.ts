@@ -22,6 +22,7 @@ describe('AddendumPublisher recovery sweep', () => {
     publisher.onApplicationBootstrap();
     await publisher.onApplicationShutdown();
     expect(sweep).toHaveBeenCalledTimes(1);
+    expect(sweep).toHaveBeenCalledWith(Number.POSITIVE_INFINITY);
     await vi.advanceTimersByTimeAsync(60 * 60_000);
     expect(sweep).toHaveBeenCalledTimes(1);
     expect(vi.getTimerCount()).toBe(0);
