@@ -52,26 +52,6 @@ export interface PullHead {
   restoredThrough: number | null;
 }
 
-/**
- * The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not. The
- * one read of records by id; RecordStore.byIds and the Review desk's reads use it.
- */
-export async function recordsByIds(
-  em: EntityManager,
-  ids: readonly string[],
-): Promise<Map<string, StoredRecord>> {
-  const found = new Map<string, StoredRecord>();
-  const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
-  if (wanted.length === 0) return found;
-  const rows = await sqlRows<StoredRecordRow>(
-    em,
-    `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
-    [jsonParam(wanted)],
-  );
-  for (const row of rows) found.set(row.id, recordFromRow(row));
-  return found;
-}
-
 @Injectable()
 export class RecordStore {
   /**
@@ -84,9 +64,21 @@ export class RecordStore {
     return VersionAllocator.fromRow(begin);
   }
 
-  /** The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not. */
-  byIds(em: EntityManager, ids: readonly string[]): Promise<Map<string, StoredRecord>> {
-    return recordsByIds(em, ids);
+  /**
+   * The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not: the
+   * one read of records by id.
+   */
+  async byIds(em: EntityManager, ids: readonly string[]): Promise<Map<string, StoredRecord>> {
+    const found = new Map<string, StoredRecord>();
+    const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
+    if (wanted.length === 0) return found;
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
+      [jsonParam(wanted)],
+    );
+    for (const row of rows) found.set(row.id, recordFromRow(row));
+    return found;
   }
 
   async byId(em: EntityManager, id: string): Promise<StoredRecord | null> {
