@@ -9,13 +9,13 @@ import '../theme/base.css';
 import { QueryClient, QueryClientProvider, notifyManager } from '@tanstack/react-query';
 import { lazy, Suspense, useEffect, type ReactNode } from 'react';
 import { BrowserRouter, Route, Routes } from 'react-router-dom';
-import { DamagedValuesNote } from '../components/DamagedValuesNote';
 import { IdentityGate, SignedOutLanding } from '../auth/IdentityGate';
 import { SessionProvider, useAuthState } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
 import { Loading } from './Loading';
 import {
   EnrolScreen,
+  DamagedValuesNote,
   preloadShellScreen,
   SignInScreen,
   StorageWarningBanner,
@@ -96,7 +96,9 @@ export function App() {
           <Suspense fallback={null}>
             <StorageWarningBanner />
           </Suspense>
-          <DamagedValuesNote />
+          <Suspense fallback={null}>
+            <DamagedValuesNote />
+          </Suspense>
           <IdentityGate
             loading={<Loading />}
             erased={(note) => (

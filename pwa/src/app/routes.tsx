@@ -31,3 +31,8 @@ export const StorageWarningBanner = lazy(() =>
     default: m.StorageWarningBanner,
   })),
 );
+// The note of values that failed authentication: it can only have something to say once the
+// records have been read, after the first screen.
+export const DamagedValuesNote = lazy(() =>
+  import('../components/DamagedValuesNote').then((m) => ({ default: m.DamagedValuesNote })),
+);
