@@ -2,12 +2,13 @@
 // (pwa/src/sync) has no outbox-count API yet; when it exposes one, session-store.ts should take
 // that instead and this file can go.
 
+import { databaseMayExist } from '../data/database-exists';
+
 export type OutboxCounter = (authorId?: string) => Promise<number>;
 
 export const countOutboxEntries: OutboxCounter = async (authorId) => {
-  const names = await indexedDbNames();
   // Do not create the records database just to count it.
-  if (names !== null && !names.includes('fuselight')) return 0;
+  if (!(await databaseMayExist('fuselight'))) return 0;
   // Loaded here, not up front: sign-in does not need the records database's code.
   const { FuselightDb } = await import('../data/db');
   const db = new FuselightDb();
@@ -19,9 +20,3 @@ export const countOutboxEntries: OutboxCounter = async (authorId) => {
     db.close();
   }
 };
-
-async function indexedDbNames(): Promise<string[] | null> {
-  if (typeof indexedDB === 'undefined' || typeof indexedDB.databases !== 'function') return null;
-  const list = await indexedDB.databases();
-  return list.map((d) => d.name ?? '');
-}

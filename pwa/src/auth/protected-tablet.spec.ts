@@ -17,6 +17,7 @@ import {
   fakeClinicServer,
   type FakeClinicServer,
 } from './fake-clinic-server.fixture';
+import { oldestOutboxCreatedAt } from '../storage/useOldestUnsyncedAt';
 import { IdentityApi } from './identity-api';
 import { SessionStore } from './session-store';
 import { eraseAllDatabases } from './tablet-erasure';
@@ -113,16 +114,35 @@ describe('a protected tablet', () => {
     const { store, server, make } = setUp();
     await signedInWithPin(store, server);
     await records.create('patient', patientFields(), ctx(AMARA.id));
-    // A reload: a new page has an empty vault and loads the session again.
-    tabletVault.lock();
+    // A reload: a new page has an empty vault (not even marked protected) and loads the
+    // session again; the key slots in the records database mark it protected.
+    tabletVault.reset();
+    expect(tabletVault.isProtected).toBe(false);
     getDefaultDb().close({ disableAutoOpen: false });
     const reloaded = make();
     await reloaded.load();
+    expect(tabletVault.isProtected).toBe(true);
     expect(reloaded.getSnapshot().activeUser).toBeNull();
     expect(reloaded.getSnapshot().people[0]).toMatchObject({ canUnlockWithPin: true });
     await expect(records.list('patient')).rejects.toBeInstanceOf(TabletLockedError);
     expect(await reloaded.unlock(AMARA.id, '482913')).toEqual({ ok: true });
     expect((await records.list('patient')).map((p) => p.fields.familyName)).toEqual(['Okafor']);
+  });
+
+  it('opens a fresh tablet’s first screen without creating the records database', async () => {
+    const { store, server } = setUp();
+    const names = async () => (await indexedDB.databases()).map((database) => database.name);
+    await store.load();
+    expect(await oldestOutboxCreatedAt(getDefaultDb())).toBeNull();
+    expect(store.getSnapshot().loaded).toBe(true);
+    expect(tabletVault.isProtected).toBe(false);
+    expect(await names()).not.toContain('fuselight');
+    // Signing in and setting a PIN makes it, with the slot, as before.
+    await store.enrol(server.enrolmentCode);
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    await store.setPin('482913');
+    expect(await names()).toContain('fuselight');
+    expect(await getDefaultDb().keySlots.count()).toBeGreaterThan(0);
   });
 
   it('locks when idle: the key and the patient directory leave memory, and the PIN unlocks again', async () => {

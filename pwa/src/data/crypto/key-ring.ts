@@ -6,6 +6,7 @@
 // docs/threat-model.md says what this protects and what it does not.
 import type Dexie from 'dexie';
 import type { FuselightDb } from '../db';
+import { databaseMayExist } from '../database-exists';
 import type { DataKeyVault } from './data-key-vault';
 import { HardwareShareError, noHardwareShare, type HardwareShare } from './hardware-share';
 import {
@@ -89,7 +90,10 @@ export class KeyRing {
 
   /** Reads whether slots exist: a tablet with slots is protected and starts locked. */
   async load(): Promise<void> {
-    const count = await this.options.db().keySlots.count();
+    const db = this.options.db();
+    // A tablet without the records database has no slot: do not create it to count none.
+    if (!db.isOpen() && !(await databaseMayExist(db.name))) return;
+    const count = await db.keySlots.count();
     if (count > 0) this.options.vault.markProtected();
   }
 
