@@ -125,18 +125,61 @@ export function MeasureDeck({
   const groups = [...new Set(cells.map((c) => c.group ?? ''))];
   const shownValue = (cell: DeckCell) =>
     cell.value === null ? '—' : describeReading(words(cell), cell.unit, cell.value);
+  // Touch acts on a reading at once: its own step buttons change it (and make it the current
+  // reading for the keys), with no tap first to choose it.
+  const stepCell = (cell: DeckCell, delta: number) => {
+    const base =
+      cell.value ?? (carry?.field === cell.field ? carry.value : null) ?? cell.start ?? null;
+    const sign: 1 | -1 =
+      base !== null && base !== 0
+        ? base > 0
+          ? 1
+          : -1
+        : (cell.defaultSign ?? (cell.max <= 0 ? -1 : 1));
+    const limit = sign > 0 ? cell.max : -cell.min;
+    const magnitude = Math.min(
+      limit,
+      Math.max(0, Math.round((Math.abs(base ?? 0) + delta) * 2) / 2),
+    );
+    if (cell.field !== selected.field) select(cell);
+    else setCarry(null);
+    onChange(cell.field, sign * magnitude);
+  };
+  const unitSymbol = (cell: DeckCell) => (cell.unit === 'pd' ? 'Δ' : '°');
   const cellButton = (cell: DeckCell) => (
-    <button
+    <div
       key={cell.field}
-      type="button"
-      className="fl-touch fl-deck__cell"
-      aria-pressed={cell.field === selected.field}
-      aria-label={`${cell.label}: ${cell.value === null ? 'not recorded' : shownValue(cell)}`}
-      onClick={() => select(cell)}
+      className="fl-deck__cell-wrap"
+      data-current={cell.field === selected.field || undefined}
     >
-      <span className="fl-deck__cell-label">{cell.short ?? cell.label}</span>
-      <span className="fl-deck__cell-value">{shownValue(cell)}</span>
-    </button>
+      <button
+        type="button"
+        className="fl-touch fl-deck__step"
+        aria-label={`−1${unitSymbol(cell)} less, ${cell.label}`}
+        disabled={(cell.value ?? 0) === 0 && cell.start == null}
+        onClick={() => stepCell(cell, -1)}
+      >
+        −
+      </button>
+      <button
+        type="button"
+        className="fl-touch fl-deck__cell"
+        aria-pressed={cell.field === selected.field}
+        aria-label={`${cell.label}: ${cell.value === null ? 'not recorded' : shownValue(cell)}`}
+        onClick={() => select(cell)}
+      >
+        <span className="fl-deck__cell-label">{cell.short ?? cell.label}</span>
+        <span className="fl-deck__cell-value">{shownValue(cell)}</span>
+      </button>
+      <button
+        type="button"
+        className="fl-touch fl-deck__step"
+        aria-label={`+1${unitSymbol(cell)} more, ${cell.label}`}
+        onClick={() => stepCell(cell, 1)}
+      >
+        +
+      </button>
+    </div>
   );
 
   return (
