@@ -448,7 +448,21 @@ describe('the Bench by keys alone', () => {
     const step = (label: string) => page.getByRole('button', { name: label, exact: true });
     const reading = (label: string) =>
       page.getByRole('button', { name: new RegExp(`^${label}: `) });
-    const next = () => tap(page.getByRole('button', { name: /^Next: / }));
+    // "Next" names the step it opens; waiting for that name to change keeps a tap from landing
+    // on a step that is still being drawn (a retried tap is counted as a tap).
+    const next = async () => {
+      const button = page.getByRole('button', { name: /^Next: / });
+      const before = await button.getAttribute('aria-label').catch(() => null);
+      const label = before ?? (await button.textContent());
+      await tap(button);
+      const moved = async () =>
+        page
+          .getByRole('button', { name: label ?? '', exact: true })
+          .waitFor({ state: 'detached', timeout: 5_000 })
+          .then(() => true)
+          .catch(() => false);
+      if (label && !(await moved())) await tap(button);
+    };
 
     // Setup: the field tapped, 58 and Enter on the on-screen keyboard count as taps.
     await tap(page.getByLabel('Interpupillary distance (mm)'));

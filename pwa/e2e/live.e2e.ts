@@ -16,6 +16,7 @@ import {
   serviceWorkerReady,
   signInAdmin,
 } from './support/tablet-flows';
+import { recorded, syncIndicator, typeAngle } from './support/visit-flows';
 
 const run = runTag();
 const site = newSite(`Quay Road Clinic ${run}`);
@@ -30,13 +31,6 @@ const ada = person('Ada Pryce', 'orthoptist');
 const bram = person('Bram Keel', 'orthoptist');
 const patient = { given: 'Nell', family: 'Corran', dob: '2016-08-21', number: `QR-${run}` };
 
-async function syncIndicator(page: Page) {
-  await page.locator('ion-tab-button[tab="outbox"]').click();
-  const indicator = page.locator('section.fl-sync-indicator').first();
-  await indicator.waitFor();
-  return indicator;
-}
-
 /** On the Outbox, presses "Sync now" and waits for an empty Outbox. */
 async function syncNow(page: Page) {
   const indicator = await syncIndicator(page);
@@ -44,20 +38,6 @@ async function syncNow(page: Page) {
   await indicator.getByRole('status').getByText('Outbox empty').waitFor({ timeout: 30_000 });
   await indicator.getByRole('button', { name: 'Sync now' }).waitFor({ timeout: 30_000 });
 }
-
-async function typeAngle(page: Page, label: string, text: string) {
-  const amblyoscope = await openSection(page, 'section-amblyoscope');
-  const box = amblyoscope.getByRole('textbox', { name: `Type ${label}`, exact: true });
-  await box.fill(text);
-  await box.press('Enter');
-  await amblyoscope.getByText('Saved on this tablet').waitFor();
-}
-
-const recorded = (page: Page, label: string) =>
-  page
-    .locator('#section-amblyoscope dl > div')
-    .filter({ has: page.locator('dt', { hasText: label }) })
-    .locator('dd');
 
 describe('live changes between tablets and the Review desk', () => {
   let fleet: BrowserContext;

@@ -16,6 +16,7 @@ import {
   serviceWorkerReady,
   signInAdmin,
 } from './support/tablet-flows';
+import { recorded, syncIndicator, typeAngle } from './support/visit-flows';
 
 const run = runTag();
 const site = newSite(`Harbour Street Clinic ${run}`);
@@ -30,14 +31,6 @@ const ada = person('Ada Quill', 'orthoptist');
 const bram = person('Bram Osei', 'orthoptist');
 const patient = { given: 'Mira', family: 'Tenby', dob: '2017-03-14', number: `HS-${run}` };
 
-/** Opens the Outbox tab and returns its sync indicator (the line and its "Sync now"). */
-async function syncIndicator(page: Page) {
-  await page.locator('ion-tab-button[tab="outbox"]').click();
-  const indicator = page.locator('section.fl-sync-indicator').first();
-  await indicator.waitFor();
-  return indicator;
-}
-
 /** On the Outbox, presses "Sync now" (once it can be pressed) and waits for an empty Outbox. */
 async function syncNow(page: Page) {
   const indicator = await syncIndicator(page);
@@ -46,22 +39,6 @@ async function syncNow(page: Page) {
   await indicator.getByRole('button', { name: 'Sync now' }).waitFor({ timeout: 30_000 });
   expect(await indicator.getByRole('alert').count()).toBe(0);
 }
-
-/** Types an angle into the Visit's Amblyoscope panel and waits until it is saved here. */
-async function typeAngle(page: Page, label: string, text: string) {
-  const amblyoscope = await openSection(page, 'section-amblyoscope');
-  const box = amblyoscope.getByRole('textbox', { name: `Type ${label}`, exact: true });
-  await box.fill(text);
-  await box.press('Enter');
-  await amblyoscope.getByText('Saved on this tablet').waitFor();
-}
-
-/** The value the Visit's Amblyoscope summary shows for a recorded field. */
-const recorded = (page: Page, label: string) =>
-  page
-    .locator('#section-amblyoscope dl > div')
-    .filter({ has: page.locator('dt', { hasText: label }) })
-    .locator('dd');
 
 /**
  * Opens the Visit on a tablet and waits until `shows` holds there, syncing and opening it again
