@@ -48,6 +48,7 @@ export function MeasureDeck({
   cells,
   onChange,
   children,
+  aside,
 }: {
   /** What the list of readings is, for screen readers ("Scotoma readings"). */
   title: string;
@@ -55,6 +56,11 @@ export function MeasureDeck({
   onChange: (field: string, value: number | null) => void;
   /** Shown under the stepper (live summaries, results). */
   children?: ReactNode;
+  /**
+   * Shown beside the stepper in its own place (under the list of readings, or a column of its
+   * own), for a result too large to sit under the stepper on one screen.
+   */
+  aside?: ReactNode;
 }) {
   const [selectedField, setSelectedField] = useState(cells[0]?.field ?? '');
   const [carry, setCarry] = useState<{ field: string; value: number } | null>(null);
@@ -240,6 +246,7 @@ export function MeasureDeck({
         ) : null}
         {children}
       </div>
+      {aside ? <div className="fl-deck__aside">{aside}</div> : null}
     </div>
   );
 }
