@@ -137,11 +137,24 @@ export function FusionalRangesStep({ visitId }: { visitId: string }) {
         onChange={(field, value) => saveReading(field as RangeField, value)}
         aside={<RangesResult interpretation={interpretation} tableName={tableName} />}
       >
+        {/* Notes on the result sit under the stepper, where the screen has room for them. */}
         {proximal ? (
           <p className="fl-bench-warning" role="note" data-testid="proximal-convergence-note">
             {proximal.message} Findings on the amblyoscope are distance findings.
           </p>
         ) : null}
+        {interpretation?.ok && interpretation.value.startNote ? (
+          <p className="fl-bench-warning">{interpretation.value.startNote}</p>
+        ) : null}
+        {interpretation?.ok
+          ? interpretation.value.norms.flags
+              .filter((flag) => flag.kind === 'recovery far from break')
+              .map((flag) => (
+                <p key={`${flag.kind}-${flag.direction}`} className="fl-bench-warning">
+                  {flag.message}
+                </p>
+              ))
+          : null}
       </MeasureDeck>
     </StepFrame>
   );
@@ -188,24 +201,24 @@ function RangesResult({
       </>
     );
   } else {
-    const { norms, startNote } = interpretation.value;
+    const { norms } = interpretation.value;
     const directions = [...new Set(norms.comparisons.map((c) => c.measurement.direction))];
     const at = (direction: FusionalDirection, point: 'break' | 'recovery') =>
       norms.comparisons.find(
         (c) => c.measurement.direction === direction && c.measurement.point === point,
       );
-    const cell = (c: NormComparison | undefined) =>
+    // A total (vertical, cyclo) has a break only; any other direction may lack its recovery.
+    const cell = (c: NormComparison | undefined, total: boolean) =>
       c ? (
         <td className={c.standing === 'below' ? 'fl-bench-ranges__below' : undefined}>
           {standingOf(c)}
         </td>
       ) : (
-        <td className="fl-muted">not recorded</td>
+        <td className="fl-muted">{total ? '—' : 'not recorded'}</td>
       );
     const sources = [...new Set(norms.comparisons.flatMap((c) => (c.row ? [c.row.citation] : [])))];
     body = (
       <>
-        {startNote ? <p className="fl-bench-warning">{startNote}</p> : null}
         <table className="fl-bench-ranges__table">
           <thead>
             <tr>
@@ -218,8 +231,8 @@ function RangesResult({
             {directions.map((direction) => (
               <tr key={direction}>
                 <th scope="row">{direction}</th>
-                {cell(at(direction, 'break'))}
-                {cell(at(direction, 'recovery'))}
+                {cell(at(direction, 'break'), direction.endsWith('total'))}
+                {cell(at(direction, 'recovery'), direction.endsWith('total'))}
               </tr>
             ))}
           </tbody>
@@ -227,13 +240,6 @@ function RangesResult({
         {sources.length > 0 ? (
           <p className="fl-muted fl-bench-ranges__sources">Norms: {sources.join('; ')}.</p>
         ) : null}
-        {norms.flags
-          .filter((flag) => flag.kind === 'recovery far from break')
-          .map((flag) => (
-            <p key={`${flag.kind}-${flag.direction}`} className="fl-bench-warning">
-              {flag.message}
-            </p>
-          ))}
         <Caution text={norms.caution} />
       </>
     );
