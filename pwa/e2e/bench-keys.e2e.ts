@@ -29,6 +29,7 @@ const clinician = newPerson('Kofi Brandt', 'orthoptist', {
 });
 const keyed = { given: 'Ines', family: `Tarrow${run}`, dob: '2016-09-02', number: `LK-${run}` };
 const tapped = { given: 'Milo', family: `Tarrow${run}`, dob: '2015-01-21', number: `LT-${run}` };
+const full = { given: 'Aster', family: `Tarrow${run}`, dob: '2014-06-30', number: `LF-${run}` };
 
 /** The findings both paths chart (the same as the Bench's other end-to-end file). */
 const EXPECTED: Record<string, Record<string, unknown>> = {
@@ -193,9 +194,23 @@ async function expectFits(page: Page, step: string) {
           );
         })
         .map((el) => `${el.className || el.tagName} ${el.scrollHeight}>${el.clientHeight}`),
+      // Any box of the step whose content spills out of it (drawn over its neighbours).
+      spilling: [...bench.querySelectorAll<HTMLElement>('.fl-bench-step__body *')]
+        .filter((el) => {
+          if (el.closest('svg, input, textarea, select') || el.clientWidth <= 1) return false;
+          return (
+            el.scrollWidth > el.clientWidth + 1 ||
+            (getComputedStyle(el).overflowY === 'visible' && el.scrollHeight > el.clientHeight + 1)
+          );
+        })
+        .map(
+          (el) =>
+            `${el.className || el.tagName} ${el.scrollWidth}×${el.scrollHeight} in ${el.clientWidth}×${el.clientHeight}`,
+        ),
     };
   });
   expect.soft(size.inner, `${step}: inner scroll containers`).toEqual([]);
+  expect.soft(size.spilling, `${step}: content spilling out of its box`).toEqual([]);
   // Soft: one run reports every step that does not fit.
   expect
     .soft(`${step}: ${size.height}px tall in ${size.visibleHeight}px (${size.parts})`)
@@ -546,5 +561,63 @@ describe('the Bench by keys alone', () => {
       ].join('\n'),
     );
     expect(taps).toBeGreaterThan(0);
+  }, 240_000);
+
+  it('fits the fusional ranges step on one screen with every range recorded, caution in view', async () => {
+    const visitId = await startVisit(page, full);
+    await gotoOnTablet(page, `${baseUrl()}/bench/${visitId}?step=fusional-ranges`);
+    await heading(page, 'Fusional ranges');
+    // No subjective angle recorded: the amplitudes are read from 0° and a note says so.
+    const readings: Array<[string, string]> = [
+      ['Divergence break', '-6'],
+      ['Divergence recovery', '-4'],
+      ['Convergence break', '28'],
+      ['Convergence recovery', '20'],
+      ['Right-up vertical break', '3'],
+      ['Right-up vertical recovery', '1'],
+      ['Left-up vertical break', '-3'],
+      ['Left-up vertical recovery', '-1'],
+      ['Incyclo break', '-8'],
+      ['Incyclo recovery', '-5'],
+      ['Excyclo break', '8'],
+      ['Excyclo recovery', '5'],
+    ];
+    for (const [label, text] of readings) {
+      await page.getByRole('button', { name: new RegExp(`^${label}: `) }).tap();
+      const box = page.getByRole('textbox', { name: `Type ${label}`, exact: true });
+      await box.fill(text);
+      await box.press('Enter');
+    }
+    const result = page.getByTestId('ranges-result');
+    await result.getByRole('rowheader', { name: 'cyclo total' }).waitFor();
+    await savedHere(page);
+    expect(
+      await result.getByRole('row').evaluateAll((rows) => rows.map((row) => row.textContent)),
+    ).toEqual([
+      'Range (distance)BreakRecovery',
+      'divergence6.0° · within 4–6° (memory)4.0° · no norm',
+      'convergence28.0° · within 25–30° (teaching source)20.0° · no norm',
+      'right up3.0Δ · within 2–4Δ (memory)1.0Δ · no norm',
+      'left up3.0Δ · within 2–4Δ (memory)1.0Δ · no norm',
+      'incyclo8.0° · no norm5.0° · no norm',
+      'excyclo8.0° · no norm5.0° · no norm',
+      'vertical total6.0Δ · no norm—',
+      'cyclo total16.0° · within 15–25° (memory)—',
+    ]);
+    await page
+      .getByText(/^No subjective angle is recorded, so these amplitudes are read from 0°/)
+      .waitFor();
+    await screenshot(page, 'bench-keys-fusional-ranges-every-range');
+    await expectFits(page, 'fusional ranges, every range');
+    // The caution is on screen in full, not cut off at the foot of the panel.
+    const caution = await result.getByRole('note').boundingBox();
+    const panel = await result.boundingBox();
+    if (!caution || !panel) throw new Error('The ranges result or its caution is not drawn');
+    expect(await result.getByRole('note').textContent()).toMatch(
+      /supports and does not replace clinical judgement/,
+    );
+    expect(caution.y + caution.height).toBeLessThanOrEqual(panel.y + panel.height);
+    expect(panel.y + panel.height).toBeLessThanOrEqual(800);
+    await axeStep(page, 'fusional ranges, every range');
   }, 240_000);
 });
