@@ -61,7 +61,7 @@ export default defineConfig({
       },
       output: {
         // The letter PDF engine loads only when a letter is drawn; its two parts are chunks of
-        // their own (pdf-lib with its deflate, fontkit), as is React, so that no chunk is over the limit below.
+        // their own (pdf-lib with its deflate, fontkit, fontkit's parts), as is React, so that no chunk is over the limit below.
         codeSplitting: {
           groups: [
             // What every screen runs on, in a chunk of its own that stays cached across updates
@@ -74,7 +74,12 @@ export default defineConfig({
             // The tablet's IndexedDB and the schemas' validation, read from the first screen on.
             { name: 'dexie', test: /node_modules[\\/]dexie[\\/]/ },
             { name: 'zod', test: /node_modules[\\/]zod[\\/]/ },
-            { name: 'letter-fontkit', test: /node_modules[\\/]@pdf-lib[\\/]fontkit[\\/]/ },
+            { name: 'letter-fontkit', test: /node_modules[\\/]fontkit[\\/]/ },
+            // fontkit's own packages: WOFF2's brotli, Unicode tables, binary structures.
+            {
+              name: 'letter-fontkit-parts',
+              test: /node_modules[\\/](brotli|unicode-properties|unicode-trie|restructure|dfa|tiny-inflate|clone|fast-deep-equal|base64-js|@swc[\\/]helpers)[\\/]/,
+            },
             {
               name: 'letter-pdf',
               test: /node_modules[\\/](pdf-lib|pako|@pdf-lib[\\/](upng|standard-fonts)|tslib)[\\/]/,
@@ -83,6 +88,9 @@ export default defineConfig({
         },
       },
     },
+    // Fonts stay files of their own (precached, fetched only for the glyphs a page shows):
+    // inlined in the CSS, every font subset would weigh on the first screen's stylesheet.
+    assetsInlineLimit: (file: string) => (/\.(woff2?|ttf)$/.test(file) ? false : undefined),
     sourcemap: true,
     // No chunk over 500 kB minified (bench:bundle prints the largest).
     chunkSizeWarningLimit: 500,

@@ -9,14 +9,25 @@
 //     its own results in the DOM, as a mutation observer sees the commit; and to the next
 //     animation frame, which paints them), beside a bare Dexie indexed prefix query over the same
 //     patients' terms (a database of its own, since the app keeps no search index) followed by a
-//     bulkGet of their records from the app's database, measured in the same run.
+//     bulkGet of their records from the app's database, measured in the same run;
+//   - layout shifts while Today fills in, with what moved;
+//   - Lighthouse on /signin and on Today (see printLighthouse);
+//   - the same tablet protected: setting a PIN seals every patient in place, then each run
+//     reloads it locked and times Unlock → an interactive Today, and → the patient search loaded.
 // The tablet's session and the patients are written straight into IndexedDB with Dexie (its
 // UMD build injected into the page), in the shapes the app's own stores use.
-//   node scripts/bench-ui.mjs [--no-build] [--no-lighthouse] [--patients 20000] [--runs 7]
+//   node scripts/bench-ui.mjs [--no-build] [--no-lighthouse] [--no-unlock] [--patients 20000] [--runs 7]
 //                             [--searches 15]
 /* global window, document, HTMLInputElement, MutationObserver, requestAnimationFrame -- code run inside the page */
 import { spawn, spawnSync } from 'node:child_process';
-import { createReadStream, existsSync, mkdtempSync, readFileSync, statSync } from 'node:fs';
+import {
+  copyFileSync,
+  createReadStream,
+  existsSync,
+  mkdtempSync,
+  readFileSync,
+  statSync,
+} from 'node:fs';
 import { createServer } from 'node:http';
 import { tmpdir } from 'node:os';
 import { extname, join, normalize, resolve } from 'node:path';
@@ -94,7 +105,7 @@ await new Promise((done) => server.listen(0, '127.0.0.1', done));
 const origin = `http://127.0.0.1:${server.address().port}`;
 
 const profileDir = mkdtempSync(join(tmpdir(), 'fl-bench-ui-'));
-const context = await chromium.launchPersistentContext(profileDir, {
+const browserOptions = {
   executablePath: chromiumPath(),
   headless: true,
   viewport: { width: 1280, height: 800 },
@@ -108,7 +119,8 @@ const context = await chromium.launchPersistentContext(profileDir, {
     '--disable-component-update',
     '--disable-sync',
   ],
-});
+};
+const context = await chromium.launchPersistentContext(profileDir, browserOptions);
 
 const SITE = '0190c6a0-0000-7000-8000-00000000b001';
 const USER = {
@@ -126,6 +138,20 @@ const median = (values) => {
 const fmt = (ms) => `${ms.toFixed(1)} ms`;
 const mb = (bytes) => `${(bytes / 1024 / 1024).toFixed(1)} MB`;
 const DIRECTORY_LOAD = 'fuselight:patient-directory-load';
+
+/** When Today became interactive (page time): the search box enabled and the day's list shown. */
+async function todayInteractiveAt(page, timeout) {
+  const at = await page.waitForFunction(
+    () => {
+      const box = document.querySelector('input[type="search"]');
+      const list = document.body.innerText.includes('No visits booked or seen today');
+      return box && !box.disabled && list ? performance.now() : false;
+    },
+    undefined,
+    { polling: 'raf', timeout },
+  );
+  return at.jsonValue();
+}
 
 /** The User Timing entry of the patient directory's load, once there is one. */
 async function directoryLoad(page) {
@@ -281,19 +307,26 @@ try {
             window.benchLongTasks.push({ start: entry.startTime, ms: entry.duration });
           }
         }).observe({ type: 'longtask', buffered: true });
+        // And layout shifts, with what moved: the screen must not jump while it fills in.
+        window.benchShifts = [];
+        new PerformanceObserver((list) => {
+          for (const entry of list.getEntries()) {
+            if (entry.hadRecentInput) continue;
+            const moved = (entry.sources ?? []).map((source) => {
+              const node = source.node;
+              if (!node || node.nodeType !== 1) return '?';
+              const classes =
+                node.className && typeof node.className === 'string' ? node.className : '';
+              return `${node.tagName.toLowerCase()}${classes ? '.' + classes.trim().split(/\s+/).slice(0, 2).join('.') : ''}`;
+            });
+            window.benchShifts.push({ at: entry.startTime, value: entry.value, moved });
+          }
+        }).observe({ type: 'layout-shift', buffered: true });
       });
     }
     await p.goto(`${origin}/today`);
-    const at = await p.waitForFunction(
-      () => {
-        const box = document.querySelector('input[type="search"]');
-        const list = document.body.innerText.includes('No visits booked or seen today');
-        return box && !box.disabled && list ? performance.now() : false;
-      },
-      undefined,
-      { polling: 'raf', timeout: 30_000 },
-    );
-    starts.push(await at.jsonValue());
+    const at = await todayInteractiveAt(p, 30_000);
+    starts.push(at);
     if (i < RUNS - 1) await p.close();
     else {
       // 4. The patient directory loads in idle time once Today is up: its time, the longest
@@ -307,6 +340,7 @@ try {
         { start: load.start, end: load.start + load.ms },
       );
       const fullHeap = await heapAfterGc(p);
+      const shifts = await p.evaluate(() => window.benchShifts);
 
       // 5. Search latency: type a query, time until its results are listed; beside it the bare
       //    Dexie query for the same text, run in the same page right before or after it.
@@ -445,6 +479,20 @@ try {
       console.log(
         `  JS heap after GC: ${mb(fullHeap)} holding ${load.patients} patients, ${mb(emptyHeap)} with ${emptyLoad.patients} (the directory and its records: ≈ ${mb(fullHeap - emptyHeap)})`,
       );
+      const shiftTotal = shifts.reduce((sum, shift) => sum + shift.value, 0);
+      console.log(
+        `  layout shift during cold start and the directory's load: ${shiftTotal.toFixed(3)}` +
+          (shifts.length > 0
+            ? ` (${shifts
+                .sort((a, b) => b.value - a.value)
+                .slice(0, 3)
+                .map(
+                  (shift) =>
+                    `${shift.value.toFixed(3)} at ${shift.at.toFixed(0)} ms moving ${shift.moved.join(', ') || '?'}`,
+                )
+                .join('; ')})`
+            : ''),
+      );
       console.log(
         `  Today search, typed query to results in the DOM:    median ${fmt(median(ui))} (runs: ${ui.map(fmt).join(', ')})`,
       );
@@ -508,6 +556,15 @@ async function lighthouseRun(url, { profile } = {}) {
   if (status !== 0 || !existsSync(out)) {
     throw new Error(`Lighthouse failed on ${url}: ${output.trim().slice(-400)}`);
   }
+  // FUSELIGHT_LIGHTHOUSE_REPORTS=<dir> keeps each full report there, to read its audits.
+  if (process.env.FUSELIGHT_LIGHTHOUSE_REPORTS) {
+    const kept = join(
+      process.env.FUSELIGHT_LIGHTHOUSE_REPORTS,
+      `${new URL(url).pathname.slice(1)}.json`,
+    );
+    copyFileSync(out, kept);
+    console.log(`  (report kept: ${kept})`);
+  }
   return JSON.parse(readFileSync(out, 'utf8'));
 }
 
@@ -531,6 +588,64 @@ function printLighthouse(name, report) {
   if (failing.length > 0) console.log(`    audits not passed: ${failing.join(', ')}`);
 }
 
+const PIN = '604182';
+
+/**
+ * The same tablet protected (docs/threat-model.md): a PIN set on the You screen's PIN page seals
+ * every patient in place; then each run reloads it (a protected tablet opens locked), types the
+ * PIN and presses Unlock, timed from the press to an interactive Today and to the patient
+ * search loaded. Offline, as an outreach tablet would be.
+ */
+async function protectedUnlock() {
+  const protectedContext = await chromium.launchPersistentContext(profileDir, browserOptions);
+  try {
+    await protectedContext.setOffline(true);
+    const pinPage = await protectedContext.newPage();
+    await pinPage.goto(`${origin}/pin`);
+    await pinPage.getByLabel('New PIN (at least 6 digits)').fill(PIN);
+    await pinPage.getByLabel('The same PIN again').fill(PIN);
+    const sealStart = performance.now();
+    await pinPage.getByRole('button', { name: 'Save PIN' }).click();
+    await pinPage.waitForURL((url) => !url.pathname.startsWith('/pin'), { timeout: 600_000 });
+    const sealMs = performance.now() - sealStart;
+    await pinPage.close();
+
+    const toToday = [];
+    const toSearch = [];
+    for (let i = 0; i < RUNS; i += 1) {
+      const p = await protectedContext.newPage();
+      await p.goto(`${origin}/today`);
+      await p.getByRole('button', { name: `Unlock as ${USER.name}` }).click();
+      await p.getByLabel(`PIN for ${USER.name}`).fill(PIN);
+      await p.evaluate(() => {
+        document.addEventListener('submit', () => (window.benchUnlockAt = performance.now()), {
+          capture: true,
+          once: true,
+        });
+      });
+      await p.getByRole('button', { name: 'Unlock', exact: true }).click();
+      const at = await todayInteractiveAt(p, 60_000);
+      const unlockAt = await p.evaluate(() => window.benchUnlockAt);
+      toToday.push(at - unlockAt);
+      const load = await directoryLoad(p);
+      toSearch.push(load.start + load.ms - unlockAt);
+      await p.close();
+    }
+    console.log(
+      '  Protected tablet (key slot under a 6-digit PIN, every patient sealed), offline:',
+    );
+    console.log(`    setting the PIN, sealing every patient in place: ${fmt(sealMs)}`);
+    console.log(
+      `    Unlock pressed → interactive Today: median ${fmt(median(toToday))} (aim ≤ 1500 ms: ${median(toToday) <= 1500 ? 'met' : 'NOT met'}; runs: ${toToday.map(fmt).join(', ')})`,
+    );
+    console.log(
+      `    Unlock pressed → patient search loaded (every patient unsealed): median ${fmt(median(toSearch))} (runs: ${toSearch.map(fmt).join(', ')})`,
+    );
+  } finally {
+    await protectedContext.close();
+  }
+}
+
 try {
   if (!args.includes('--no-lighthouse')) {
     apiUnreachable = true;
@@ -539,7 +654,10 @@ try {
       '/today (enrolled tablet, signed in)',
       await lighthouseRun(`${origin}/today`, { profile: profileDir }),
     );
+    apiUnreachable = false;
   }
+  // After Lighthouse, which measures the tablet unprotected.
+  if (!args.includes('--no-unlock')) await protectedUnlock();
 } finally {
   server.close();
 }

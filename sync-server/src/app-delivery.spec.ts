@@ -28,6 +28,8 @@ beforeAll(async () => {
   writeFileSync(join(dist, 'sw.js'), `self.addEventListener('fetch', () => {});\n`);
   writeFileSync(join(dist, 'assets', 'index-Ab12Cd34.js'), script);
   writeFileSync(join(dist, 'assets', 'tiny-Zz99Yy88.js'), 'export const a = 1;\n');
+  // A hashed asset whose hash happens to end in "sw" (as useStorageWarnings-DY6da3sw.js did).
+  writeFileSync(join(dist, 'assets', 'warnings-DY6da3sw.js'), script);
   t = await createSyncTestApp({ env: { PWA_DIST: dist } });
   await t.app.listen(0, '127.0.0.1');
 });
@@ -85,6 +87,14 @@ describe('delivery of the app', () => {
     const body = res.body;
     expect(body.length).toBeLessThan(script.length / 4);
     expect(brotliDecompressSync(body).toString()).toBe(script);
+  });
+
+  it('keeps a hashed asset cacheable when its name happens to end in sw.js, and the service worker revalidated', async () => {
+    const asset = await raw('/assets/warnings-DY6da3sw.js', 'br');
+    expect(asset.status).toBe(200);
+    expect(asset.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    const worker = await raw('/sw.js', 'br');
+    expect(worker.headers['cache-control']).toBe('no-cache');
   });
 
   it('sends gzip to a browser without brotli, and the file as it is to one that takes neither', async () => {

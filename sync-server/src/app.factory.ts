@@ -114,7 +114,9 @@ function servePwa(app: NestExpressApplication, dist: string): void {
     index: 'index.html',
     setHeaders: (res, path) => {
       // The service worker and the shell must be revalidated so an update is seen at once.
-      if (/(sw\.js|index\.html|manifest\.webmanifest)$/.test(path)) {
+      // Whole file names only: a hashed asset such as useStorageWarnings-DY6da3sw.js ends in
+      // "sw.js" too, and must stay cacheable for a year.
+      if (/(?:^|[\\/])(sw\.js|index\.html|manifest\.webmanifest)$/.test(path)) {
         res.setHeader('Cache-Control', 'no-cache');
       } else if (path.includes(`${join(dist, 'assets')}`)) {
         res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');

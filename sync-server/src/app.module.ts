@@ -13,6 +13,7 @@ import { ZodValidationPipe } from './common/zod-validation.pipe';
 import type { AppConfig } from './config/app-config';
 import { ormOptions } from './database/orm-options';
 import { DevicesModule } from './devices/devices.module';
+import { DisputesModule } from './disputes/disputes.module';
 import { FhirModule } from './fhir/fhir.module';
 import { HealthModule } from './health/health.module';
 import { LettersModule } from './letters/letters.module';
@@ -21,7 +22,6 @@ import { MailModule } from './mail/mail.module';
 import { SeedModule } from './seed/seed.module';
 import { SettingsModule } from './settings/settings.module';
 import { SitesModule } from './sites/sites.module';
-import { ConflictsModule } from './conflicts/conflicts.module';
 import { RecordsModule } from './records/records.module';
 import { ReviewModule } from './review/review.module';
 import { SyncModule } from './sync/sync.module';
@@ -49,7 +49,7 @@ export class AppModule {
         RecordsModule,
         SyncModule,
         LiveModule,
-        ConflictsModule,
+        DisputesModule,
         ReviewModule,
         LettersModule,
         MailModule,

@@ -2,6 +2,7 @@
 // or repeats records cannot hide itself in the comparison: the snapshot a tablet must converge on.
 import pg from 'pg';
 import type { Clinic } from './clinic-server';
+import { pullPages } from './server-view';
 
 export interface SnapshotEntry {
   version: number;
@@ -73,31 +74,19 @@ export async function firstSyncThroughPull(
 ): Promise<Array<{ key: string; version: number }>> {
   const received: Array<{ key: string; version: number }> = [];
   const seen = new Set<string>();
-  let cursor = 0;
-  for (let pages = 0; ; pages += 1) {
-    if (pages > 10_000) throw new Error('the first sync does not end');
-    const response = await fetch(`${clinic.baseUrl}/api/sync/pull?after=${cursor}&limit=${limit}`, {
-      headers: { Authorization: `Bearer ${token}` },
-    });
-    if (response.status !== 200) throw new Error(`pull answered ${response.status}`);
-    const page = (await response.json()) as {
-      reset?: true;
-      records: Array<{ collection: string; id: string; version: number }>;
-      cursor: number;
-      more: boolean;
-    };
-    if (page.reset) throw new Error('a first sync was told to start over');
+  for await (const page of pullPages(clinic, token, { limit, resetIs: 'an error' })) {
     for (const record of page.records) {
       const key = `${record.collection}/${record.id}`;
       if (seen.has(key))
         throw new Error(`${key} came twice in a first sync with pages of ${limit}`);
-      if (record.version <= cursor) {
-        throw new Error(`${key} came with version ${record.version}, not after cursor ${cursor}`);
+      if (record.version <= page.after) {
+        throw new Error(
+          `${key} came with version ${record.version}, not after cursor ${page.after}`,
+        );
       }
       seen.add(key);
       received.push({ key, version: record.version });
     }
-    cursor = page.cursor;
-    if (!page.more) return received;
   }
+  return received;
 }

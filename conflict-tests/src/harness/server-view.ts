@@ -8,23 +8,49 @@ import {
 } from '@fuselight/shared';
 import type { Clinic } from './clinic-server';
 
-export async function pullEverything(clinic: Clinic, token: string): Promise<PulledRecord[]> {
-  const records = new Map<string, PulledRecord>();
+/** One page of a pull, with the cursor it was asked from. */
+export interface PulledPage {
+  after: number;
+  records: PulledRecord[];
+  cursor: number;
+}
+
+/**
+ * Every page of a pull from cursor 0, read through the wire as a tablet reads them (the one pull
+ * loop of the harness). A reset starts over from 0, or is an error when `resetIs` says so.
+ */
+export async function* pullPages(
+  clinic: Clinic,
+  token: string,
+  {
+    limit = 1000,
+    resetIs = 'start over',
+  }: { limit?: number; resetIs?: 'start over' | 'an error' } = {},
+): AsyncGenerator<PulledPage> {
   let cursor = 0;
-  for (;;) {
-    const response = await fetch(`${clinic.baseUrl}/api/sync/pull?after=${cursor}&limit=1000`, {
+  for (let pages = 0; ; pages += 1) {
+    if (pages > 10_000) throw new Error(`a pull with pages of ${limit} does not end`);
+    const response = await fetch(`${clinic.baseUrl}/api/sync/pull?after=${cursor}&limit=${limit}`, {
       headers: { Authorization: `Bearer ${token}` },
     });
     if (response.status !== 200)
       throw new Error(`pull answered ${response.status}: ${await response.text()}`);
     const page = pullResponseSchema.parse(await response.json());
     if ('reset' in page) {
+      if (resetIs === 'an error') throw new Error('a first sync was told to start over');
       cursor = 0;
       continue;
     }
-    for (const record of page.records) records.set(`${record.collection}/${record.id}`, record);
+    yield { after: cursor, records: page.records, cursor: page.cursor };
     cursor = page.cursor;
-    if (!page.more) break;
+    if (!page.more) return;
+  }
+}
+
+export async function pullEverything(clinic: Clinic, token: string): Promise<PulledRecord[]> {
+  const records = new Map<string, PulledRecord>();
+  for await (const page of pullPages(clinic, token)) {
+    for (const record of page.records) records.set(`${record.collection}/${record.id}`, record);
   }
   return [...records.values()];
 }

@@ -5,7 +5,13 @@ import type { TestUser } from '@server/testing/identity-factory';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startClinic, type Clinic } from '../harness/clinic-server';
 import { expectConverged } from '../harness/convergence';
-import { deskToken, listConflicts, resolveConflict, serverSnapshot } from '../harness/server-view';
+import {
+  deskToken,
+  listConflicts,
+  pullEverything,
+  resolveConflict,
+  serverSnapshot,
+} from '../harness/server-view';
 import { SimTablet } from '../harness/sim-tablet';
 import { ChartingRepository } from '@pwa/data/charting/charting-repository';
 
@@ -374,15 +380,8 @@ describe('authorship', () => {
     await a.syncUntilSettled();
     const token = await a.auth.tokenFor(nurse.id);
     const server = await serverSnapshot(clinic, token!);
-    const pulled = await fetch(`${clinic.baseUrl}/api/sync/pull?after=0&limit=1000`, {
-      headers: { Authorization: `Bearer ${token}` },
-    }).then(
-      (r) =>
-        r.json() as Promise<{
-          records: Array<{ id: string; stamps: Record<string, { by: string }> }>;
-        }>,
-    );
-    const byOf = (id: string) => pulled.records.find((r) => r.id === id)?.stamps.familyName?.by;
+    const pulled = await pullEverything(clinic, token!);
+    const byOf = (id: string) => pulled.find((r) => r.id === id)?.stamps.familyName?.by;
     expect(byOf(mine)).toBe(nurse.id);
     expect(byOf(theirs)).toBe(junior.id);
     expect(server[`patient/${theirs}`]?.fields.familyName).toBe('Theirs');

@@ -12,6 +12,17 @@ export const baseUrl = (): string => {
   return url;
 };
 
+/**
+ * The same server under the name `localhost`: WebAuthn refuses an IP address as its relying
+ * party, so a tablet that uses its platform authenticator is opened here (still a secure
+ * context; its storage is apart from the 127.0.0.1 origin's).
+ */
+export const localhostUrl = (): string => {
+  const url = new URL(baseUrl());
+  url.hostname = 'localhost';
+  return url.origin;
+};
+
 export const TABLET_LANDSCAPE = { width: 1280, height: 800 };
 export const TABLET_PORTRAIT = { width: 768, height: 1024 };
 
@@ -59,11 +70,14 @@ export async function launchTabletWithProfile(
  * lasts as long as the DevTools session that made it, so the session is left open with the
  * context (it closes with it).
  */
-export async function grantPersistentStorage(context: BrowserContext): Promise<void> {
+export async function grantPersistentStorage(
+  context: BrowserContext,
+  origin = new URL(baseUrl()).origin,
+): Promise<void> {
   const page = context.pages()[0] ?? (await context.newPage());
   const cdp = await context.newCDPSession(page);
   await cdp.send('Browser.grantPermissions', {
-    origin: new URL(baseUrl()).origin,
+    origin,
     permissions: ['durableStorage'],
   });
 }

@@ -1,55 +1,27 @@
-import './ionic-setup';
-import {
-  IonApp,
-  IonIcon,
-  IonLabel,
-  IonRouterOutlet,
-  IonSpinner,
-  IonTabBar,
-  IonTabButton,
-  IonTabs,
-} from '@ionic/react';
-import { IonReactRouter } from '@ionic/react-router';
+// The app's root. Until someone is signed in (or unlocked with a PIN) it draws the signed-out
+// shell: sign-in, the PIN switcher and enrolment, in plain React without Ionic, so a tablet's
+// first screen loads little. Once someone is signed in, the Ionic app (SignedInApp: tab bar,
+// screens, sync engine) loads in its own chunk; locking the tablet returns to the shell, which
+// sends the person to the PIN switcher and back to the screen that was open.
+import '../theme/fonts';
+import '../theme/variables.css';
+import '../theme/base.css';
 import { QueryClient, QueryClientProvider, notifyManager } from '@tanstack/react-query';
-import {
-  businessOutline,
-  calendarOutline,
-  cloudUploadOutline,
-  peopleOutline,
-  personCircleOutline,
-  shieldCheckmarkOutline,
-  tabletPortraitOutline,
-} from 'ionicons/icons';
-import type { Role } from '@fuselight/shared';
-import { Suspense, type ReactNode } from 'react';
-import { Route, useLocation } from 'react-router-dom';
-import { DamagedValuesNote } from '../components/DamagedValuesNote';
-import { canSee } from '../auth/access';
-import { HomeRedirect, IdentityGate, RequireArea } from '../auth/IdentityGate';
-import { useSession } from '../auth/session-context';
-import { SessionProvider } from '../auth/SessionProvider';
+import { lazy, Suspense, useEffect, type ReactNode } from 'react';
+import { BrowserRouter, Route, Routes } from 'react-router-dom';
+import { IdentityGate, SignedOutLanding } from '../auth/IdentityGate';
+import { SessionProvider, useAuthState } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
+import { Loading } from './Loading';
 import {
-  BenchScreen,
-  ChartScreen,
   EnrolScreen,
-  FleetScreen,
-  OutboxScreen,
-  PeopleScreen,
-  PersonScreen,
-  PinSetupScreen,
-  ReviewDeskScreen,
-  ReviewTabBadge,
+  DamagedValuesNote,
+  preloadShellScreen,
   SignInScreen,
-  SitesScreen,
   StorageWarningBanner,
-  SyncDock,
-  SyncRuntime,
   TabletErasedScreen,
-  TodayScreen,
   UnlockScreen,
   UpdatePrompt,
-  VisitScreen,
 } from './routes';
 
 // Query results reach React in the same task as the IndexedDB reply that produced them. The
@@ -62,127 +34,56 @@ const queryClient = new QueryClient({
   defaultOptions: { queries: { networkMode: 'always', staleTime: 5_000, retry: 1 } },
 });
 
-function Loading() {
-  return (
-    <div
-      role="status"
-      aria-live="polite"
-      style={{ display: 'grid', placeItems: 'center', height: '100%' }}
-    >
-      <IonSpinner name="crescent" />
-      <span className="fl-muted">Loading…</span>
-    </div>
-  );
+const loadSignedInApp = () => import('./SignedInApp');
+const SignedInApp = lazy(loadSignedInApp);
+
+// Whether someone was signed in when this tablet last ran the app (a flag, nothing about who):
+// if so, the signed-in app's code is fetched at once, beside the session's own load, rather
+// than after it. A wrong guess only fetches code the service worker has cached anyway.
+const SIGNED_IN_HINT = 'fuselight:signed-in';
+try {
+  if (globalThis.localStorage?.getItem(SIGNED_IN_HINT) === '1') void loadSignedInApp();
+} catch {
+  // Storage blocked: no head start.
 }
+if (typeof location !== 'undefined') preloadShellScreen(location.pathname);
 
 const screen = (node: ReactNode) => <Suspense fallback={<Loading />}>{node}</Suspense>;
-const clinical = (node: ReactNode) => <RequireArea area="clinical">{screen(node)}</RequireArea>;
-const admin = (node: ReactNode) => <RequireArea area="admin">{screen(node)}</RequireArea>;
 
-function AppTabs() {
-  const role = useSession().user?.role;
-  // The Bench is full screen and carries its own sync indicator.
-  const onBench = useLocation().pathname.startsWith('/bench/');
-  return <AppTabsInner role={role} dock={canSee(role, 'clinical') && !onBench} />;
-}
-
-function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean }) {
+/** Sign-in, PIN unlock and enrolment: all a tablet shows before someone is signed in. */
+function SignedOutShell() {
   return (
-    <IonTabs>
-      <IonRouterOutlet>
-        {/* Sign-in, PIN unlock and enrolment: all a tablet shows before someone is signed in. */}
-        <Route path="/signin" element={screen(<SignInScreen />)} />
-        <Route path="/unlock" element={screen(<UnlockScreen />)} />
-        <Route path="/enrol" element={screen(<EnrolScreen />)} />
-        <Route path="/today" element={clinical(<TodayScreen />)} />
-        <Route path="/chart/:patientId" element={clinical(<ChartScreen />)} />
-        <Route path="/visit/:visitId" element={clinical(<VisitScreen />)} />
-        <Route path="/outbox" element={clinical(<OutboxScreen />)} />
-        <Route path="/bench/:visitId" element={clinical(<BenchScreen />)} />
-        <Route
-          path="/review"
-          element={<RequireArea area="review">{screen(<ReviewDeskScreen />)}</RequireArea>}
-        />
-        <Route path="/fleet" element={admin(<FleetScreen />)} />
-        <Route path="/people" element={admin(<PeopleScreen />)} />
-        <Route path="/sites" element={admin(<SitesScreen />)} />
-        <Route
-          path="/person"
-          element={<RequireArea area="self">{screen(<PersonScreen />)}</RequireArea>}
-        />
-        <Route
-          path="/pin"
-          element={<RequireArea area="self">{screen(<PinSetupScreen />)}</RequireArea>}
-        />
-        <Route path="/" element={<HomeRedirect />} />
-        <Route path="*" element={<HomeRedirect />} />
-      </IonRouterOutlet>
-      {dock ? (
-        <Suspense fallback={<div slot="bottom" className="fl-sync-dock" />}>
-          <SyncDock />
-        </Suspense>
-      ) : null}
-      <IonTabBar
-        slot="bottom"
-        aria-label="Fuselight sections"
-        style={role ? undefined : { display: 'none' }}
-      >
-        {canSee(role, 'clinical') ? (
-          <IonTabButton tab="today" href="/today">
-            <IonIcon icon={calendarOutline} aria-hidden="true" />
-            <IonLabel>Today</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'clinical') ? (
-          <IonTabButton tab="outbox" href="/outbox">
-            <IonIcon icon={cloudUploadOutline} aria-hidden="true" />
-            <IonLabel>Outbox</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'review') ? (
-          <IonTabButton tab="review" href="/review">
-            <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
-            <IonLabel>Review desk</IonLabel>
-            <Suspense fallback={null}>
-              <ReviewTabBadge />
-            </Suspense>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'admin') ? (
-          <IonTabButton tab="fleet" href="/fleet">
-            <IonIcon icon={tabletPortraitOutline} aria-hidden="true" />
-            <IonLabel>Fleet</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'admin') ? (
-          <IonTabButton tab="people" href="/people">
-            <IonIcon icon={peopleOutline} aria-hidden="true" />
-            <IonLabel>People</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'admin') ? (
-          <IonTabButton tab="sites" href="/sites">
-            <IonIcon icon={businessOutline} aria-hidden="true" />
-            <IonLabel>Sites</IonLabel>
-          </IonTabButton>
-        ) : null}
-        <IonTabButton tab="person" href="/person">
-          <IonIcon icon={personCircleOutline} aria-hidden="true" />
-          <IonLabel>You</IonLabel>
-        </IonTabButton>
-      </IonTabBar>
-    </IonTabs>
+    <BrowserRouter>
+      <SignInPrompt />
+      <div className="fl-shell-app">
+        <Routes>
+          <Route path="/signin" element={screen(<SignInScreen />)} />
+          <Route path="/unlock" element={screen(<UnlockScreen />)} />
+          <Route path="/enrol" element={screen(<EnrolScreen />)} />
+          <Route path="*" element={<SignedOutLanding />} />
+        </Routes>
+      </div>
+    </BrowserRouter>
   );
 }
 
-/** The sync engine runs once the tablet is enrolled and someone is signed in. */
-function SignedInSync() {
-  const { user, deviceId } = useSession();
-  if (!user || !deviceId) return null;
+function ShellForPerson() {
+  const signedIn = useAuthState().activeUser !== null;
+  useEffect(() => {
+    try {
+      if (signedIn) localStorage.setItem(SIGNED_IN_HINT, '1');
+      else localStorage.removeItem(SIGNED_IN_HINT);
+    } catch {
+      // Storage blocked: the next start has no head start, nothing else changes.
+    }
+  }, [signedIn]);
+  if (!signedIn) return <SignedOutShell />;
   return (
-    <Suspense fallback={null}>
-      <SyncRuntime />
-    </Suspense>
+    <div className="fl-shell-app">
+      <Suspense fallback={<Loading />}>
+        <SignedInApp />
+      </Suspense>
+    </div>
   );
 }
 
@@ -190,29 +91,27 @@ export function App() {
   return (
     <QueryClientProvider client={queryClient}>
       <SessionProvider>
-        {/* The storage warning sits above the Ionic app in the flow, on every screen. */}
+        {/* The storage warning sits above the app in the flow, on every screen. */}
         <div className="fl-shell">
           <Suspense fallback={null}>
             <StorageWarningBanner />
           </Suspense>
-          <DamagedValuesNote />
-          <div className="fl-shell-app">
-            <IonApp>
-              <IonReactRouter>
-                <IdentityGate
-                  loading={<Loading />}
-                  erased={(note) => screen(<TabletErasedScreen note={note} />)}
-                >
-                  <AppTabs />
-                </IdentityGate>
-                <SignInPrompt />
-                <SignedInSync />
-              </IonReactRouter>
-              <Suspense fallback={null}>
-                <UpdatePrompt />
-              </Suspense>
-            </IonApp>
-          </div>
+          <Suspense fallback={null}>
+            <DamagedValuesNote />
+          </Suspense>
+          <IdentityGate
+            loading={<Loading />}
+            erased={(note) => (
+              <BrowserRouter>
+                <div className="fl-shell-app">{screen(<TabletErasedScreen note={note} />)}</div>
+              </BrowserRouter>
+            )}
+          >
+            <ShellForPerson />
+          </IdentityGate>
+          <Suspense fallback={null}>
+            <UpdatePrompt />
+          </Suspense>
         </div>
       </SessionProvider>
     </QueryClientProvider>

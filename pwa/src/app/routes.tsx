@@ -1,33 +1,26 @@
-// Route table: each screen is its own chunk so the first screen stays lean (bench:bundle).
+// Route table of the signed-out shell: each screen is its own chunk so the first screen stays
+// lean (bench:bundle). The signed-in app's screens are in signed-in-routes.tsx.
 import { lazy } from 'react';
 
-export const TodayScreen = lazy(() => import('../screens/today/TodayScreen'));
-export const ChartScreen = lazy(() => import('../screens/chart/ChartScreen'));
-export const VisitScreen = lazy(() => import('../screens/visit/VisitScreen'));
-export const OutboxScreen = lazy(() => import('../screens/outbox/OutboxScreen'));
-export const ReviewDeskScreen = lazy(() => import('../screens/review/ReviewDeskScreen'));
-export const FleetScreen = lazy(() => import('../screens/fleet/FleetScreen'));
-export const SignInScreen = lazy(() => import('../screens/signin/SignInScreen'));
-export const EnrolScreen = lazy(() => import('../screens/enrol/EnrolScreen'));
-export const TabletErasedScreen = lazy(() => import('../screens/enrol/TabletErasedScreen'));
-export const UnlockScreen = lazy(() => import('../screens/unlock/UnlockScreen'));
-export const PinSetupScreen = lazy(() => import('../screens/unlock/PinSetupScreen'));
-export const PersonScreen = lazy(() => import('../screens/unlock/PersonScreen'));
-export const PeopleScreen = lazy(() => import('../screens/admin/PeopleScreen'));
-export const SitesScreen = lazy(() => import('../screens/admin/SitesScreen'));
-export const BenchScreen = lazy(() => import('../screens/bench/BenchScreen'));
+const loadSignIn = () => import('../screens/signin/SignInScreen');
+const loadEnrol = () => import('../screens/enrol/EnrolScreen');
+const loadUnlock = () => import('../screens/unlock/UnlockScreen');
 
-// Parts of the shell that only a signed-in person on an enrolled tablet sees: the sync engine
-// and its indicator, and the Review desk's count (they bring the records database, the sync
-// engine and the shared schemas, which sign-in does not need).
-export const SyncRuntime = lazy(() =>
-  import('../sync/SyncRuntime').then((m) => ({ default: m.SyncRuntime })),
-);
-export const SyncDock = lazy(() => import('./SyncDock').then((m) => ({ default: m.SyncDock })));
-export const ReviewTabBadge = lazy(() =>
-  import('../screens/review/ReviewTabCount').then((m) => ({ default: m.ReviewTabBadge })),
-);
-// The update prompt (Ionic's toast) registers the service worker once the first screen is up.
+export const SignInScreen = lazy(loadSignIn);
+export const EnrolScreen = lazy(loadEnrol);
+export const TabletErasedScreen = lazy(() => import('../screens/enrol/TabletErasedScreen'));
+export const UnlockScreen = lazy(loadUnlock);
+
+/**
+ * Starts loading the screen of the address the app opens on (sign-in, unlock, enrolment) at
+ * once, beside the session's own load, rather than after it.
+ */
+export function preloadShellScreen(pathname: string): void {
+  const load = { '/signin': loadSignIn, '/unlock': loadUnlock, '/enrol': loadEnrol }[pathname];
+  void load?.();
+}
+
+// The update prompt registers the service worker once the first screen is up.
 export const UpdatePrompt = lazy(() =>
   import('../components/UpdatePrompt').then((m) => ({ default: m.UpdatePrompt })),
 );
@@ -37,4 +30,9 @@ export const StorageWarningBanner = lazy(() =>
   import('../components/StorageWarningBanner').then((m) => ({
     default: m.StorageWarningBanner,
   })),
+);
+// The note of values that failed authentication: it can only have something to say once the
+// records have been read, after the first screen.
+export const DamagedValuesNote = lazy(() =>
+  import('../components/DamagedValuesNote').then((m) => ({ default: m.DamagedValuesNote })),
 );

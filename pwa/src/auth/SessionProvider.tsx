@@ -102,9 +102,10 @@ export function SessionProvider({
     return () => clearInterval(timer);
   }, [store, background, retired]);
 
-  // Heartbeat after each sync, with the Outbox size the sync engine just counted.
+  // Heartbeat after each sync, with the Outbox size the sync engine just counted. The engine
+  // runs only while someone is signed in, so the signed-out shell does not load it.
   useEffect(() => {
-    if (!background) return;
+    if (!background || !someoneActive) return;
     let lastSyncedAt: number | null = null;
     let unsubscribeStatus: (() => void) | null = null;
     let unsubscribeEngine: (() => void) | null = null;
@@ -134,7 +135,7 @@ export function SessionProvider({
       unsubscribeEngine?.();
       unsubscribeStatus?.();
     };
-  }, [store, background]);
+  }, [store, background, someoneActive]);
 
   const session = useMemo<TabletSession>(
     () => ({

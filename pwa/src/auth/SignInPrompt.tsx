@@ -1,8 +1,8 @@
 // The visible ask when the server refused someone's session: their changes stay in the Outbox
 // and are sent as soon as they sign in again.
-import { IonButton } from '@ionic/react';
 import { useNavigate } from 'react-router-dom';
 import { useAuthState } from './SessionProvider';
+import './ui/identity.css';
 
 export function SignInPrompt() {
   const { prompts, erasure } = useAuthState();
@@ -25,12 +25,13 @@ export function SignInPrompt() {
               ? `${prompt.waitingChanges} of their change${prompt.waitingChanges === 1 ? '' : 's'} ${prompt.waitingChanges === 1 ? 'is' : 'are'} kept in the Outbox and will be sent after they sign in.`
               : 'Nothing of theirs is waiting to be sent.'}
           </p>
-          <IonButton
-            style={{ minHeight: 48 }}
+          <button
+            type="button"
+            className="fl-id-button"
             onClick={() => navigate(`/signin?email=${encodeURIComponent(prompt.email)}`)}
           >
             Sign in as {prompt.name}
-          </IonButton>
+          </button>
         </div>
       ))}
     </div>

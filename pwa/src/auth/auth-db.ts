@@ -55,6 +55,11 @@ export interface PinRecord {
   iterations?: number;
   failedAttempts: number;
   setAt: number;
+  /**
+   * When the platform authenticator last did not answer for this person's slot (cancelled, timed
+   * out or its credential gone): their next online sign-in offers to set the PIN again.
+   */
+  hardwareRefusedAt?: number;
 }
 
 /** A site's name as the server last gave it (GET /api/me/sites), kept so it shows offline. */

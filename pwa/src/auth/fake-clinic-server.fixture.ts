@@ -59,6 +59,8 @@ export interface FakeClinicServer {
   deviceState: 'active' | 'retired' | 'revoked';
   /** The clinic setting GET /api/devices/me carries (left out when undefined). */
   unsyncedWarningHours?: number;
+  /** The clinic's rule for tablets without a platform authenticator (left out when undefined). */
+  unlockWithoutHardware?: unknown;
   /** The sites the tablet may hold now (absent: a server from before the field). */
   holdSiteIds?: string[];
   enrolmentCode: string;
@@ -169,6 +171,9 @@ export function fakeClinicServer(now: () => number): FakeClinicServer {
             ...(server.unsyncedWarningHours === undefined
               ? {}
               : { unsyncedWarningHours: server.unsyncedWarningHours }),
+            ...(server.unlockWithoutHardware === undefined
+              ? {}
+              : { unlockWithoutHardware: server.unlockWithoutHardware }),
             ...(server.holdSiteIds ? { holdSiteIds: server.holdSiteIds } : {}),
           });
         case 'GET /api/me/sites': {

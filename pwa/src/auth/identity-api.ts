@@ -16,6 +16,7 @@ import {
   type FleetDevice,
   type KeyProtectionKind,
   type InvitedPerson,
+  type UnlockWithoutHardware,
 } from '@fuselight/shared/admin-views';
 import {
   sessionUserSchema,
@@ -94,6 +95,8 @@ export interface DeviceStatus {
   maxPinAttempts?: number;
   /** The clinic setting: hours unsynced edits may wait before the tablet warns on every screen. */
   unsyncedWarningHours?: number;
+  /** The clinic setting: what a secret must be on a tablet without a platform authenticator. */
+  unlockWithoutHardware?: UnlockWithoutHardware;
 }
 
 export interface NewPerson {
@@ -281,15 +284,4 @@ export class IdentityApi {
   }
 }
 
-/** Epoch ms of a JWT's `exp`, read without verifying (the server verifies); null if unreadable. */
-export function tokenExpiry(token: string): number | null {
-  const payload = token.split('.')[1];
-  if (!payload) return null;
-  try {
-    const json = atob(payload.replace(/-/g, '+').replace(/_/g, '/'));
-    const { exp } = JSON.parse(json) as { exp?: unknown };
-    return typeof exp === 'number' ? exp * 1000 : null;
-  } catch {
-    return null;
-  }
-}
+export { tokenExpiry } from './session/token-expiry';

@@ -1,30 +1,13 @@
-// What a PIN may be (at least 6 digits, or a passphrase), and the PBKDF2-HMAC-SHA-256 hash
-// that PINs set before the tablet was protected were stored as. Such a hash is only verified
+// The PBKDF2-HMAC-SHA-256 hash that PINs set before the tablet was protected were stored as. Such a hash is only verified
 // once more, at the PIN's next unlock, which moves it into an argon2id key slot
 // (pwa/src/data/crypto/key-slots.ts) and deletes the hash. The PIN itself is never stored or
-// logged.
-import { z } from 'zod';
+// logged. What a PIN may be is pin-rule.ts.
+export { PASSPHRASE_MIN_LENGTH, PIN_RULE, isAcceptablePin } from './pin-rule';
 
 /** OWASP's 2021 figure for PBKDF2-HMAC-SHA-256; the brief's floor is 100 000. */
 export const PIN_HASH_ITERATIONS = 310_000;
 const SALT_BYTES = 16;
 const HASH_BITS = 256;
-
-/** The shortest passphrase accepted in place of a PIN. */
-export const PASSPHRASE_MIN_LENGTH = 12;
-
-export const PIN_RULE = `A PIN is at least 6 digits, or a passphrase of at least ${PASSPHRASE_MIN_LENGTH} characters`;
-
-export const pinSchema = z
-  .string({ error: 'Enter a PIN of at least 6 digits' })
-  .refine((value) => /^\d{6,}$/.test(value) || value.trim().length >= PASSPHRASE_MIN_LENGTH, {
-    error: PIN_RULE,
-  });
-
-export const pinSetupSchema = z
-  .object({ pin: pinSchema, confirm: z.string() })
-  .refine((v) => v.pin === v.confirm, { path: ['confirm'], error: 'The two PINs differ' });
-export type PinSetup = z.infer<typeof pinSetupSchema>;
 
 export interface PinHash {
   salt: string;

@@ -13,10 +13,11 @@ import type { LoginRequest, SessionUser } from '@fuselight/shared';
 import { AuthDb, type KnownColleague, type KnownSite } from './auth-db';
 import { getAttachmentDb, SEALED_ATTACHMENT_TABLES } from '../attachments/attachment-db';
 import { tabletVault } from '../data/crypto/data-key-vault';
+import { webAuthnShare, type HardwareShare } from '../data/crypto/hardware-share';
 import { KeyRing } from '../data/crypto/key-ring';
 import { getDefaultDb, SEALED_TABLES } from '../data/db';
-import { applySiteScope } from '../data/site-scope';
-import { IdentityApi, type SignInResponse } from './identity-api';
+import type { IdentityApi, SignInResponse } from './identity-api';
+import { lazyIdentityApi } from './lazy-identity-api';
 import { countOutboxEntries, type OutboxCounter } from './outbox-count';
 import { PinLock } from './session/pin-lock';
 import { ACTIVE_KEY, SessionState } from './session/session-state';
@@ -51,6 +52,8 @@ export interface SessionStoreOptions {
   keyRing?: KeyRing;
   /** Deletes what the tablet holds of sites it no longer serves (default: its own databases). */
   applySiteScope?: SiteScopeApplier;
+  /** The platform authenticator for the default key ring (default: the browser's WebAuthn). */
+  hardware?: HardwareShare;
 }
 
 /** The tablet's own site scope: records and attachment files outside the sites it may hold go. */
@@ -58,6 +61,8 @@ export const tabletSiteScope: SiteScopeApplier = async (holdSiteIds, siteName) =
   const db = getDefaultDb();
   // Locked: nothing sealed can be read; the next contact while someone is unlocked does it.
   if (db.vault.isProtected && !db.vault.unlocked) return;
+  // Loaded at the first contact with the server, not with the first screen.
+  const { applySiteScope } = await import('../data/site-scope');
   await applySiteScope({
     db,
     files: getAttachmentDb(),
@@ -72,8 +77,9 @@ export const tabletSiteScope: SiteScopeApplier = async (holdSiteIds, siteName) =
 };
 
 /** The key ring of this tablet's own databases. */
-export function tabletKeyRing(): KeyRing {
+export function tabletKeyRing(hardware: HardwareShare = webAuthnShare()): KeyRing {
   return new KeyRing({
+    hardware,
     db: getDefaultDb,
     sealed: () => [
       { db: getDefaultDb(), tables: Object.keys(SEALED_TABLES) },
@@ -94,8 +100,8 @@ export class SessionStore {
   private snapshot: AuthSnapshot;
 
   constructor(options: SessionStoreOptions = {}) {
-    this.api = options.api ?? new IdentityApi();
-    this.keyRing = options.keyRing ?? tabletKeyRing();
+    this.api = options.api ?? lazyIdentityApi();
+    this.keyRing = options.keyRing ?? tabletKeyRing(options.hardware);
     const now = options.now ?? (() => Date.now());
     this.state = new SessionState(
       options.db ?? (() => new AuthDb()),
@@ -236,7 +242,12 @@ export class SessionStore {
     state.waiting.delete(person.userId);
     state.activeUserId = person.userId;
     await this.openKeyAfterSignIn(answer.accessToken);
-    state.pinOfferFor = state.tablet && !this.pinLock.hasPin(person.userId) ? person.userId : null;
+    // Offered a PIN: someone without one, or whose PIN's screen-lock key did not answer.
+    state.pinOfferFor =
+      state.tablet &&
+      (!this.pinLock.hasPin(person.userId) || this.pinLock.hardwareRefused(person.userId))
+        ? person.userId
+        : null;
     this.publish();
     // The names are for showing only: the sign-in never waits for them or fails with them.
     this.refreshSites().catch(() => undefined);
@@ -355,12 +366,25 @@ export class SessionStore {
     if (!person) throw new SignInRequiredError('Sign in before setting a PIN.');
     if (!this.state.tablet)
       throw new Error('A PIN unlocks an enrolled tablet only; enrol it first.');
-    await this.pinLock.setPin(person.userId, pin);
+    await this.pinLock.setPin(person.userId, pin, {
+      name: person.user.name,
+      email: person.user.email,
+    });
     this.state.pinOfferFor = null;
     this.publish();
     // Keep the key under the server's share too (if the PIN made it), so that an online sign-in
     // can always open it (another person, or too many wrong PINs).
     await this.openKeyAfterSignIn(await this.tokens.tokenFor(person.userId));
+  }
+
+  /** Whether a PIN set here is combined with the tablet's platform authenticator. */
+  hardwareKeyAvailable(): Promise<boolean> {
+    return this.keyRing.hardwareAvailable();
+  }
+
+  /** What `secret` still lacks under the clinic's rule for this tablet; null when it may be set. */
+  pinShortfall(secret: string): Promise<string | null> {
+    return this.pinLock.shortfall(secret);
   }
 
   async unlock(userId: string, pin: string): Promise<UnlockResult> {

@@ -135,7 +135,7 @@ describe('the sync engine’s tokens', () => {
       /3 of their changes are kept in the Outbox/,
     );
     const signInButton = screen.getByText('Sign in as Amara Lindqvist');
-    expect(signInButton.tagName).toBe('ION-BUTTON');
+    expect(signInButton.tagName).toBe('BUTTON');
     expect(screen.getByRole('alert').contains(signInButton)).toBe(true);
 
     // Signing in again clears the prompt and the entries are still there to be sent.

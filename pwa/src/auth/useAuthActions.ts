@@ -13,6 +13,8 @@ export function useAuthActions() {
       switchPerson: () => store.switchPerson(),
       setActiveSite: (siteId: string) => store.setActiveSite(siteId),
       setPin: (pin: string) => store.setPin(pin),
+      hardwareKeyAvailable: () => store.hardwareKeyAvailable(),
+      pinShortfall: (secret: string) => store.pinShortfall(secret),
       declinePin: () => store.declinePin(),
       enrol: (code: string) => store.enrol(code),
       dismissErasure: () => store.dismissErasure(),

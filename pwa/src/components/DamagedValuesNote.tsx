@@ -3,8 +3,6 @@
 // moved onto another record), so the sealing layer left it out of every answer
 // (docs/threat-model.md). Nothing else is lost; the sync engine fetches a good copy of a record
 // with a full re-pull, and writing it clears the note.
-import { IonIcon } from '@ionic/react';
-import { warningOutline } from 'ionicons/icons';
 import { useSyncExternalStore } from 'react';
 import { tabletVault, type DataKeyVault, type DamagedValue } from '../data/crypto/data-key-vault';
 
@@ -44,7 +42,9 @@ export function DamagedValuesNote(props: { vault?: DataKeyVault }) {
   if (lines.length === 0) return null;
   return (
     <section aria-label="Damaged data on this tablet" className="fl-storage-banner">
-      <IonIcon icon={warningOutline} aria-hidden="true" />
+      <span className="fl-storage-banner__mark" aria-hidden="true">
+        ⚠
+      </span>
       <div role="alert">
         {lines.map((line) => (
           <p key={line}>{line}</p>

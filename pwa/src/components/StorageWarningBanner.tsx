@@ -2,8 +2,6 @@
 // while edits have waited unsynced longer than the clinic allows, while the browser refuses
 // persistent storage, or while the storage is nearly full: a browser may clear a site's storage,
 // and with it edits that exist only on this tablet (pwa/src/storage/).
-import { IonIcon } from '@ionic/react';
-import { warningOutline } from 'ionicons/icons';
 import { describeWait, describeWarningHours } from '../storage/unsynced-age';
 import { useStorageWarnings, type StorageWarnings } from '../storage/useStorageWarnings';
 
@@ -33,7 +31,9 @@ export function StorageWarningText(props: { warnings: StorageWarnings }) {
   if (lines.length === 0) return null;
   return (
     <section aria-label="Storage warning" className="fl-storage-banner">
-      <IonIcon icon={warningOutline} aria-hidden="true" />
+      <span className="fl-storage-banner__mark" aria-hidden="true">
+        ⚠
+      </span>
       <div role="alert">
         {lines.map((line) => (
           <p key={line.slice(0, 40)}>{line}</p>

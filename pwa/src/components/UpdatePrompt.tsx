@@ -1,12 +1,11 @@
 // Registers the service worker and offers the new version when one is waiting. The new version
 // is put in place only at a safe moment (app/update-gate.ts): never while a field is being typed
 // or a form holds unsaved edits; what is saved, and the Outbox, are in IndexedDB and carried over.
-import { IonToast } from '@ionic/react';
+// Drawn without Ionic: it runs on the signed-out shell too, before Ionic is loaded.
 import { useEffect, useRef, useState } from 'react';
 import { useRegisterSW } from 'virtual:pwa-register/react';
-import { lookForAppUpdate } from '../app/app-update';
 import { applyUpdateWhenSafe, type PendingUpdate } from '../app/update-gate';
-import { useSyncStatus } from '../sync';
+import '../auth/ui/identity.css';
 
 export const UPDATE_READY_WORDS =
   'A new version of Fuselight is ready. Your saved work and Outbox stay on this tablet.';
@@ -20,40 +19,40 @@ export function UpdatePrompt() {
   } = useRegisterSW({ immediate: true });
   const pending = useRef<PendingUpdate | null>(null);
   const [waitingForSafeMoment, setWaitingForSafeMoment] = useState(false);
-  // Records from a newer build arrived: look for the new version now rather than at next start.
-  const newerRecords = useSyncStatus().newerRecords !== null;
-  useEffect(() => {
-    if (newerRecords && !needRefresh) void lookForAppUpdate();
-  }, [newerRecords, needRefresh]);
   useEffect(() => () => pending.current?.cancel(), []);
 
   if (!needRefresh) return null;
   return (
-    <IonToast
-      isOpen
-      message={waitingForSafeMoment ? UPDATE_WAITING_WORDS : UPDATE_READY_WORDS}
-      position="bottom"
-      buttons={[
-        {
-          text: 'Later',
-          role: 'cancel',
-          handler: () => {
+    <section className="fl-update-prompt" aria-label="App update">
+      <p role="status">{waitingForSafeMoment ? UPDATE_WAITING_WORDS : UPDATE_READY_WORDS}</p>
+      <div className="fl-id-row">
+        <button
+          type="button"
+          className="fl-id-button"
+          data-tone="quiet"
+          onClick={() => {
             pending.current?.cancel();
             setWaitingForSafeMoment(false);
             setNeedRefresh(false);
-          },
-        },
-        {
-          text: 'Update now',
-          handler: () => {
-            pending.current?.cancel();
-            pending.current = applyUpdateWhenSafe(() => updateServiceWorker(true));
-            setWaitingForSafeMoment(pending.current.waiting);
-            // Keep the toast open while the update waits for the typing to end.
-            return !pending.current.waiting;
-          },
-        },
-      ]}
-    />
+          }}
+        >
+          Later
+        </button>
+        {waitingForSafeMoment ? null : (
+          <button
+            type="button"
+            className="fl-id-button"
+            onClick={() => {
+              pending.current?.cancel();
+              pending.current = applyUpdateWhenSafe(() => updateServiceWorker(true));
+              // Stays open while the update waits for the typing to end.
+              setWaitingForSafeMoment(pending.current.waiting);
+            }}
+          >
+            Update now
+          </button>
+        )}
+      </div>
+    </section>
   );
 }

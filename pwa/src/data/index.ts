@@ -23,7 +23,7 @@ export { queryKeys } from './query-keys';
 export { useRecord } from './hooks/useRecord';
 export { useRecords, useRecordsByField } from './hooks/useRecordsByField';
 export { usePatientSearch } from './hooks/usePatientSearch';
-export { useOldestOutboxEntry, useOutboxCounts, useOutboxEntries } from './hooks/useOutbox';
+export { useOutboxCounts, useOutboxEntries } from './hooks/useOutbox';
 export { STORAGE_FULL_WORDS, StorageFullError, isQuotaExceeded } from './storage-full';
 export {
   UNENROLLED_DEVICE_ID,

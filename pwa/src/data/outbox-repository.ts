@@ -33,12 +33,6 @@ export class OutboxRepository {
     return this.db.outbox.orderBy('seq').toArray();
   }
 
-  /** When the oldest entry still in the Outbox was made (epoch ms); null when it is empty. */
-  async oldestCreatedAt(): Promise<number | null> {
-    const oldest = await this.db.outbox.orderBy('createdAt').first();
-    return oldest?.createdAt ?? null;
-  }
-
   async counts(): Promise<OutboxCounts> {
     const db = this.db;
     const [total, rejected] = await Promise.all([

@@ -4,9 +4,9 @@
 import { useEffect, useState } from 'react';
 import { useTabletPolicy } from '../auth/SessionProvider';
 import { useSession } from '../auth/session-context';
-import { useOldestOutboxEntry } from '../data/hooks/useOutbox';
 import type { StorageHealth } from './storage-health';
 import { unsyncedTooLong, waitedMs } from './unsynced-age';
+import { useOldestUnsyncedAt } from './useOldestUnsyncedAt';
 import { LOOK_AGAIN_MS, useStorageHealth } from './useStorageHealth';
 
 /** The time now, moved on every `everyMs`. */
@@ -31,7 +31,7 @@ export interface StorageWarnings {
 export function useStorageWarnings(): StorageWarnings {
   const { deviceId } = useSession();
   const policy = useTabletPolicy();
-  const oldest = useOldestOutboxEntry();
+  const oldest = useOldestUnsyncedAt();
   const health = useStorageHealth();
   const now = useNow();
   const oldestCreatedAt = oldest.data ?? null;

@@ -4,7 +4,6 @@
 // Fuselight's own: a teal letterhead band, an identifier strip, a three-column findings table,
 // boxed interpretations and a vector trend chart. Imported as `@fuselight/shared/letter-pdf` so
 // that pdf-lib stays out of every chunk that does not draw a letter.
-import fontkit from '@pdf-lib/fontkit';
 import {
   PDFDocument,
   rgb,
@@ -13,6 +12,9 @@ import {
   type RGB,
   degrees as rotation,
 } from 'pdf-lib';
+import { fontkitForPdfLib } from './fontkit-for-pdf-lib';
+
+export { fontkitForPdfLib };
 import type { LetterBlock, LetterLayout, TrendPoint } from './index';
 
 export interface LetterFonts {
@@ -504,7 +506,7 @@ export async function renderLetterPdf(
   fonts: LetterFonts,
 ): Promise<Uint8Array> {
   const doc = await PDFDocument.create();
-  doc.registerFontkit(fontkit);
+  doc.registerFontkit(fontkitForPdfLib);
   doc.setTitle(layout.title);
   doc.setSubject(layout.kind === 'handout' ? 'Exercise handout' : 'Orthoptic clinic letter');
   doc.setProducer('Fuselight');

@@ -45,7 +45,8 @@ export type InvitedPerson = z.infer<typeof invitedPersonSchema>;
  * `unprotected` (no key yet: data from before the upgrade, until the next unlock), `server-only`
  * (only an online sign-in opens it), `pin-only` (at least one person's slot opens with a PIN of
  * digits), `passphrase` (every person's slot needs a passphrase of 12 or more characters),
- * `hardware` (a hardware-held share with the PIN; not built yet).
+ * `hardware` (every person's slot needs the PIN and the tablet's platform authenticator, its WebAuthn
+ * PRF output; pwa/src/data/crypto/hardware-share.ts).
  */
 export const KEY_PROTECTION_KINDS = [
   'unprotected',

@@ -1,6 +1,7 @@
 import { Module } from '@nestjs/common';
 import { APP_CONFIG, type AppConfig } from '../config/app-config';
 import { LettersModule } from '../letters/letters.module';
+import { AttachmentStore } from './attachment-store';
 import { AttachmentsController } from './attachments.controller';
 import { AttachmentsService } from './attachments.service';
 import { OBJECT_STORE, s3ObjectStore } from './object-store';
@@ -15,6 +16,7 @@ import { OBJECT_STORE, s3ObjectStore } from './object-store';
       inject: [APP_CONFIG],
       useFactory: (config: AppConfig) => s3ObjectStore(config),
     },
+    AttachmentStore,
     AttachmentsService,
   ],
 })

@@ -30,8 +30,8 @@ import { assertSiteAccess } from '../auth/scope';
 import { CLOCK, type Clock } from '../common/clock.provider';
 import { APP_CONFIG, type AppConfig } from '../config/app-config';
 import { RecordAccess } from '../letters/record-access';
-import { sqlRows } from '../records/sql';
 import type { StoredRecord } from '../records/stored-record';
+import { AttachmentStore, type StoredBlobRow } from './attachment-store';
 import { OBJECT_STORE, type ObjectStore } from './object-store';
 import { parseContentRange, readUploadBody } from './upload-body';
 
@@ -58,6 +58,7 @@ export class AttachmentsService {
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(RecordAccess) private readonly records: RecordAccess,
     @Inject(OBJECT_STORE) private readonly store: ObjectStore,
+    @Inject(AttachmentStore) private readonly attachments: AttachmentStore,
     @Inject(AuditService) private readonly audit: AuditService,
   ) {}
 
@@ -96,15 +97,8 @@ export class AttachmentsService {
     return record;
   }
 
-  private async storedBlob(
-    sha256: string,
-  ): Promise<{ byte_size: string; mime_type: string } | undefined> {
-    const [row] = await sqlRows<{ byte_size: string; mime_type: string }>(
-      this.em.fork(),
-      `select "byte_size"::text as "byte_size", "mime_type" from "attachment_blob" where "sha256" = ?`,
-      [sha256],
-    );
-    return row;
+  private storedBlob(sha256: string): Promise<StoredBlobRow | undefined> {
+    return this.attachments.blob(this.em.fork(), sha256);
   }
 
   async state(
@@ -118,12 +112,8 @@ export class AttachmentsService {
       await this.markUploaded(user, record);
       return { sha256, offset: total, total, complete: true };
     }
-    const [upload] = await sqlRows<{ received_bytes: string }>(
-      this.em.fork(),
-      `select "received_bytes"::text as "received_bytes" from "attachment_upload" where "sha256" = ?`,
-      [sha256],
-    );
-    return { sha256, offset: Number(upload?.received_bytes ?? 0), total, complete: false };
+    const offset = await this.attachments.receivedBytes(this.em.fork(), sha256);
+    return { sha256, offset, total, complete: false };
   }
 
   async upload(
@@ -166,18 +156,12 @@ export class AttachmentsService {
 
     const outcome = await this.em.fork().transactional(async (em) => {
       const now = this.clock.now().toISOString();
-      await sqlRows(
-        em,
-        `insert into "attachment_upload" ("sha256", "total_bytes", "received_bytes", "part_count", "mime_type", "started_at", "updated_at")
-         values (?, ?, 0, 0, ?, ?::timestamptz, ?::timestamptz) on conflict ("sha256") do nothing`,
-        [sha256, total, fields.mimeType, now, now],
-      );
-      const [upload] = await sqlRows<{ received_bytes: string }>(
-        em,
-        `select "received_bytes"::text as "received_bytes" from "attachment_upload" where "sha256" = ? for update`,
-        [sha256],
-      );
-      const received = Number(upload?.received_bytes ?? 0);
+      const received = await this.attachments.lockUpload(em, {
+        sha256,
+        total,
+        mimeType: fields.mimeType,
+        at: now,
+      });
       if (start !== received) {
         throw new ConflictException({
           message: `content-range: the server holds ${received} of ${total} bytes; resume from byte ${received}`,
@@ -186,11 +170,7 @@ export class AttachmentsService {
       }
       await this.store.put(partKey(sha256, start), body, 'application/octet-stream');
       const offset = start + body.length;
-      await sqlRows(
-        em,
-        `update "attachment_upload" set "received_bytes" = ?, "part_count" = "part_count" + 1, "updated_at" = ?::timestamptz where "sha256" = ?`,
-        [offset, now, sha256],
-      );
+      await this.attachments.partReceived(em, sha256, offset, now);
       if (offset < total) return { sha256, offset, total, complete: false, created: false };
       const mismatch = await this.assemble(em, sha256, fields.mimeType, total);
       return mismatch ?? { sha256, offset: total, total, complete: true, created: true };
@@ -219,7 +199,7 @@ export class AttachmentsService {
     const digest = createHash('sha256').update(whole).digest('hex');
     const reset = async () => {
       await this.store.remove(keys);
-      await sqlRows(em, `delete from "attachment_upload" where "sha256" = ?`, [sha256]);
+      await this.attachments.removeUpload(em, sha256);
     };
     if (whole.length !== total || digest !== sha256) {
       await reset();
@@ -228,12 +208,13 @@ export class AttachmentsService {
       };
     }
     await this.store.put(attachmentStorageKey(sha256), whole, mimeType);
-    await sqlRows(
-      em,
-      `insert into "attachment_blob" ("sha256", "byte_size", "mime_type", "storage_key", "stored_at")
-       values (?, ?, ?, ?, ?::timestamptz) on conflict ("sha256") do nothing`,
-      [sha256, total, mimeType, attachmentStorageKey(sha256), this.clock.now().toISOString()],
-    );
+    await this.attachments.insertBlob(em, {
+      sha256,
+      byteSize: total,
+      mimeType,
+      storageKey: attachmentStorageKey(sha256),
+      at: this.clock.now().toISOString(),
+    });
     await reset();
     return null;
   }

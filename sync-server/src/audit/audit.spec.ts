@@ -10,7 +10,7 @@ import {
   signIn,
   type TestSession,
 } from '../testing/identity-factory';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import { createTestApp, type TestApp } from '../testing/test-app';
 import { AuditService, scopeOfKind, withoutSecrets } from './audit.service';
 

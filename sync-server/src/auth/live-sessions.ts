@@ -2,7 +2,7 @@
 // session not ended, its person active, its tablet neither revoked nor retired), for the open
 // live-changes streams that must close within a second of a revocation, whichever process made it.
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { jsonParam, sqlRows } from '../records/sql';
+import { jsonParam, sqlRows } from '../database/sql';
 
 export async function liveSessionIds(
   em: EntityManager,

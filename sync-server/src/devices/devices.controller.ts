@@ -39,7 +39,8 @@ export class DevicesController {
   @ApiZodBody(heartbeatSchema)
   @ApiResponse({
     status: 200,
-    description: '{ deviceId, label, state, siteIds, holdSiteIds, unsyncedWarningHours }',
+    description:
+      '{ deviceId, label, state, siteIds, holdSiteIds, unsyncedWarningHours, unlockWithoutHardware }',
   })
   heartbeat(@CurrentUser() user: AuthUser, @Body() body: HeartbeatBody): Promise<DeviceSelfView> {
     return this.devices.heartbeat(user, body);
@@ -64,7 +65,8 @@ export class DevicesController {
   @ApiOperation({ summary: 'This tablet’s state; `retired` means push the outbox, then erase' })
   @ApiResponse({
     status: 200,
-    description: '{ deviceId, label, state, siteIds, holdSiteIds, unsyncedWarningHours }',
+    description:
+      '{ deviceId, label, state, siteIds, holdSiteIds, unsyncedWarningHours, unlockWithoutHardware }',
   })
   me(@CurrentUser() user: AuthUser): Promise<DeviceSelfView> {
     return this.devices.self(user);

@@ -11,7 +11,7 @@ import {
   Injectable,
   NotFoundException,
 } from '@nestjs/common';
-import type { DeviceState, FleetDevice } from '@fuselight/shared';
+import type { DeviceState, FleetDevice, UnlockWithoutHardware } from '@fuselight/shared';
 import type { z } from 'zod';
 import { AuditService } from '../audit/audit.service';
 import { ATTEMPT_LIMITS, AttemptLimiter } from '../auth/attempt-limiter.service';
@@ -59,6 +59,8 @@ export interface DeviceSelfView {
   holdSiteIds: string[];
   /** The clinic setting every tablet follows: hours unsynced edits may wait before it warns. */
   unsyncedWarningHours: number;
+  /** The clinic setting: what a secret must be on a tablet without a platform authenticator. */
+  unlockWithoutHardware: UnlockWithoutHardware;
 }
 
 const iso = (date: Date | null): string | null => (date ? date.toISOString() : null);
@@ -331,6 +333,7 @@ export class DevicesService {
       siteIds: caller.siteIds,
       holdSiteIds: await siteIdsDeviceMayHold(em, device.id),
       unsyncedWarningHours: settings.unsyncedWarningHours,
+      unlockWithoutHardware: settings.unlockWithoutHardware,
     };
   }
 

@@ -2,7 +2,7 @@ import request from 'supertest';
 import { v7 as uuidv7 } from 'uuid';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RecordStore } from '../records/record-store';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import { tabletAt, type LetterTablet } from '../letters/testing/letters-test-kit';
 import { bearer, createSite, signInAs } from '../testing/identity-factory';
 import { createTestApp, type TestApp } from '../testing/test-app';

@@ -3,7 +3,7 @@
 // the scan holds the cursor row's lock for its transaction, and a due row is claimed with FOR
 // UPDATE SKIP LOCKED and a lease, as the mail outbox does (mail/mail-outbox.repository.ts).
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 
 export type FhirOutboxStatus = 'queued' | 'sending' | 'sent' | 'refused';
 

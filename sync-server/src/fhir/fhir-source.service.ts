@@ -5,7 +5,7 @@ import { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable } from '@nestjs/common';
 import { SECTION_COLLECTIONS, type JsonValue } from '@fuselight/shared';
 import { RecordStore } from '../records/record-store';
-import { jsonParam, sqlRows } from '../records/sql';
+import { jsonParam, sqlRows } from '../database/sql';
 import type { StoredRecord } from '../records/stored-record';
 import type { VisitExportInput } from './visit-bundle';
 

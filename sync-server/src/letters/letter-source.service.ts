@@ -17,7 +17,7 @@ import {
   type RecordFields,
 } from '@fuselight/shared';
 import { CLOCK, type Clock } from '../common/clock.provider';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import type { StoredRecord } from '../records/stored-record';
 import { RecordAccess } from './record-access';
 

@@ -2,8 +2,8 @@
 // transaction with FOR UPDATE SKIP LOCKED and given a lease (status `sending`, lease_until), so no
 // two processes send the same row, and a row whose process died is picked up once its lease ends.
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { sqlRows } from '../records/sql';
-import { SERVER_DEVICE } from '../records/stored-record';
+import { sqlRows } from '../database/sql';
+import type { SendRequestRow } from '../records/letter-records';
 
 export type MailStatus = 'queued' | 'sending' | 'sent' | 'failed';
 
@@ -129,38 +129,6 @@ export async function mailOfRequest(
     em,
     `select * from "mail_outbox" where "letter_id" = ?::uuid and "request_hlc" = ? order by "recipient_role", "id"`,
     [letterId, requestHlc],
-  );
-}
-
-export interface SendRequestRow {
-  id: string;
-  request_hlc: string;
-  requested_by: string;
-}
-
-/**
- * Final letters with a send request not yet handled. A request is the tablet's write of
- * `sendRequestedAt`, or (from tablets before that field) of deliveryState `queued`; it is known by
- * the HLC stamp of that write, so asking again after a failure is a new request.
- */
-export async function pendingSendRequests(
-  em: EntityManager,
-  limit: number,
-): Promise<SendRequestRow[]> {
-  return sqlRows<SendRequestRow>(
-    em,
-    `select q."id", q."request" ->> 'hlc' as "request_hlc", q."request" ->> 'by' as "requested_by"
-       from (select r."id",
-                    case when r."fields" ->> 'sendRequestedAt' is not null then r."stamps" -> 'sendRequestedAt'
-                         when r."fields" ->> 'deliveryState' = 'queued'
-                          and coalesce(r."stamps" -> 'deliveryState' ->> 'device', '') <> ?
-                         then r."stamps" -> 'deliveryState' end as "request"
-               from "sync_record" r
-              where r."collection" = 'letter' and not r."deleted" and r."fields" ->> 'status' = 'final') q
-      where q."request" is not null
-        and not exists (select 1 from "mail_request" m where m."letter_id" = q."id" and m."request_hlc" = q."request" ->> 'hlc')
-      order by q."id" limit ?`,
-    [SERVER_DEVICE, limit],
   );
 }
 

@@ -18,17 +18,16 @@ import { renderLetterPdf } from '@fuselight/shared/letter-pdf';
 import { LetterSourceService } from '../letters/letter-source.service';
 import { letterFileName } from '../letters/letters.service';
 import { RecordAccess } from '../letters/record-access';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
+import { LetterRecords, type SendRequestRow } from '../records/letter-records';
 import {
   claimDueMail,
   enqueueMail,
   mailOfRequest,
   markAttemptFailed,
   markSent,
-  pendingSendRequests,
   recordRequest,
   type MailOutboxRow,
-  type SendRequestRow,
 } from './mail-outbox.repository';
 import {
   describeSmtpFailure,
@@ -66,6 +65,7 @@ export class MailService {
     @Inject(IDS) private readonly ids: IdGenerator,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(RecordAccess) private readonly records: RecordAccess,
+    @Inject(LetterRecords) private readonly letters: LetterRecords,
     @Inject(LetterSourceService) private readonly source: LetterSourceService,
     @Inject(MAIL_TRANSPORT) private readonly transport: MailTransport,
   ) {}
@@ -79,7 +79,7 @@ export class MailService {
   }
 
   async enqueueRequests(summary: MailRunSummary): Promise<void> {
-    const requests = await pendingSendRequests(this.em.fork(), 50);
+    const requests = await this.letters.pendingSendRequests(this.em.fork(), 50);
     for (const request of requests) {
       const refusal = await this.enqueueOne(request);
       if (refusal === 'taken') continue;

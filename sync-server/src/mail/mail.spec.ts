@@ -22,7 +22,7 @@ import {
   type LetterScenario,
 } from '../letters/testing/letters-test-kit';
 import { createSite, createUser } from '../testing/identity-factory';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import { createTestApp, type TestApp } from '../testing/test-app';
 import { MailService, retryDelayMs } from './mail.service';
 

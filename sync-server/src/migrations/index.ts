@@ -15,6 +15,7 @@ import { Migration20261204300000ClinicSettings } from './Migration20261204300000
 import { Migration20261205000000RestoreTimeline } from './Migration20261205000000RestoreTimeline';
 import { Migration20261205000000FhirHandoff } from './Migration20261205000000FhirHandoff';
 import { Migration20261206000000DeviceKeyProtection } from './Migration20261206000000DeviceKeyProtection';
+import { Migration20261207000000AddendumWrittenByResolution } from './Migration20261207000000AddendumWrittenByResolution';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261201000000Sites', class: Migration20261201000000Sites },
@@ -51,5 +52,9 @@ export const migrationsList: MigrationObject[] = [
   {
     name: 'Migration20261206000000DeviceKeyProtection',
     class: Migration20261206000000DeviceKeyProtection,
+  },
+  {
+    name: 'Migration20261207000000AddendumWrittenByResolution',
+    class: Migration20261207000000AddendumWrittenByResolution,
   },
 ];

@@ -10,7 +10,7 @@
 // countersign queue) may have changed; never a record, a field or a version. A notifying
 // transaction takes a cluster-wide lock at commit, so a push sends one small notice at most.
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { sqlRows } from './sql';
+import { sqlRows } from '../database/sql';
 
 export const CHANGE_CHANNEL = 'fuselight_changes';
 

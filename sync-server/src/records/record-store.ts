@@ -1,18 +1,20 @@
-// The record store: every statement on synced records and their conflicts that the push, pull,
-// conflicts, Review desk, letters and mail paths share. It is a Nest provider of RecordsModule;
-// each method runs on the entity manager it is given, so it joins the caller's transaction. Every
-// batch travels as one JSON parameter so a request of 500 changes is a handful of statements, not
-// hundreds. Writes of the server's own field changes go through ServerWriter (server-writer.ts).
+// The record store: every statement on synced records that the push, pull, disputes, Review
+// desk, letters and mail paths share, and the push's statements on the disputes it opens or
+// joins (the disputes module owns the rest of "sync_conflict", disputes/dispute-store.ts). It is
+// a Nest provider of RecordsModule; each method runs on the entity manager it is given, so it
+// joins the caller's transaction. Every batch travels as one JSON parameter so a request of 500
+// changes is a handful of statements, not hundreds. Writes of the server's own field changes go
+// through ServerWriter (server-writer.ts).
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Injectable } from '@nestjs/common';
-import type { CollectionName, JsonValue } from '@fuselight/shared';
+import type { CollectionName } from '@fuselight/shared';
 import { encodeRecordRows, type RecordWrite } from './record-row.codec';
 import {
   BEGIN_VERSIONED_WRITE_SQL,
   SAFE_VERSION_BOUND_SQL,
   VersionAllocator,
 } from './record-version';
-import { jsonParam, sqlRows } from './sql';
+import { jsonParam, sqlRows } from '../database/sql';
 import {
   RECORD_COLUMNS,
   RECORD_COLUMNS_R,
@@ -26,13 +28,13 @@ export type { RecordWrite } from './record-row.codec';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-export interface OpenConflictRow {
+export interface OpenDisputeRow {
   id: string;
   record_id: string;
   field: string;
 }
 
-export interface ConflictInsert {
+export interface DisputeInsert {
   id: string;
   collection: string;
   recordId: string;
@@ -50,37 +52,6 @@ export interface PullHead {
   restoredThrough: number | null;
 }
 
-/** How a supervisor's resolution closes a conflict. */
-export interface ConflictResolution {
-  conflictId: string;
-  at: Date;
-  by: string;
-  device: string;
-  value: JsonValue;
-  version: number;
-  note: string | null;
-}
-
-/**
- * The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not. The
- * one read of records by id; RecordStore.byIds and the Review desk's reads use it.
- */
-export async function recordsByIds(
-  em: EntityManager,
-  ids: readonly string[],
-): Promise<Map<string, StoredRecord>> {
-  const found = new Map<string, StoredRecord>();
-  const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
-  if (wanted.length === 0) return found;
-  const rows = await sqlRows<StoredRecordRow>(
-    em,
-    `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
-    [jsonParam(wanted)],
-  );
-  for (const row of rows) found.set(row.id, recordFromRow(row));
-  return found;
-}
-
 @Injectable()
 export class RecordStore {
   /**
@@ -93,9 +64,21 @@ export class RecordStore {
     return VersionAllocator.fromRow(begin);
   }
 
-  /** The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not. */
-  byIds(em: EntityManager, ids: readonly string[]): Promise<Map<string, StoredRecord>> {
-    return recordsByIds(em, ids);
+  /**
+   * The records of these ids that exist (ids that are not UUIDs are skipped), deleted or not: the
+   * one read of records by id.
+   */
+  async byIds(em: EntityManager, ids: readonly string[]): Promise<Map<string, StoredRecord>> {
+    const found = new Map<string, StoredRecord>();
+    const wanted = [...new Set(ids.filter((id) => UUID.test(id)))];
+    if (wanted.length === 0) return found;
+    const rows = await sqlRows<StoredRecordRow>(
+      em,
+      `select ${RECORD_COLUMNS} from "sync_record" where "id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
+      [jsonParam(wanted)],
+    );
+    for (const row of rows) found.set(row.id, recordFromRow(row));
+    return found;
   }
 
   async byId(em: EntityManager, id: string): Promise<StoredRecord | null> {
@@ -291,12 +274,9 @@ export class RecordStore {
     return found;
   }
 
-  async openConflictsOf(
-    em: EntityManager,
-    recordIds: readonly string[],
-  ): Promise<OpenConflictRow[]> {
+  async openDisputesOf(em: EntityManager, recordIds: readonly string[]): Promise<OpenDisputeRow[]> {
     if (recordIds.length === 0) return [];
-    return sqlRows<OpenConflictRow>(
+    return sqlRows<OpenDisputeRow>(
       em,
       `select "id", "record_id", "field" from "sync_conflict"
         where "status" = 'open' and "record_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)`,
@@ -346,12 +326,12 @@ export class RecordStore {
     );
   }
 
-  async insertConflicts(
+  async insertDisputes(
     em: EntityManager,
-    conflicts: readonly ConflictInsert[],
+    disputes: readonly DisputeInsert[],
     at: Date,
   ): Promise<void> {
-    if (conflicts.length === 0) return;
+    if (disputes.length === 0) return;
     await sqlRows(
       em,
       `insert into "sync_conflict" ("id", "collection", "record_id", "site_id", "field", "status", "opened_at", "candidates")
@@ -360,7 +340,7 @@ export class RecordStore {
       [
         at.toISOString(),
         jsonParam(
-          conflicts.map((c) => ({
+          disputes.map((c) => ({
             id: c.id,
             collection: c.collection,
             record_id: c.recordId,
@@ -373,10 +353,10 @@ export class RecordStore {
     );
   }
 
-  /** Adds candidates to open conflicts (a further edit joins the conflict). */
+  /** Adds candidates to open disputes (a further edit joins the dispute). */
   async appendCandidates(
     em: EntityManager,
-    additions: readonly { conflictId: string; candidates: StoredCandidate[] }[],
+    additions: readonly { disputeId: string; candidates: StoredCandidate[] }[],
   ): Promise<void> {
     if (additions.length === 0) return;
     await sqlRows(
@@ -384,7 +364,7 @@ export class RecordStore {
       `update "sync_conflict" c set "candidates" = c."candidates" || x."candidates"
        from jsonb_to_recordset(?::jsonb) as x("id" uuid, "candidates" jsonb)
       where c."id" = x."id" and c."status" = 'open'`,
-      [jsonParam(additions.map((a) => ({ id: a.conflictId, candidates: a.candidates })))],
+      [jsonParam(additions.map((a) => ({ id: a.disputeId, candidates: a.candidates })))],
     );
   }
 
@@ -409,24 +389,5 @@ export class RecordStore {
       [cutoff.toISOString(), now.toISOString()],
     );
     return { removed: Number(row?.removed ?? 0), horizonVersion: Number(row?.horizon ?? 0) };
-  }
-
-  /** Closes a conflict with the value a supervisor chose (written by ServerWriter first). */
-  async markResolved(em: EntityManager, resolution: ConflictResolution): Promise<void> {
-    await sqlRows(
-      em,
-      `update "sync_conflict" set "status" = 'resolved', "resolved_at" = ?::timestamptz, "resolved_by" = ?::uuid,
-              "resolved_device" = ?, "resolved_value" = ?::jsonb, "resolution_version" = ?, "note" = ?
-        where "id" = ?`,
-      [
-        resolution.at.toISOString(),
-        resolution.by,
-        resolution.device,
-        JSON.stringify(resolution.value),
-        resolution.version,
-        resolution.note,
-        resolution.conflictId,
-      ],
-    );
   }
 }

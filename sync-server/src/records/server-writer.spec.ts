@@ -1,7 +1,7 @@
 // The server writer numbers several writes of one transaction apart, stamps past every stamp on
 // the record, answers null for a record that is not there, and refuses to write outside a
 // transaction. (Joining an open dispute: letters/record-access.spec.ts; resolving one:
-// conflicts/conflicts.spec.ts.)
+// disputes/dispute-routes.spec.ts.)
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { compareStamps } from '@fuselight/shared';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

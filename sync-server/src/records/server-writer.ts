@@ -141,14 +141,14 @@ export class ServerWriter {
     const stamp: StoredStamp = { hlc, version, by: write.by, device, at };
 
     const openFields = new Map<string, string[]>();
-    for (const conflict of await this.store.openConflictsOf(em, [before.id])) {
+    for (const conflict of await this.store.openDisputesOf(em, [before.id])) {
       if (conflict.id === write.resolving) continue;
       openFields.set(conflict.field, [...(openFields.get(conflict.field) ?? []), conflict.id]);
     }
     const fields = { ...before.fields };
     const stamps = { ...before.stamps };
     let deleted = before.deleted;
-    const joins: { conflictId: string; candidates: StoredCandidate[] }[] = [];
+    const joins: { disputeId: string; candidates: StoredCandidate[] }[] = [];
     for (const [field, value] of Object.entries(written)) {
       if (value === undefined) continue;
       const tombstone = field === TOMBSTONE_FIELD;
@@ -167,9 +167,9 @@ export class ServerWriter {
       else fields[field] = value;
       stamps[field] = stamp;
       if (decision.conflict === 'joins') {
-        for (const conflictId of openFields.get(field) ?? []) {
+        for (const disputeId of openFields.get(field) ?? []) {
           joins.push({
-            conflictId,
+            disputeId,
             candidates: [{ value, hlc, by: write.by, device, version, at }],
           });
         }
@@ -182,7 +182,7 @@ export class ServerWriter {
       .records([record])
       .disputes(joins.length + (write.resolving ? 1 : 0))
       .announce(em);
-    return { before, record, version, stamp, joined: joins.map((join) => join.conflictId) };
+    return { before, record, version, stamp, joined: joins.map((join) => join.disputeId) };
   }
 
   /**

@@ -4,7 +4,7 @@
 // COMMITTED, outside any transaction), so it sees every commit made before it began. One index
 // probe per site ("sync_record_site_version_idx" read backwards).
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { jsonParam, sqlRows } from './sql';
+import { jsonParam, sqlRows } from '../database/sql';
 
 /** Site id → the highest version of its records (0 for a site with none). */
 export async function latestVersionsOf(

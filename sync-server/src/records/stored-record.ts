@@ -1,4 +1,4 @@
-// The server's row of a synced record, as the sync and conflicts modules read and write it.
+// The server's row of a synced record, as the sync and disputes modules read and write it.
 import type { CollectionName, FieldWriteStamp, JsonValue } from '@fuselight/shared';
 
 /**

@@ -16,20 +16,14 @@ import { AuditService } from '../audit/audit.service';
 import type { AuthUser } from '../auth/auth-user';
 import { assertSiteAccess, sitesOf } from '../auth/scope';
 import { CLOCK, type Clock } from '../common/clock.provider';
+import { NameBook, patientName, sitesByIds } from '../common/desk-names';
+import { DisputeStore } from '../disputes/dispute-store';
+import { RecordStore } from '../records/record-store';
 import { ServerWriter } from '../records/server-writer';
 import type { StoredRecord } from '../records/stored-record';
-import {
-  NameBook,
-  openDisputeCounts,
-  patientName,
-  recordById,
-  recordsByIds,
-  sectionsOfVisits,
-  sitesByIds,
-  visitsAwaitingCountersign,
-} from './review-store';
+import { VisitRecords } from '../records/visit-records';
 import type { CountersignItemView, VisitReviewResult } from '@fuselight/shared';
-import { applyServerChange } from './server-change';
+import { applyServerChange } from '../records/server-change';
 
 const str = (value: JsonValue | undefined): string | null =>
   typeof value === 'string' ? value : null;
@@ -41,15 +35,18 @@ export class CountersignService {
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(ServerWriter) private readonly writer: ServerWriter,
+    @Inject(RecordStore) private readonly records: RecordStore,
+    @Inject(VisitRecords) private readonly visits: VisitRecords,
+    @Inject(DisputeStore) private readonly disputes: DisputeStore,
   ) {}
 
   async queue(user: AuthUser): Promise<{ items: CountersignItemView[] }> {
     const em = this.em.fork();
-    const visits = await visitsAwaitingCountersign(em, sitesOf(user));
+    const visits = await this.visits.awaitingCountersign(em, sitesOf(user));
     if (visits.length === 0) return { items: [] };
     const visitIds = visits.map((v) => v.id);
-    const sections = await sectionsOfVisits(em, visitIds);
-    const patients = await recordsByIds(
+    const sections = await this.visits.sectionsOf(em, visitIds);
+    const patients = await this.records.byIds(
       em,
       visits.map((v) => str(v.fields.patientId)).filter((id): id is string => id !== null),
     );
@@ -57,7 +54,10 @@ export class CountersignService {
       em,
       visits.map((v) => v.siteId),
     );
-    const disputes = await openDisputeCounts(em, [...visitIds, ...sections.map((s) => s.id)]);
+    const disputes = await this.disputes.openCountsByRecord(em, [
+      ...visitIds,
+      ...sections.map((s) => s.id),
+    ]);
     const people = visits.flatMap((v) => [str(v.fields.clinicianId), str(v.fields.signedBy)]);
     const names = await NameBook.load(
       em,
@@ -104,8 +104,11 @@ export class CountersignService {
       const now = this.clock.now();
       await this.assertVisitInScope(em, user, visitId);
       // Open disputes anywhere in the visit must be resolved before its content is vouched for.
-      const sections = await sectionsOfVisits(em, [visitId]);
-      const counts = await openDisputeCounts(em, [visitId, ...sections.map((s) => s.id)]);
+      const sections = await this.visits.sectionsOf(em, [visitId]);
+      const counts = await this.disputes.openCountsByRecord(em, [
+        visitId,
+        ...sections.map((s) => s.id),
+      ]);
       const open = [...counts.values()].reduce((a, b) => a + b, 0);
       if (open > 0) {
         throw new ConflictException(
@@ -179,7 +182,7 @@ export class CountersignService {
     user: AuthUser,
     visitId: string,
   ): Promise<void> {
-    const visit = await recordById(em, visitId);
+    const visit = await this.records.byId(em, visitId);
     if (!visit || visit.collection !== 'visit' || visit.deleted) {
       throw new NotFoundException(`No visit has the id ${visitId}.`);
     }

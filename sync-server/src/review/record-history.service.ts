@@ -7,35 +7,36 @@ import { Inject, Injectable, NotFoundException } from '@nestjs/common';
 import { fieldMeta, isCollectionName, type FieldMeta, type JsonValue } from '@fuselight/shared';
 import type { AuthUser } from '../auth/auth-user';
 import { assertSiteAccess } from '../auth/scope';
-import {
-  NameBook,
-  addendaOf,
-  disputesOfRecord,
-  fieldValuesOf,
-  isoOf,
-  recordById,
-  sitesByIds,
-  type AddendumRow,
-} from './review-store';
+import { NameBook, isoOf, sitesByIds } from '../common/desk-names';
+import { AddendumStore, type AddendumRow } from '../disputes/addendum-store';
+import { DisputeStore } from '../disputes/dispute-store';
+import { FieldHistory } from '../records/field-history';
+import { RecordStore } from '../records/record-store';
 import type { HistoryEntryView, RecordHistoryView } from '@fuselight/shared';
 
 @Injectable()
 export class RecordHistoryService {
-  constructor(@Inject(EntityManager) private readonly em: EntityManager) {}
+  constructor(
+    @Inject(EntityManager) private readonly em: EntityManager,
+    @Inject(RecordStore) private readonly records: RecordStore,
+    @Inject(FieldHistory) private readonly fieldHistory: FieldHistory,
+    @Inject(DisputeStore) private readonly disputes: DisputeStore,
+    @Inject(AddendumStore) private readonly addenda: AddendumStore,
+  ) {}
 
   async history(user: AuthUser, collection: string, recordId: string): Promise<RecordHistoryView> {
     const em = this.em.fork();
-    const record = await recordById(em, recordId);
+    const record = await this.records.byId(em, recordId);
     if (!record || record.collection !== collection) {
       throw new NotFoundException(`No ${collection} record has the id ${recordId}.`);
     }
     assertSiteAccess(user, record.siteId);
-    const values = await fieldValuesOf(em, recordId);
-    const disputes = await disputesOfRecord(em, recordId);
+    const values = await this.fieldHistory.valuesOf(em, recordId);
+    const disputes = await this.disputes.ofRecord(em, recordId);
     const addenda: AddendumRow[] =
       record.collection === 'visit'
-        ? await addendaOf(em, { visitId: recordId })
-        : await addendaOf(em, { recordId });
+        ? await this.addenda.of(em, { visitId: recordId })
+        : await this.addenda.of(em, { recordId });
     const site = (await sitesByIds(em, [record.siteId])).get(record.siteId);
     const names = await NameBook.load(
       em,

@@ -1,44 +1,29 @@
-// The Review desk's routes: supervisors only, each scoped to the supervisor's sites by the
+// The Review desk's countersigning and record-history routes (its Disputes routes are the
+// disputes module's): supervisors only, each scoped to the supervisor's sites by the
 // services. Controllers are one-liners (docs/conventions.md).
-import {
-  Body,
-  Controller,
-  Get,
-  Header,
-  HttpCode,
-  Inject,
-  Param,
-  Post,
-  Query,
-} from '@nestjs/common';
+import { Body, Controller, Get, Header, HttpCode, Inject, Param, Post } from '@nestjs/common';
 import { ApiOperation, ApiResponse, ApiTags } from '@nestjs/swagger';
 import { ApiSignedIn, ApiZodBody } from '../auth/api-docs';
 import { CurrentUser, Roles } from '../auth/auth.decorators';
 import type { AuthUser } from '../auth/auth-user';
 import { ZodValidationPipe, zodDto } from '../common/zod-validation.pipe';
 import { CountersignService } from './countersign.service';
-import { DisputeDeskService } from './dispute-desk.service';
 import { RecordHistoryService } from './record-history.service';
 import {
   collectionParamSchema,
   countersignVisitSchema,
-  disputeIdParamSchema,
   recordIdParamSchema,
   returnVisitSchema,
   visitIdParamSchema,
 } from './review.schemas';
 import {
-  disputeQuerySchema,
   type CountersignItemView,
-  type DisputeDetailView,
-  type DisputePageView,
   type RecordHistoryView,
   type VisitReviewResult,
 } from '@fuselight/shared';
 
 class ReturnVisitBody extends zodDto(returnVisitSchema) {}
 class CountersignBody extends zodDto(countersignVisitSchema) {}
-class DisputeQueryParams extends zodDto(disputeQuerySchema) {}
 
 @ApiTags('review')
 @ApiSignedIn()
@@ -47,40 +32,8 @@ class DisputeQueryParams extends zodDto(disputeQuerySchema) {}
 export class ReviewController {
   constructor(
     @Inject(CountersignService) private readonly countersigning: CountersignService,
-    @Inject(DisputeDeskService) private readonly disputes: DisputeDeskService,
     @Inject(RecordHistoryService) private readonly histories: RecordHistoryService,
   ) {}
-
-  @Get('summary')
-  @ApiOperation({
-    summary: 'Counts for the Review desk tab: open Disputes and visits awaiting countersignature',
-  })
-  summary(
-    @CurrentUser() user: AuthUser,
-  ): Promise<{ openDisputes: number; awaitingCountersign: number }> {
-    return this.disputes.summary(user);
-  }
-
-  @Get('disputes')
-  @ApiOperation({
-    summary: 'Open Disputes in your sites with patient, visit and site; filtered, sorted, paged',
-  })
-  listDisputes(
-    @CurrentUser() user: AuthUser,
-    @Query() query: DisputeQueryParams,
-  ): Promise<DisputePageView> {
-    return this.disputes.list(user, query);
-  }
-
-  @Get('disputes/:id')
-  @ApiOperation({ summary: 'One dispute with its candidates named and the record around it' })
-  @ApiResponse({ status: 404, description: 'No such dispute' })
-  dispute(
-    @CurrentUser() user: AuthUser,
-    @Param('id', new ZodValidationPipe(disputeIdParamSchema)) id: string,
-  ): Promise<DisputeDetailView> {
-    return this.disputes.detail(user, id);
-  }
 
   @Get('countersign')
   @ApiOperation({

@@ -1,22 +1,19 @@
 import { Module } from '@nestjs/common';
+import { DisputesModule } from '../disputes/disputes.module';
 import { RecordsModule } from '../records/records.module';
-import { AddendumModule } from './addendum.module';
 import { CountersignService } from './countersign.service';
-import { DisputeDeskService } from './dispute-desk.service';
 import { RecordHistoryService } from './record-history.service';
 import { ReviewController } from './review.controller';
 
 /**
- * The supervisor's Review desk: Disputes enriched for the desk, countersigning and returns, and
- * record histories. Its migrations add the field-value history and the Addendum trigger on the
- * sync storage (Migration20261201040000ReviewDesk), and the link from each trigger-written
- * Addendum to the synced `addendum` record the AddendumPublisher writes for tablets
- * (Migration20261201060000AddendumRecords), published by the resolve route once its transaction
- * commits (AddendumModule).
+ * The supervisor's Review desk beyond Disputes (which the disputes module owns): countersigning
+ * and returns, and record histories. Its migrations add the field-value history on the sync
+ * storage (Migration20261201040000ReviewDesk, Migration20261202000000SupersededHistory) and the
+ * Addenda table the disputes module writes.
  */
 @Module({
-  imports: [AddendumModule, RecordsModule],
+  imports: [DisputesModule, RecordsModule],
   controllers: [ReviewController],
-  providers: [CountersignService, DisputeDeskService, RecordHistoryService],
+  providers: [CountersignService, RecordHistoryService],
 })
 export class ReviewModule {}

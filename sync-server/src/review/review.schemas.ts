@@ -1,12 +1,10 @@
 // Requests of the Review desk routes, validated by the global zod pipe. Every message names the
-// field it is about. The Disputes list's query is shared with the tablet (disputeQuerySchema in
-// @fuselight/shared).
+// field it is about.
 import { z } from 'zod';
 import { COLLECTIONS } from '@fuselight/shared';
 
 export const visitIdParamSchema = z.uuid({ error: 'id must be a visit id (a UUID)' });
 export const recordIdParamSchema = z.uuid({ error: 'id must be a record id (a UUID)' });
-export const disputeIdParamSchema = z.uuid({ error: 'id must be a dispute id (a UUID)' });
 export const collectionParamSchema = z.enum(COLLECTIONS, {
   error: (issue) => `collection: unknown collection ${String(issue.input)}`,
 });

@@ -11,8 +11,9 @@ import {
   type PullPage,
   type PushResponse,
 } from '@fuselight/shared';
-import { sqlRows } from '../records/sql';
-import { AddendumPublisher } from './addendum-publisher.service';
+import { sqlRows } from '../database/sql';
+import { AddendumPublisher } from '../disputes/addendum-publisher.service';
+import { AddendumStore } from '../disputes/addendum-store';
 import {
   bearer,
   createDevice,
@@ -692,6 +693,61 @@ describe('a dispute on a Signed visit', () => {
       angles.body.entries as { kind: string; field: string; value: unknown }[]
     ).filter((e) => e.kind === 'value' && e.field === 'objectiveHorizontalDeg');
     expect(signedValue.map((e) => e.value)).toEqual([12, 20, 22, 21]);
+  });
+
+  it('writes the Addendum in the resolving transaction: when it cannot be written, nothing is resolved', async () => {
+    const ids = await chartVisit();
+    await signVisit(ids.visitId);
+    const conflictId = await openAngleDispute(ids.anglesId, ids.anglesVersion, [50, 51]);
+    const failing = vi
+      .spyOn(t.app.get(AddendumStore), 'recordForResolution')
+      .mockRejectedValueOnce(new Error('disk full while writing the Addendum'));
+    try {
+      await http()
+        .post(`/api/conflicts/${conflictId}/resolve`)
+        .set(bearer(supervisorA.accessToken))
+        .send({ value: 50, note: 'Re-measured: 50°' })
+        .expect(500);
+    } finally {
+      failing.mockRestore();
+    }
+    const [dispute] = await sqlRows<{ status: string }>(
+      t.em(),
+      `select "status" from "sync_conflict" where "id" = ?`,
+      [conflictId],
+    );
+    expect(dispute?.status).toBe('open');
+    expect((await pullRecord(studentTablet, ids.anglesId)).fields.objectiveHorizontalDeg).toBe(51);
+    // Resolved again, it records its Addendum and publishes it.
+    await http()
+      .post(`/api/conflicts/${conflictId}/resolve`)
+      .set(bearer(supervisorA.accessToken))
+      .send({ value: 50, note: 'Re-measured: 50°' })
+      .expect(200);
+    const synced = await pullCollection(studentTablet, 'addendum');
+    expect(
+      synced.filter((r) => r.fields.conflictId === conflictId).map((r) => r.fields.newValue),
+    ).toEqual([50]);
+  });
+
+  it('has no trigger on the disputes table: closing a dispute outside the resolution records no Addendum', async () => {
+    const triggers = await sqlRows<{ tgname: string }>(
+      t.em(),
+      `select "tgname" from "pg_trigger" where "tgrelid" = 'sync_conflict'::regclass and not "tgisinternal"`,
+    );
+    expect(triggers).toEqual([]);
+    const ids = await chartVisit();
+    await signVisit(ids.visitId);
+    const conflictId = await openAngleDispute(ids.anglesId, ids.anglesVersion, [60, 61]);
+    await sqlRows(
+      t.em(),
+      `update "sync_conflict" set "status" = 'resolved', "resolved_at" = now(), "note" = 'by hand' where "id" = ?`,
+      [conflictId],
+    );
+    const rows = await sqlRows(t.em(), `select 1 from "review_addendum" where "conflict_id" = ?`, [
+      conflictId,
+    ]);
+    expect(rows).toEqual([]);
   });
 
   it('leaves a dispute on a draft visit without an Addendum', async () => {

@@ -30,7 +30,7 @@ export class ClinicSettingsService {
       const name = row.key as keyof ClinicSettings;
       if (!SETTING_NAMES.includes(name)) continue;
       const checked = clinicSettingsSchema.shape[name].safeParse(row.value);
-      if (checked.success) settings[name] = checked.data;
+      if (checked.success) (settings as Record<string, unknown>)[name] = checked.data;
     }
     return settings;
   }
@@ -44,7 +44,7 @@ export class ClinicSettingsService {
       const changed: Partial<Record<keyof ClinicSettings, { from: unknown; to: unknown }>> = {};
       for (const name of SETTING_NAMES) {
         const value = change[name];
-        if (value === undefined || value === before[name]) continue;
+        if (value === undefined || JSON.stringify(value) === JSON.stringify(before[name])) continue;
         await writeSetting(em, {
           key: name,
           value,

@@ -37,9 +37,13 @@ describe('the clinic’s settings', () => {
   it('answers 24 hours for unsynced edits until an admin changes it, and tells tablets', async () => {
     const read = await request(server()).get('/api/admin/settings').set(bearer(admin.accessToken));
     expect(read.status).toBe(200);
-    expect(exactSettings.parse(read.body)).toEqual({ unsyncedWarningHours: 24 });
+    expect(exactSettings.parse(read.body)).toEqual({
+      unsyncedWarningHours: 24,
+      unlockWithoutHardware: { rule: 'pin-only' },
+    });
     const me = await request(server()).get('/api/devices/me').set(bearer(tablet.accessToken));
     expect(me.body.unsyncedWarningHours).toBe(24);
+    expect(me.body.unlockWithoutHardware).toEqual({ rule: 'pin-only' });
   });
 
   it('refuses a value out of range or an unknown setting, naming the field', async () => {
@@ -64,7 +68,10 @@ describe('the clinic’s settings', () => {
       .set(bearer(admin.accessToken))
       .send({ unsyncedWarningHours: 8 });
     expect(changed.status).toBe(200);
-    expect(changed.body).toEqual({ unsyncedWarningHours: 8 });
+    expect(changed.body).toEqual({
+      unsyncedWarningHours: 8,
+      unlockWithoutHardware: { rule: 'pin-only' },
+    });
     const me = await request(server()).get('/api/devices/me').set(bearer(tablet.accessToken));
     expect(me.body).toMatchObject({ state: 'active', unsyncedWarningHours: 8 });
     const events = await t
@@ -76,5 +83,81 @@ describe('the clinic’s settings', () => {
     expect(events).toHaveLength(1);
     expect(events[0]!.detail).toEqual({ unsyncedWarningHours: { from: 24, to: 8 } });
     expect(events[0]!.actor_id).toBe(admin.user.id);
+  });
+
+  it('refuses a passphrase policy that is too short, names an unknown kind of character or has no rule, naming the field', async () => {
+    const patch = (body: object) =>
+      request(server()).patch('/api/admin/settings').set(bearer(admin.accessToken)).send(body);
+    const short = await patch({
+      unlockWithoutHardware: { rule: 'passphrase', minLength: 8, requiredClasses: [] },
+    });
+    expect(short.status).toBe(400);
+    expect(short.body.message).toContain('unlockWithoutHardware.minLength');
+    expect(short.body.message).toContain('at least 12 characters');
+
+    const unknownClass = await patch({
+      unlockWithoutHardware: { rule: 'passphrase', minLength: 14, requiredClasses: ['emoji'] },
+    });
+    expect(unknownClass.status).toBe(400);
+    expect(unknownClass.body.message).toContain('unlockWithoutHardware.requiredClasses.0');
+    expect(unknownClass.body.message).toContain('lowercase, uppercase, digit, symbol');
+
+    const twice = await patch({
+      unlockWithoutHardware: {
+        rule: 'passphrase',
+        minLength: 14,
+        requiredClasses: ['digit', 'digit'],
+      },
+    });
+    expect(twice.status).toBe(400);
+    expect(twice.body.message).toContain('unlockWithoutHardware.requiredClasses');
+    expect(twice.body.message).toContain('twice');
+
+    const noRule = await patch({ unlockWithoutHardware: { minLength: 14 } });
+    expect(noRule.status).toBe(400);
+    expect(noRule.body.message).toContain('unlockWithoutHardware');
+    expect(noRule.body.message).toContain("rule 'pin-only' or 'passphrase'");
+
+    const read = await request(server()).get('/api/admin/settings').set(bearer(admin.accessToken));
+    expect(read.body.unlockWithoutHardware).toEqual({ rule: 'pin-only' });
+  });
+
+  it('keeps a passphrase policy, audits it and tells tablets; changing it back to PIN only is kept too', async () => {
+    const policy = {
+      rule: 'passphrase',
+      minLength: 14,
+      requiredClasses: ['uppercase', 'digit'],
+    };
+    const changed = await request(server())
+      .patch('/api/admin/settings')
+      .set(bearer(admin.accessToken))
+      .send({ unlockWithoutHardware: policy });
+    expect(changed.status).toBe(200);
+    expect(changed.body.unlockWithoutHardware).toEqual(policy);
+    const me = await request(server()).get('/api/devices/me').set(bearer(tablet.accessToken));
+    expect(me.body.unlockWithoutHardware).toEqual(policy);
+
+    // The same policy again is no change: nothing more is audited.
+    await request(server())
+      .patch('/api/admin/settings')
+      .set(bearer(admin.accessToken))
+      .send({ unlockWithoutHardware: { ...policy } });
+    const events = await t
+      .em()
+      .getConnection()
+      .execute<Array<{ detail: Record<string, unknown> }>>(
+        `select "detail" from "audit_event" where "kind" = 'clinic.settings_changed' and "detail" -> 'unlockWithoutHardware' is not null`,
+      );
+    expect(events).toHaveLength(1);
+    expect(events[0]!.detail.unlockWithoutHardware).toEqual({
+      from: { rule: 'pin-only' },
+      to: policy,
+    });
+
+    const back = await request(server())
+      .patch('/api/admin/settings')
+      .set(bearer(admin.accessToken))
+      .send({ unlockWithoutHardware: { rule: 'pin-only' } });
+    expect(back.body.unlockWithoutHardware).toEqual({ rule: 'pin-only' });
   });
 });

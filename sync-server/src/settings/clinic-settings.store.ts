@@ -1,7 +1,7 @@
 // The clinic's settings as stored: one row per setting that an admin has changed, its value as
 // JSON (table "clinic_setting"). Raw SQL on the caller's transaction.
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { jsonParam, sqlRows } from '../records/sql';
+import { jsonParam, sqlRows } from '../database/sql';
 
 export interface StoredSetting {
   key: string;

@@ -5,7 +5,7 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_WAIT_LIMIT_MS } from '../database/orm-options';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import { startOwnCluster, type OwnCluster } from '../testing/own-cluster';
 import type { TestApp } from '../testing/test-app';
 import {

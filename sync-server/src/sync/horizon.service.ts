@@ -7,8 +7,8 @@ import { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable } from '@nestjs/common';
 import { CLOCK, type Clock } from '../common/clock.provider';
 import { APP_CONFIG, type AppConfig } from '../config/app-config';
+import { ChangeLog } from '../records/change-log';
 import { RecordStore } from '../records/record-store';
-import { pruneChangeLog } from './change-log';
 
 export interface PruneReport {
   tombstonesRemoved: number;
@@ -24,6 +24,7 @@ export class HorizonService {
     @Inject(CLOCK) private readonly clock: Clock,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(RecordStore) private readonly store: RecordStore,
+    @Inject(ChangeLog) private readonly changeLog: ChangeLog,
   ) {}
 
   /** Removes tombstones and change ids older than the horizon; run daily by the operator's scheduler. */
@@ -32,7 +33,7 @@ export class HorizonService {
     const cutoff = new Date(now.getTime() - this.config.tombstoneHorizonDays * 24 * 60 * 60 * 1000);
     return this.em.fork().transactional(async (em) => {
       const pruned = await this.store.pruneTombstones(em, cutoff, now);
-      const changeIdsRemoved = await pruneChangeLog(em, cutoff);
+      const changeIdsRemoved = await this.changeLog.prune(em, cutoff);
       return {
         tombstonesRemoved: pruned.removed,
         changeIdsRemoved,

@@ -25,24 +25,24 @@ import { describeZodError } from '../common/zod-validation.pipe';
 import { visitPushProblem } from '../fhir/visit-push-rule';
 import { letterPushProblem } from '../letters/letter-push-rule';
 import type { VersionAllocator } from '../records/record-version';
-import type { ConflictInsert, RecordWrite } from '../records/record-store';
+import type { DisputeInsert, RecordWrite } from '../records/record-store';
 import {
   SERVER_DEVICE,
   type StoredCandidate,
   type StoredRecord,
   type StoredStamp,
 } from '../records/stored-record';
-import type { ChangeAudit } from './change-log';
+import type { ChangeAudit } from '../records/change-log';
 
 export interface ChangePlan {
   result: AcceptedPushResult;
   record: StoredRecord;
-  newConflicts: ConflictInsert[];
+  newDisputes: DisputeInsert[];
   /** Candidates joining conflicts that are already open (in the database or in this batch). */
-  joined: { conflictId: string; candidate: StoredCandidate }[];
+  joined: { disputeId: string; candidate: StoredCandidate }[];
   /** Conflicts opened by this change, by field. */
   opened: Map<string, string>;
-  /** Its audit event, written with its log row (change-log.ts). */
+  /** Its audit event, written with its log row (records/change-log.ts). */
   audit: ChangeAudit;
 }
 
@@ -52,7 +52,7 @@ export type PlanOutcome =
 export class PushPlanner {
   private readonly records: Map<string, StoredRecord>;
   /** Open conflicts: record id → field → conflict id. */
-  private readonly openConflicts: Map<string, Map<string, string>>;
+  private readonly openDisputes: Map<string, Map<string, string>>;
 
   constructor(
     private readonly user: AuthUser,
@@ -60,11 +60,11 @@ export class PushPlanner {
     private readonly versions: VersionAllocator,
     private readonly ids: IdGenerator,
     records: ReadonlyMap<string, StoredRecord>,
-    openConflicts: readonly { record_id: string; field: string; id: string }[],
+    openDisputes: readonly { record_id: string; field: string; id: string }[],
   ) {
     this.records = new Map(records);
-    this.openConflicts = new Map();
-    for (const row of openConflicts) this.conflictsOf(row.record_id).set(row.field, row.id);
+    this.openDisputes = new Map();
+    for (const row of openDisputes) this.disputesOf(row.record_id).set(row.field, row.id);
   }
 
   /** The record ids a list of raw changes touches (only well-formed ones). */
@@ -79,11 +79,11 @@ export class PushPlanner {
     return [...ids];
   }
 
-  private conflictsOf(recordId: string): Map<string, string> {
-    let fields = this.openConflicts.get(recordId);
+  private disputesOf(recordId: string): Map<string, string> {
+    let fields = this.openDisputes.get(recordId);
     if (!fields) {
       fields = new Map();
-      this.openConflicts.set(recordId, fields);
+      this.openDisputes.set(recordId, fields);
     }
     return fields;
   }
@@ -155,7 +155,7 @@ export class PushPlanner {
     change: Omit<PushChange, 'fields'>,
     fields: Record<string, JsonValue>,
   ): ChangePlan {
-    const open = record ? this.conflictsOf(record.id) : new Map<string, string>();
+    const open = record ? this.disputesOf(record.id) : new Map<string, string>();
     const state: ServerRecordState | null = record
       ? {
           version: record.version,
@@ -204,20 +204,20 @@ export class PushPlanner {
       version,
       at,
     });
-    const newConflicts: ConflictInsert[] = [];
+    const newDisputes: DisputeInsert[] = [];
     const joined: ChangePlan['joined'] = [];
     const opened = new Map<string, string>();
     for (const outcome of merged.outcomes) {
       if (outcome.decision.conflict === 'none') continue;
-      const conflictId = open.get(outcome.field);
-      if (outcome.decision.conflict === 'joins' && conflictId !== undefined) {
-        joined.push({ conflictId, candidate: incoming(outcome.incomingValue) });
+      const disputeId = open.get(outcome.field);
+      if (outcome.decision.conflict === 'joins' && disputeId !== undefined) {
+        joined.push({ disputeId, candidate: incoming(outcome.incomingValue) });
         continue;
       }
       const id = this.ids.uuid();
       opened.set(outcome.field, id);
       const against = outcome.against;
-      newConflicts.push({
+      newDisputes.push({
         id,
         collection: change.collection,
         recordId: change.recordId,
@@ -238,7 +238,7 @@ export class PushPlanner {
         conflicts: merged.conflicts,
       },
       record: next,
-      newConflicts,
+      newDisputes,
       joined,
       opened,
       audit: {
@@ -258,7 +258,7 @@ export class PushPlanner {
   /** Makes an accepted plan part of the working state, for the changes after it. */
   commit(plan: ChangePlan): void {
     this.records.set(plan.record.id, plan.record);
-    const open = this.conflictsOf(plan.record.id);
+    const open = this.disputesOf(plan.record.id);
     for (const [field, id] of plan.opened) open.set(field, id);
   }
 
@@ -307,25 +307,25 @@ function storedCandidate(value: JsonValue, stamp: FieldWriteStamp): StoredCandid
 /** The rows a batch of accepted plans writes: each record once (its last state), conflicts merged. */
 export function collapsePlans(plans: readonly ChangePlan[]): {
   records: RecordWrite[];
-  newConflicts: ConflictInsert[];
-  joined: { conflictId: string; candidates: StoredCandidate[] }[];
+  newDisputes: DisputeInsert[];
+  joined: { disputeId: string; candidates: StoredCandidate[] }[];
 } {
   const records = new Map<string, RecordWrite>();
-  const inserts = new Map<string, ConflictInsert>();
+  const inserts = new Map<string, DisputeInsert>();
   const joined = new Map<string, StoredCandidate[]>();
   for (const plan of plans) {
     records.set(plan.record.id, plan.record);
-    for (const conflict of plan.newConflicts)
+    for (const conflict of plan.newDisputes)
       inserts.set(conflict.id, { ...conflict, candidates: [...conflict.candidates] });
-    for (const { conflictId, candidate } of plan.joined) {
-      const created = inserts.get(conflictId);
+    for (const { disputeId, candidate } of plan.joined) {
+      const created = inserts.get(disputeId);
       if (created) created.candidates.push(candidate);
-      else joined.set(conflictId, [...(joined.get(conflictId) ?? []), candidate]);
+      else joined.set(disputeId, [...(joined.get(disputeId) ?? []), candidate]);
     }
   }
   return {
     records: [...records.values()],
-    newConflicts: [...inserts.values()],
-    joined: [...joined].map(([conflictId, candidates]) => ({ conflictId, candidates })),
+    newDisputes: [...inserts.values()],
+    joined: [...joined].map(([disputeId, candidates]) => ({ disputeId, candidates })),
   };
 }

@@ -4,7 +4,7 @@
 // at or below it goes on as before; tablets marked after the restore are left alone.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { isPullReset } from '@fuselight/shared';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import type { TestApp } from '../testing/test-app';
 import { cursorReset } from './sync.service';
 import {

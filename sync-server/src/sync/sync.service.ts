@@ -1,10 +1,10 @@
 // Push and pull of sync protocol 1 (docs/sync-protocol.md).
 //
 // Push: one transaction per request. Changes already answered are replays (idempotency, see
-// change-log.ts), the records are locked with SELECT … FOR UPDATE, every other change is planned
+// records/change-log.ts), the records are locked with SELECT … FOR UPDATE, every other change is planned
 // in request order by the shared merge rule, and the plans are written in a few batched
 // statements inside a savepoint, then their results logged and their audit events written in
-// one more (change-log.ts). If PostgreSQL refuses a value (a data error), the batch is rolled
+// one more (records/change-log.ts). If PostgreSQL refuses a value (a data error), the batch is rolled
 // back to that savepoint and the changes are written again one by one, each in its own
 // savepoint, so only the offending change is rejected.
 // Pull: one REPEATABLE READ read-only snapshot, bounded by the server's own open writes (the writer
@@ -38,9 +38,9 @@ import { parseWith } from '../common/zod-validation.pipe';
 import { ChangeTouch } from '../records/change-notice';
 import { RecordStore, type PullHead } from '../records/record-store';
 import { CURSOR_EPOCH, VersionAllocator } from '../records/record-version';
-import { sqlRows } from '../records/sql';
+import { releaseSavepoint, rollbackToSavepoint, savepoint } from '../database/sql';
+import { ChangeLog, type ChangeLogEntry } from '../records/change-log';
 import { wireStamps } from '../records/stored-record';
-import { firstResults, storeResults, type ChangeLogEntry } from './change-log';
 import { PushPlanner, collapsePlans, type ChangePlan } from './push-planner';
 import {
   PUSH_OBSERVER,
@@ -59,6 +59,7 @@ export class SyncService {
     @Inject(IDS) private readonly ids: IdGenerator,
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(RecordStore) private readonly store: RecordStore,
+    @Inject(ChangeLog) private readonly changeLog: ChangeLog,
     @Inject(PUSH_OBSERVER) private readonly observer: PushObserver,
   ) {}
 
@@ -101,9 +102,9 @@ export class SyncService {
 
     // Each attempt plans against what is committed now; an attempt whose results cannot all be
     // logged (a concurrent push answered one of its changes meanwhile) is undone and run again,
-    // and then finds that answer among the earlier ones (change-log.ts).
+    // and then finds that answer among the earlier ones (records/change-log.ts).
     for (let attempt = 1; ; attempt += 1) {
-      const earlier = await firstResults(em, changeIds);
+      const earlier = await this.changeLog.firstResults(em, changeIds);
       lap('earlierMs');
 
       // The first occurrence of each id not answered before is planned; the rest are replays.
@@ -118,7 +119,7 @@ export class SyncService {
       });
       const recordIds = PushPlanner.recordIdsOf(toPlan.map((c) => c.raw));
       const records = await this.store.lockForUpdate(em, recordIds);
-      const open = await this.store.openConflictsOf(em, [...records.keys()]);
+      const open = await this.store.openDisputesOf(em, [...records.keys()]);
       lap('lockMs');
 
       const makePlanner = () =>
@@ -130,7 +131,7 @@ export class SyncService {
 
       // One savepoint per attempt: a batch the database refuses rolls back to it and is written
       // change by change; an attempt that cannot log all its results rolls back to it too.
-      await sqlRows(em, 'savepoint "push_attempt"');
+      await savepoint(em, 'push_attempt');
       try {
         await this.writePlans(em, plans, now, touched);
       } catch (error) {
@@ -138,13 +139,19 @@ export class SyncService {
         this.logger.warn(
           `push batch refused by the database (${describeDataError(error)}); writing change by change`,
         );
-        await sqlRows(em, 'rollback to savepoint "push_attempt"');
+        await rollbackToSavepoint(em, 'push_attempt');
         answered.clear();
         await this.writeOneByOne(em, makePlanner(), toPlan, answered, now, touched);
       }
       lap('writeMs');
 
-      const logged = await storeResults(em, this.audit, [...answered.values()], claimant, now);
+      const logged = await this.changeLog.storeResults(
+        em,
+        this.audit,
+        [...answered.values()],
+        claimant,
+        now,
+      );
       lap('logMs');
       // The savepoint is not released: the commit ends it with the transaction, one round trip
       // fewer per push.
@@ -153,7 +160,7 @@ export class SyncService {
         await touched.announce(em);
         return resultsInRequestOrder(changes, earlier, answered);
       }
-      await sqlRows(em, 'rollback to savepoint "push_attempt"');
+      await rollbackToSavepoint(em, 'push_attempt');
       if (attempt >= 3) {
         // A transient clash: a 5xx, which the tablet retries later with its Outbox intact.
         throw new HttpException(
@@ -170,9 +177,9 @@ export class SyncService {
     touched: ChangeTouch,
   ): Promise<void> {
     const batch = collapsePlans(plans);
-    touched.records(batch.records).disputes(batch.newConflicts.length + batch.joined.length);
+    touched.records(batch.records).disputes(batch.newDisputes.length + batch.joined.length);
     await this.store.upsert(em, batch.records, now);
-    await this.store.insertConflicts(em, batch.newConflicts, now);
+    await this.store.insertDisputes(em, batch.newDisputes, now);
     await this.store.appendCandidates(em, batch.joined);
   }
 
@@ -195,10 +202,10 @@ export class SyncService {
         });
         continue;
       }
-      await sqlRows(em, 'savepoint "push_change"');
+      await savepoint(em, 'push_change');
       try {
         await this.writePlans(em, [outcome.plan], now, touched);
-        await sqlRows(em, 'release savepoint "push_change"');
+        await releaseSavepoint(em, 'push_change');
         planner.commit(outcome.plan);
         answered.set(changeId, {
           result: outcome.plan.result,
@@ -207,7 +214,7 @@ export class SyncService {
         });
       } catch (error) {
         if (!isDataError(error)) throw error;
-        await sqlRows(em, 'rollback to savepoint "push_change"');
+        await rollbackToSavepoint(em, 'push_change');
         answered.set(changeId, {
           result: {
             changeId,
@@ -238,7 +245,7 @@ export class SyncService {
         const more =
           rows.length > limit || (await this.store.heldBack(em, { after, bound, sites }));
         const page = rows.slice(0, limit);
-        const conflicts = await this.store.openConflictsOf(
+        const conflicts = await this.store.openDisputesOf(
           em,
           page.map((r) => r.id),
         );

@@ -32,4 +32,26 @@ describe('how the tablet reports its data key’s protection', () => {
       keyProtectionOf({ pinUserIds: ['a', 'old'], server: true }, kinds({ a: 'passphrase' })),
     ).toBe('pin-only');
   });
+
+  it('is hardware-backed only when every person’s slot needs the hardware share', () => {
+    expect(
+      keyProtectionOf(
+        { pinUserIds: ['a', 'b'], hardwareUserIds: ['a', 'b'], server: true },
+        kinds({ a: 'pin', b: 'pin' }),
+      ),
+    ).toBe('hardware');
+    // One person's slot without it (set before, or on a moment the authenticator had no PRF).
+    expect(
+      keyProtectionOf(
+        { pinUserIds: ['a', 'b'], hardwareUserIds: ['a'], server: true },
+        kinds({ a: 'pin', b: 'pin' }),
+      ),
+    ).toBe('pin-only');
+    expect(
+      keyProtectionOf(
+        { pinUserIds: ['a', 'b'], hardwareUserIds: ['a'], server: true },
+        kinds({ a: 'pin', b: 'passphrase' }),
+      ),
+    ).toBe('passphrase');
+  });
 });

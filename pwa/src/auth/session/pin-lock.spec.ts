@@ -104,12 +104,15 @@ describe('the PIN lock on its own', () => {
       maxPinAttempts: 0.5,
       idleLockMinutes: 0,
       unsyncedWarningHours: 0,
+      // A passphrase rule under the floor is ignored, as a server's garbled setting would be.
+      unlockWithoutHardware: { rule: 'passphrase', minLength: 4, requiredClasses: [] },
     });
     const defaults = {
       offlineUnlockHours: 72,
       maxPinAttempts: 5,
       idleLockMinutes: 5,
       unsyncedWarningHours: 24,
+      unlockWithoutHardware: { rule: 'pin-only' },
     };
     expect(lock.policy).toEqual(defaults);
     await lock.setPolicy({
@@ -117,14 +120,16 @@ describe('the PIN lock on its own', () => {
       maxPinAttempts: 3.7,
       idleLockMinutes: 2,
       unsyncedWarningHours: 6,
+      unlockWithoutHardware: { rule: 'passphrase', minLength: 16, requiredClasses: ['digit'] },
     });
     expect(lock.policy).toEqual({
       offlineUnlockHours: 8,
       maxPinAttempts: 3,
       idleLockMinutes: 2,
       unsyncedWarningHours: 6,
+      unlockWithoutHardware: { rule: 'passphrase', minLength: 16, requiredClasses: ['digit'] },
     });
-    await lock.setPin('amara', '482913');
+    await lock.setPin('amara', 'quiet harbour lights 7');
     lock.clear();
     expect(lock.hasPin('amara')).toBe(false);
     expect(lock.policy).toEqual(defaults);

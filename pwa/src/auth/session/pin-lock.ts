@@ -5,8 +5,11 @@
 // auth database (the pins table and the policy setting); the session store asks it whether a PIN
 // unlocks and makes the person active itself.
 import type { AuthDb, PersonSession, PinRecord } from '../auth-db';
-import { KeyUnavailableError, type KeyRing } from '../../data/crypto/key-ring';
-import { pinSchema, verifyPin } from '../pin-hash';
+import { HARDWARE_REFUSED, HARDWARE_UNAVAILABLE } from '../../data/crypto/hardware-share';
+import { KeyUnavailableError, type KeyRing, type SlotPerson } from '../../data/crypto/key-ring';
+import { verifyPin } from '../pin-hash';
+import { isAcceptablePin, PIN_RULE } from '../pin-rule';
+import { secretShortfall } from '../secret-policy';
 import {
   DEFAULT_UNLOCK_POLICY,
   type KnownPerson,
@@ -24,12 +27,12 @@ export interface PinLockOptions {
   /** Rebuilds the session snapshot and tells its listeners. */
   publish: () => void;
   /** The tablet's key slots: a PIN is set by wrapping the data key under it. */
-  keys: Pick<KeyRing, 'addPinSlot' | 'unlockWithPin' | 'removePinSlot'>;
+  keys: Pick<KeyRing, 'addPinSlot' | 'unlockWithPin' | 'removePinSlot' | 'hardwareAvailable'>;
 }
 
 export type PinStatus = Pick<
   KnownPerson,
-  'hasPin' | 'pinAttemptsLeft' | 'canUnlockWithPin' | 'unlockWindowEndsAt'
+  'hasPin' | 'pinAttemptsLeft' | 'canUnlockWithPin' | 'unlockWindowEndsAt' | 'pinHardwareRefused'
 >;
 
 export class PinLock {
@@ -60,6 +63,11 @@ export class PinLock {
     return this.pins.has(userId);
   }
 
+  /** The platform authenticator did not answer for the person's PIN the last time it was asked. */
+  hardwareRefused(userId: string): boolean {
+    return this.pins.get(userId)?.hardwareRefusedAt !== undefined;
+  }
+
   /** What the unlock screen shows of a person's PIN. */
   status(person: PersonSession, tabletEnrolled: boolean): PinStatus {
     const pin = this.pins.get(person.userId);
@@ -75,13 +83,29 @@ export class PinLock {
         !person.signInRequired &&
         tabletEnrolled,
       unlockWindowEndsAt: windowEnds,
+      pinHardwareRefused: pin?.hardwareRefusedAt !== undefined,
     };
   }
 
-  /** Sets a person's PIN (a key slot wrapped under it), with no wrong attempts. */
-  async setPin(userId: string, pin: string): Promise<void> {
-    pinSchema.parse(pin);
-    await this.options.keys.addPinSlot(userId, pin);
+  /**
+   * What is still missing from `secret` under the clinic's rule for tablets without a platform
+   * authenticator; null when it may be set (always, on a tablet with one).
+   */
+  async shortfall(secret: string): Promise<string | null> {
+    if (await this.options.keys.hardwareAvailable()) return null;
+    return secretShortfall(secret, this.current.unlockWithoutHardware);
+  }
+
+  /**
+   * Sets a person's PIN (a key slot wrapped under it, with the tablet's hardware share where it
+   * has a platform authenticator), with no wrong attempts. Without one, the clinic's rule for
+   * such tablets is enforced here too, in words naming what is missing.
+   */
+  async setPin(userId: string, pin: string, person?: SlotPerson): Promise<void> {
+    if (!isAcceptablePin(pin)) throw new Error(PIN_RULE);
+    const missing = await this.shortfall(pin);
+    if (missing) throw new Error(missing);
+    await this.options.keys.addPinSlot(userId, pin, person);
     const record: PinRecord = {
       userId,
       keySlot: true,
@@ -97,6 +121,19 @@ export class PinLock {
   private async verify(record: PinRecord, pin: string): Promise<'right' | 'wrong' | UnlockFailure> {
     if (record.keySlot) {
       const opened = await this.options.keys.unlockWithPin(record.userId, pin);
+      if (opened === 'hardware-refused' || opened === 'hardware-unavailable') {
+        // Says nothing about the PIN: not counted as a wrong one, and nothing is erased. Noted,
+        // so that the person's next online sign-in offers to set the PIN again.
+        const hardwareRefusedAt = this.options.now();
+        await this.options.db().pins.update(record.userId, { hardwareRefusedAt });
+        this.pins.set(record.userId, { ...record, hardwareRefusedAt });
+        this.options.publish();
+        return fail(
+          'hardware',
+          opened === 'hardware-refused' ? HARDWARE_REFUSED : HARDWARE_UNAVAILABLE,
+          Math.max(0, this.current.maxPinAttempts - record.failedAttempts),
+        );
+      }
       if (opened === 'no-slot') {
         return fail(
           'no-pin',
@@ -111,7 +148,7 @@ export class PinLock {
     const { salt, hash, iterations } = record;
     if (salt === undefined || hash === undefined || iterations === undefined) return 'wrong';
     if (!(await verifyPin(pin, { salt, hash, iterations }))) return 'wrong';
-    if (!pinSchema.safeParse(pin).success) {
+    if (!isAcceptablePin(pin)) {
       await this.options.db().pins.delete(record.userId);
       this.pins.delete(record.userId);
       this.options.publish();
@@ -243,6 +280,10 @@ export class PinLock {
     if (policy.unsyncedWarningHours !== undefined && policy.unsyncedWarningHours >= 1) {
       next.unsyncedWarningHours = Math.floor(policy.unsyncedWarningHours);
     }
+    // The schema (and zod) load here, not with the first screen: a policy comes from the server.
+    const { unlockWithoutHardwareSchema } = await import('@fuselight/shared/admin-views');
+    const rule = unlockWithoutHardwareSchema.safeParse(policy.unlockWithoutHardware);
+    if (rule.success) next.unlockWithoutHardware = rule.data;
     this.current = next;
     await this.options.db().settings.put({ key: POLICY_KEY, value: next });
   }

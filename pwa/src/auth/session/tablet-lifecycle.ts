@@ -6,7 +6,8 @@ import type { KeyProtectionKind } from '@fuselight/shared/admin-views';
 import type { KeyRing } from '../../data/crypto/key-ring';
 import { askForPersistentStorage } from '../../storage/storage-health';
 import type { TabletCredentials } from '../auth-db';
-import { ApiError, NetworkError, type IdentityApi } from '../identity-api';
+import { ApiError, NetworkError } from '../../net/api-client';
+import type { IdentityApi } from '../identity-api';
 import {
   clearErasureNote,
   writeErasureNote,
@@ -106,12 +107,14 @@ export class TabletLifecycle {
       if (
         status.offlineUnlockHours !== undefined ||
         status.maxPinAttempts !== undefined ||
-        status.unsyncedWarningHours !== undefined
+        status.unsyncedWarningHours !== undefined ||
+        status.unlockWithoutHardware !== undefined
       ) {
         await this.pinLock.setPolicy({
           offlineUnlockHours: status.offlineUnlockHours,
           maxPinAttempts: status.maxPinAttempts,
           unsyncedWarningHours: status.unsyncedWarningHours,
+          unlockWithoutHardware: status.unlockWithoutHardware,
         });
         this.state.publish();
       }

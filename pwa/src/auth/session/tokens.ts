@@ -2,7 +2,9 @@
 // before it expires, one refresh at a time per person since refresh tokens rotate), and a
 // sign-in prompt when the server will not refresh. Outbox entries are never touched here.
 import type { PersonSession } from '../auth-db';
-import { ApiError, tokenExpiry, type IdentityApi, type SignInResponse } from '../identity-api';
+import { ApiError } from '../../net/api-client';
+import type { IdentityApi, SignInResponse } from '../identity-api';
+import { tokenExpiry } from './token-expiry';
 import type { SessionState } from './session-state';
 import { SignInRequiredError } from './types';
 

@@ -1,5 +1,6 @@
 // What the session store tells the screens (its snapshot) and the words it answers in.
 import type { SessionUser } from '@fuselight/shared';
+import type { UnlockWithoutHardware } from '@fuselight/shared/admin-views';
 import type { KnownColleague, KnownSite, TabletCredentials } from '../auth-db';
 import type { ErasureNote } from '../tablet-erasure';
 
@@ -16,12 +17,18 @@ export interface UnlockPolicy {
    * name; pwa/src/storage/unsynced-age.ts).
    */
   unsyncedWarningHours: number;
+  /**
+   * What a secret must be on a tablet without a platform authenticator (the clinic setting of
+   * the same name; pwa/src/auth/secret-policy.ts).
+   */
+  unlockWithoutHardware: UnlockWithoutHardware;
 }
 export const DEFAULT_UNLOCK_POLICY: UnlockPolicy = {
   offlineUnlockHours: 72,
   maxPinAttempts: 5,
   idleLockMinutes: 5,
   unsyncedWarningHours: 24,
+  unlockWithoutHardware: { rule: 'pin-only' },
 };
 
 export interface KnownPerson {
@@ -32,6 +39,8 @@ export interface KnownPerson {
   canUnlockWithPin: boolean;
   /** Epoch ms after which the PIN no longer unlocks (the window closes). */
   unlockWindowEndsAt: number;
+  /** The tablet's screen lock did not answer for this person's PIN the last time it was asked. */
+  pinHardwareRefused: boolean;
   signInRequired: { reason: string; at: number } | null;
 }
 
@@ -67,7 +76,8 @@ export type UnlockResult =
   | { ok: true }
   | {
       ok: false;
-      reason: 'wrong-pin' | 'locked-out' | 'window-closed' | 'no-pin' | 'not-enrolled';
+      /** `hardware`: the slot needs the platform authenticator, and it did not answer. */
+      reason: 'wrong-pin' | 'locked-out' | 'window-closed' | 'no-pin' | 'not-enrolled' | 'hardware';
       message: string;
       attemptsLeft: number;
     };

@@ -7,11 +7,14 @@
 import type Dexie from 'dexie';
 import type { FuselightDb } from '../db';
 import type { DataKeyVault } from './data-key-vault';
+import { HardwareShareError, noHardwareShare, type HardwareShare } from './hardware-share';
 import {
   DEFAULT_KDF,
+  makeHardwarePinSlot,
   makePinSlot,
   makeServerSlot,
   newDataKey,
+  openHardwarePinSlot,
   openPinSlot,
   openServerSlot,
   pinSlotId,
@@ -27,7 +30,19 @@ export interface SealedDatabase {
   tables: readonly string[];
 }
 
-export type PinUnlock = 'unlocked' | 'wrong' | 'no-slot';
+/**
+ * `hardware-refused`: the slot needs the platform authenticator and it did not answer (cancelled,
+ * timed out, or its credential is gone); `hardware-unavailable`: this page cannot reach it.
+ * Neither says anything about the PIN, so neither counts as a wrong one.
+ */
+export type PinUnlock =
+  'unlocked' | 'wrong' | 'no-slot' | 'hardware-refused' | 'hardware-unavailable';
+
+/** Who a slot is made for (the platform authenticator shows the name when it asks). */
+export interface SlotPerson {
+  name: string;
+  email: string;
+}
 
 /** How this tablet's key is protected, for the Fleet screen. */
 export type KeyProtection = 'none' | 'pin' | 'pin+server';
@@ -45,16 +60,27 @@ export interface KeyRingOptions {
   vault: DataKeyVault;
   now?: () => number;
   kdf?: KdfParams;
+  /** The tablet's platform authenticator, if any (default: none, every slot a PIN slot). */
+  hardware?: HardwareShare;
   onSealProgress?: (progress: SealProgress) => void;
 }
 
 export class KeyRing {
   private readonly now: () => number;
   private readonly kdf: KdfParams;
+  private readonly hardware: HardwareShare;
+  private hardwareKnown: Promise<boolean> | null = null;
 
   constructor(private readonly options: KeyRingOptions) {
     this.now = options.now ?? (() => Date.now());
     this.kdf = options.kdf ?? DEFAULT_KDF;
+    this.hardware = options.hardware ?? noHardwareShare;
+  }
+
+  /** Whether new slots get the hardware share (a platform authenticator with PRF is there). */
+  hardwareAvailable(): Promise<boolean> {
+    this.hardwareKnown ??= this.hardware.available().catch(() => false);
+    return this.hardwareKnown;
   }
 
   get vault(): DataKeyVault {
@@ -77,11 +103,20 @@ export class KeyRing {
     return slots.some((slot) => slot.kind === 'server') ? 'pin+server' : 'pin';
   }
 
-  /** Which slots exist: the people whose PIN or passphrase opens the key, and the server's. */
-  async slotSummary(): Promise<{ pinUserIds: string[]; server: boolean }> {
+  /**
+   * Which slots exist: the people whose PIN or passphrase opens the key, those of them whose
+   * slot also needs the hardware share, and the server's.
+   */
+  async slotSummary(): Promise<{
+    pinUserIds: string[];
+    hardwareUserIds: string[];
+    server: boolean;
+  }> {
     const slots = await this.options.db().keySlots.toArray();
+    const pins = slots.filter((slot) => slot.kind === 'pin');
     return {
-      pinUserIds: slots.filter((slot) => slot.kind === 'pin').map((slot) => slot.userId),
+      pinUserIds: pins.map((slot) => slot.userId),
+      hardwareUserIds: pins.filter((slot) => slot.hardware).map((slot) => slot.userId),
       server: slots.some((slot) => slot.kind === 'server'),
     };
   }
@@ -90,8 +125,17 @@ export class KeyRing {
    * Wraps the data key for `userId` under `secret`. On a tablet not protected yet, the key is
    * made here and everything already stored is sealed in place. A protected tablet must be
    * unlocked (by a PIN or an online sign-in) for a slot to be added.
+   *
+   * With `person` given and a platform authenticator that supports PRF, the slot needs the
+   * hardware share as well ('hardware'); where the authenticator turns out to have no PRF it is
+   * a PIN slot ('pin'). A person who cancels the authenticator's prompt gets a
+   * HardwareShareError and no slot is written (their old one, if any, stays).
    */
-  async addPinSlot(userId: string, secret: string): Promise<void> {
+  async addPinSlot(
+    userId: string,
+    secret: string,
+    person?: SlotPerson,
+  ): Promise<'hardware' | 'pin'> {
     const { vault } = this.options;
     const db = this.options.db();
     let key = vault.dataKey;
@@ -105,17 +149,58 @@ export class KeyRing {
       key = await newDataKey();
       fresh = true;
     }
-    const slot = await makePinSlot(key, userId, secret, this.now(), this.kdf);
+    const enrolment = person ? await this.enrolHardware(userId, person) : null;
+    const slot = enrolment
+      ? await makeHardwarePinSlot(
+          key,
+          userId,
+          secret,
+          {
+            credentialId: enrolment.credentialId,
+            prfSalt: enrolment.salt,
+            prfOutput: enrolment.output,
+          },
+          this.now(),
+          this.kdf,
+        )
+      : await makePinSlot(key, userId, secret, this.now(), this.kdf);
+    enrolment?.output.fill(0);
     await db.keySlots.put(slot);
     vault.hold(key);
     if (fresh) await this.finishSealing();
+    return enrolment ? 'hardware' : 'pin';
+  }
+
+  /** A credential and its PRF output for a new slot; null where there is no hardware share. */
+  private async enrolHardware(userId: string, person: SlotPerson) {
+    if (!(await this.hardwareAvailable())) return null;
+    try {
+      return await this.hardware.enrol({ userId, ...person });
+    } catch (error) {
+      if (error instanceof HardwareShareError && error.failure === 'unavailable') return null;
+      throw error;
+    }
   }
 
   /** Opens `userId`'s slot with `secret`; a wrong secret changes nothing. */
   async unlockWithPin(userId: string, secret: string): Promise<PinUnlock> {
     const slot = await this.options.db().keySlots.get(pinSlotId(userId));
     if (!slot) return 'no-slot';
-    const key = await openPinSlot(slot, secret);
+    let key: CryptoKey | null;
+    if (slot.hardware) {
+      // The authenticator first, while the person's tap still counts as a gesture; then argon2id.
+      let prfOutput: Uint8Array;
+      try {
+        prfOutput = await this.hardware.evaluate(slot.hardware.credentialId, slot.hardware.prfSalt);
+      } catch (error) {
+        if (!(error instanceof HardwareShareError)) throw error;
+        return error.failure === 'refused' ? 'hardware-refused' : 'hardware-unavailable';
+      }
+      key = await openHardwarePinSlot(slot, secret, prfOutput);
+      prfOutput.fill(0);
+    } else {
+      key = await openPinSlot(slot, secret);
+    }
     if (!key) return 'wrong';
     this.options.vault.hold(key);
     await this.finishSealing();

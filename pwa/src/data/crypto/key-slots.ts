@@ -3,7 +3,6 @@
 // parameters are stored in each slot so they can be raised later without locking anyone out.
 // A wrong PIN makes the unwrap fail AES-GCM's authentication: nothing about the PIN is stored
 // apart from the slot itself (docs/threat-model.md).
-import { argon2id } from 'hash-wasm';
 
 export interface KdfParams {
   name: 'argon2id';
@@ -43,6 +42,11 @@ export interface KeySlot {
   userId: string;
   /** Absent for the server slot (its secret is a full-strength key from the server). */
   kdf?: KdfParams & { salt: Uint8Array };
+  /**
+   * A person's slot that also needs the tablet's platform authenticator: the credential whose
+   * PRF output (for `prfSalt`) is the second share. The output itself is never stored.
+   */
+  hardware?: { credentialId: Uint8Array; prfSalt: Uint8Array };
   iv: Uint8Array;
   wrappedKey: ArrayBuffer;
   createdAt: number;
@@ -69,6 +73,8 @@ export async function deriveBytes(
   salt: Uint8Array,
   params: KdfParams,
 ): Promise<Uint8Array> {
+  // hash-wasm (its WebAssembly inlined) loads at the first derivation: setting or typing a PIN.
+  const { argon2id } = await import('hash-wasm');
   return argon2id({
     password: secret.normalize('NFC'),
     salt,
@@ -78,6 +84,36 @@ export async function deriveBytes(
     hashLength: 32,
     outputType: 'binary',
   });
+}
+
+/**
+ * The wrapping key of a slot that needs both shares: HKDF-SHA-256 over the argon2id output of the
+ * PIN followed by the authenticator's PRF output, bound to the slot's id. Either share alone
+ * gives nothing: the PIN cannot be tried without the hardware, nor the hardware used without it.
+ */
+async function combinedWrappingKey(
+  pinBytes: Uint8Array,
+  prfOutput: Uint8Array,
+  id: string,
+): Promise<CryptoKey> {
+  if (prfOutput.byteLength < 32) throw new Error('The hardware share is shorter than 32 bytes');
+  const ikm = new Uint8Array(pinBytes.byteLength + prfOutput.byteLength);
+  ikm.set(pinBytes, 0);
+  ikm.set(prfOutput, pinBytes.byteLength);
+  const base = await crypto.subtle.importKey('raw', ikm, 'HKDF', false, ['deriveKey']);
+  ikm.fill(0);
+  return crypto.subtle.deriveKey(
+    {
+      name: 'HKDF',
+      hash: 'SHA-256',
+      salt: new Uint8Array(0),
+      info: encoder.encode(`fuselight pin+hardware slot\u0000${id}`),
+    },
+    base,
+    { name: 'AES-GCM', length: 256 },
+    false,
+    ['wrapKey', 'unwrapKey'],
+  );
 }
 
 async function wrappingKey(bytes: Uint8Array): Promise<CryptoKey> {
@@ -157,8 +193,57 @@ export async function makePinSlot(
 
 /** The data key from a person's slot, or null when the PIN is not the one it was made with. */
 export async function openPinSlot(slot: KeySlot, secret: string): Promise<CryptoKey | null> {
-  if (!slot.kdf) return null;
+  if (!slot.kdf || slot.hardware) return null;
   const kek = await wrappingKey(await deriveBytes(secret, slot.kdf.salt, slot.kdf));
+  return unwrap(slot, kek);
+}
+
+/**
+ * Wraps the data key for a person under their PIN and the tablet's hardware share together
+ * (`prfOutput`, from hardware-share.ts); only the credential id and the PRF salt are kept.
+ */
+export async function makeHardwarePinSlot(
+  dataKey: CryptoKey,
+  userId: string,
+  secret: string,
+  hardware: { credentialId: Uint8Array; prfSalt: Uint8Array; prfOutput: Uint8Array },
+  nowMs: number,
+  params: KdfParams = DEFAULT_KDF,
+): Promise<KeySlot> {
+  checkKdf(params);
+  const salt = crypto.getRandomValues(new Uint8Array(16));
+  const id = pinSlotId(userId);
+  const kek = await combinedWrappingKey(
+    await deriveBytes(secret, salt, params),
+    hardware.prfOutput,
+    id,
+  );
+  return {
+    id,
+    kind: 'pin',
+    userId,
+    kdf: { ...params, salt },
+    hardware: { credentialId: hardware.credentialId, prfSalt: hardware.prfSalt },
+    ...(await wrap(dataKey, kek, id)),
+    createdAt: nowMs,
+  };
+}
+
+/**
+ * The data key from a slot that needs the hardware share, given the PRF output the credential
+ * gave for the slot's salt; null when the PIN (or the output) is not the one it was made with.
+ */
+export async function openHardwarePinSlot(
+  slot: KeySlot,
+  secret: string,
+  prfOutput: Uint8Array,
+): Promise<CryptoKey | null> {
+  if (!slot.kdf || !slot.hardware) return null;
+  const kek = await combinedWrappingKey(
+    await deriveBytes(secret, slot.kdf.salt, slot.kdf),
+    prfOutput,
+    slot.id,
+  );
   return unwrap(slot, kek);
 }
 

@@ -23,14 +23,3 @@ export function useOutboxCounts() {
     networkMode: 'always',
   });
 }
-
-/** When the oldest Outbox entry was made (epoch ms), or null when nothing waits. */
-export function useOldestOutboxEntry() {
-  const { outbox } = useRepositories();
-  useDataInvalidation();
-  return useQuery({
-    queryKey: queryKeys.outbox.oldest(),
-    queryFn: () => outbox.oldestCreatedAt(),
-    networkMode: 'always',
-  });
-}

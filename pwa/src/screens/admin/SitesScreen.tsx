@@ -1,13 +1,22 @@
 // Sites: the clinic's locations and outreach places that people and tablets belong to, and the
 // clinic's settings that every tablet follows.
 import { zodResolver } from '@hookform/resolvers/zod';
-import { clinicSettingsSchema, type ClinicSettings } from '@fuselight/shared';
+import { PASSPHRASE_CHARACTER_CLASSES, type ClinicSettings } from '@fuselight/shared';
 import { useState } from 'react';
-import { useForm } from 'react-hook-form';
+import { useForm, useWatch } from 'react-hook-form';
+import { CHARACTER_CLASS_WORDS } from '../../auth/secret-policy';
 import type { AdminSite } from '../../auth/identity-api';
 import { Button, Notice, SelectField, TextField, describeError } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
-import { siteFormSchema, type SiteForm } from './admin-forms.schema';
+import {
+  PASSPHRASE_POLICY_MIN_LENGTH,
+  clinicSettingsForm,
+  clinicSettingsFormSchema,
+  clinicSettingsFromForm,
+  siteFormSchema,
+  type ClinicSettingsForm as ClinicSettingsValues,
+  type SiteForm,
+} from './admin-forms.schema';
 import {
   useAddSite,
   useChangeClinicSettings,
@@ -16,17 +25,22 @@ import {
   useSites,
 } from './useAdminQueries';
 
-/** The clinic's settings: how long edits may wait unsynced on a tablet before it warns. */
+/**
+ * The clinic's settings: how long edits may wait unsynced on a tablet before it warns, and what a
+ * secret must be on a tablet without security hardware for its PIN (docs/threat-model.md).
+ */
 export function ClinicSettingsForm({ settings }: { settings: ClinicSettings }) {
   const change = useChangeClinicSettings();
-  const form = useForm<ClinicSettings>({
-    resolver: zodResolver(clinicSettingsSchema),
-    defaultValues: settings,
+  const form = useForm<ClinicSettingsValues>({
+    resolver: zodResolver(clinicSettingsFormSchema),
+    defaultValues: clinicSettingsForm(settings),
   });
   const submit = form.handleSubmit(async (values) => {
-    await change.mutateAsync(values);
+    await change.mutateAsync(clinicSettingsFromForm(values));
     form.reset(values);
   });
+  const { errors } = form.formState;
+  const passphrase = useWatch({ control: form.control, name: 'unlockRule' }) === 'passphrase';
   return (
     <form
       noValidate
@@ -43,6 +57,42 @@ export function ClinicSettingsForm({ settings }: { settings: ClinicSettings }) {
         error={form.formState.errors.unsyncedWarningHours?.message}
         {...form.register('unsyncedWarningHours', { valueAsNumber: true })}
       />
+      <SelectField
+        label="Tablets without security hardware for the PIN"
+        hint="Where a tablet's screen lock has a platform authenticator, each PIN needs it too and cannot be tried offline on a copy. Elsewhere a PIN alone can be: ask for a passphrase, or accept PIN only (the Fleet screen states the risk)."
+        error={errors.unlockRule?.message}
+        {...form.register('unlockRule')}
+      >
+        <option value="pin-only">Accept a PIN only</option>
+        <option value="passphrase">Ask for a passphrase</option>
+      </SelectField>
+      {passphrase ? (
+        <>
+          <TextField
+            label="Passphrase at least (characters)"
+            type="number"
+            inputMode="numeric"
+            min={PASSPHRASE_POLICY_MIN_LENGTH}
+            max={128}
+            error={errors.passphraseMinLength?.message}
+            {...form.register('passphraseMinLength', { valueAsNumber: true })}
+          />
+          <fieldset className="fl-id-field fl-id-checks" style={{ border: 0, padding: 0 }}>
+            <legend style={{ fontWeight: 700 }}>The passphrase must contain</legend>
+            {PASSPHRASE_CHARACTER_CLASSES.map((kind) => (
+              <label key={kind}>
+                <input type="checkbox" value={kind} {...form.register('requiredClasses')} />
+                {CHARACTER_CLASS_WORDS[kind]}
+              </label>
+            ))}
+            {errors.requiredClasses?.message ? (
+              <p className="fl-id-error" role="alert">
+                {errors.requiredClasses.message}
+              </p>
+            ) : null}
+          </fieldset>
+        </>
+      ) : null}
       {change.isError ? <Notice tone="error">{describeError(change.error)}</Notice> : null}
       {change.isSuccess && !form.formState.isDirty ? (
         <Notice tone="info">Saved. Tablets follow it at their next check with the server.</Notice>

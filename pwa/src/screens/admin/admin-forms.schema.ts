@@ -1,6 +1,13 @@
 // Admin form shapes. Roles come from the shared identity schema; the server validates the same
 // bodies with its own schemas until shared/ carries admin wire schemas (then use those here).
-import { roleSchema } from '@fuselight/shared';
+import {
+  PASSPHRASE_CHARACTER_CLASSES,
+  PASSPHRASE_POLICY_MIN_LENGTH,
+  clinicSettingsSchema,
+  roleSchema,
+  unlockWithoutHardwareSchema,
+  type ClinicSettings,
+} from '@fuselight/shared';
 import { z } from 'zod';
 
 export const invitePersonSchema = z.object({
@@ -28,3 +35,60 @@ export const registerTabletSchema = z.object({
   siteIds: z.array(z.string()).min(1, { error: 'Choose at least one site the tablet serves' }),
 });
 export type RegisterTabletForm = z.infer<typeof registerTabletSchema>;
+
+/**
+ * The clinic settings form: the rule for tablets without a platform authenticator laid out flat
+ * (a choice, a length and kinds of character), checked with the shared schema on save.
+ */
+export const clinicSettingsFormSchema = z
+  .object({
+    unsyncedWarningHours: clinicSettingsSchema.shape.unsyncedWarningHours,
+    unlockRule: z.enum(['pin-only', 'passphrase'], { error: 'Choose PIN only or a passphrase' }),
+    passphraseMinLength: z.number({ error: 'Enter a number of characters' }),
+    requiredClasses: z.array(z.enum(PASSPHRASE_CHARACTER_CLASSES)),
+  })
+  .superRefine((form, context) => {
+    if (form.unlockRule !== 'passphrase') return;
+    const checked = unlockWithoutHardwareSchema.safeParse(toUnlockRule(form));
+    if (checked.success) return;
+    for (const issue of checked.error.issues) {
+      const length = issue.path[0] === 'minLength';
+      context.addIssue({
+        code: 'custom',
+        path: [length ? 'passphraseMinLength' : 'requiredClasses'],
+        message: length ? `The passphrase length ${issue.message}` : issue.message,
+      });
+    }
+  });
+export type ClinicSettingsForm = z.infer<typeof clinicSettingsFormSchema>;
+
+function toUnlockRule(form: ClinicSettingsForm): ClinicSettings['unlockWithoutHardware'] {
+  return form.unlockRule === 'pin-only'
+    ? { rule: 'pin-only' }
+    : {
+        rule: 'passphrase',
+        minLength: form.passphraseMinLength,
+        requiredClasses: PASSPHRASE_CHARACTER_CLASSES.filter((c) =>
+          form.requiredClasses.includes(c),
+        ),
+      };
+}
+
+export function clinicSettingsForm(settings: ClinicSettings): ClinicSettingsForm {
+  const rule = settings.unlockWithoutHardware;
+  return {
+    unsyncedWarningHours: settings.unsyncedWarningHours,
+    unlockRule: rule.rule,
+    passphraseMinLength: rule.rule === 'passphrase' ? rule.minLength : 14,
+    requiredClasses: rule.rule === 'passphrase' ? rule.requiredClasses : [],
+  };
+}
+
+export function clinicSettingsFromForm(form: ClinicSettingsForm): ClinicSettings {
+  return {
+    unsyncedWarningHours: form.unsyncedWarningHours,
+    unlockWithoutHardware: toUnlockRule(form),
+  };
+}
+
+export { PASSPHRASE_POLICY_MIN_LENGTH };

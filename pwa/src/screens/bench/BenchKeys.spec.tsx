@@ -33,6 +33,26 @@ describe('the Bench by keys', () => {
     );
   });
 
+  it('counts every press of quick presses, each from the value the one before recorded', async () => {
+    bench.renderBench('objective-angle');
+    await screen.findByRole('heading', { name: 'Objective angle', level: 2 });
+    // A pedal pressed three times in a row: the keys arrive before React draws the step again.
+    // (Dispatched as the browser does, outside testing-library's act(), which would draw at once.)
+    for (let press = 0; press < 3; press += 1) {
+      window.dispatchEvent(
+        new KeyboardEvent('keydown', { key: 'ArrowUp', code: 'ArrowUp', bubbles: true }),
+      );
+    }
+    await waitFor(() =>
+      expect(announcer().textContent).toBe(
+        'Objective horizontal angle: eso, convergent 3.0 degrees',
+      ),
+    );
+    await waitFor(async () =>
+      expect((await bench.section('amblyoscopeAngles'))?.objectiveHorizontalDeg).toBe(3),
+    );
+  });
+
   it('never acts while a text field is typed in, and acts again after Enter', async () => {
     const user = userEvent.setup();
     bench.renderBench('setup');

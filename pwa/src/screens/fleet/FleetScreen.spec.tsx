@@ -152,6 +152,7 @@ describe('the Fleet', () => {
       other(1, 'Outreach van', 'passphrase'),
       other(2, 'Spare tablet', null),
       other(3, 'Old tablet', 'pin-only'),
+      other(5, 'Front desk tablet', 'hardware'),
       // A tablet of an earlier build whose Fleet row has no such field at all.
       (({ keyProtection: _dropped, ...rest }) => rest)(other(4, 'Desk drawer', 'hardware')),
     ]);
@@ -163,6 +164,9 @@ describe('the Fleet', () => {
     expect(await dataKey(/Orthoptics room 2/)).toBe('PIN only (can be opened offline if copied)');
     expect(await dataKey(/Outreach van/)).toBe('Passphrase');
     expect(await dataKey(/Spare tablet/)).toBe('Not reported');
+    expect(await dataKey(/Front desk tablet/)).toBe(
+      'Hardware-backed (each PIN needs this tablet’s security hardware)',
+    );
     expect(await dataKey(/Desk drawer/)).toBe('Not reported');
     const risk = screen.getByText(/are protected by a PIN only/).closest('[role="status"]');
     expect(risk?.textContent).toContain(

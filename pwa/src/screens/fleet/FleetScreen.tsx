@@ -31,7 +31,7 @@ const STATE_WORDS: Record<FleetDevice['state'], string> = {
 export const KEY_PROTECTION_WORDS: Record<KeyProtectionKind, string> = {
   'pin-only': 'PIN only',
   passphrase: 'Passphrase',
-  hardware: 'Hardware key with PIN',
+  hardware: 'Hardware-backed',
   'server-only': 'Online sign-in only',
   unprotected: 'Not protected yet',
 };
@@ -42,7 +42,7 @@ export function keyProtectionWords(kind: KeyProtectionKind | null | undefined): 
 
 /** The risk of PIN-only tablets, as docs/threat-model.md gives it. */
 export const PIN_ONLY_RISK =
-  'A PIN alone protects these tablets’ data only while the tablet stays out of an attacker’s hands. Someone who copies the browser profile can try every PIN offline, where the wrong-PIN limit does not count: a high-end graphics card tries every 6-digit PIN in about 3 minutes. A passphrase of 12 or more characters that cannot be guessed resists this; revoke a lost tablet at once.';
+  'A PIN alone protects these tablets’ data only while the tablet stays out of an attacker’s hands. Someone who copies the browser profile can try every PIN offline, where the wrong-PIN limit does not count: a high-end graphics card tries every 6-digit PIN in about 3 minutes. A tablet whose screen lock has security hardware makes each PIN need it too (hardware-backed); elsewhere, the clinic setting for tablets without it can ask for a passphrase that cannot be guessed. Revoke a lost tablet at once.';
 
 function when(iso: string | null | undefined): string {
   return iso ? new Date(iso).toLocaleString() : 'never';
@@ -208,6 +208,9 @@ function TabletRow({ tablet, sitesText }: { tablet: FleetDevice; sitesText: stri
           {keyProtectionWords(tablet.keyProtection)}
           {tablet.keyProtection === 'pin-only' ? (
             <span className="fl-muted"> (can be opened offline if copied)</span>
+          ) : null}
+          {tablet.keyProtection === 'hardware' ? (
+            <span className="fl-muted"> (each PIN needs this tablet’s security hardware)</span>
           ) : null}
           {tablet.keyProtection === 'unprotected' ? (
             <span className="fl-muted"> (stored unencrypted until someone unlocks it)</span>

@@ -1,18 +1,24 @@
 // Full online sign-in with e-mail and password. On an enrolled tablet the session is bound to
 // the tablet; afterwards the person is offered a PIN for offline unlock.
-import { zodResolver } from '@hookform/resolvers/zod';
-import { loginRequestSchema } from '@fuselight/shared/identity';
 import { useMutation } from '@tanstack/react-query';
-import { useForm } from 'react-hook-form';
+import { useForm, type Resolver } from 'react-hook-form';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
-import type { z } from 'zod';
 import { useAuthState } from '../../auth/SessionProvider';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Notice, TextField, describeError } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
 
-export const signInFormSchema = loginRequestSchema.pick({ email: true, password: true });
-type SignInForm = z.infer<typeof signInFormSchema>;
+import type { SignInForm } from './sign-in-form';
+
+// The form's zod schema (and zod) load at the first Sign in press, not with the first screen:
+// a sign-in needs the network anyway, and the app's files are precached once installed.
+const signInResolver: Resolver<SignInForm> = async (values, context, options) => {
+  const [{ zodResolver }, { signInFormSchema }] = await Promise.all([
+    import('@hookform/resolvers/zod'),
+    import('./sign-in-form'),
+  ]);
+  return zodResolver(signInFormSchema)(values, context, options);
+};
 
 export default function SignInScreen() {
   const [params] = useSearchParams();
@@ -24,7 +30,7 @@ export default function SignInScreen() {
     handleSubmit,
     formState: { errors },
   } = useForm<SignInForm>({
-    resolver: zodResolver(signInFormSchema),
+    resolver: signInResolver,
     defaultValues: { email: params.get('email') ?? '', password: '' },
   });
   const signIn = useMutation({

@@ -8,6 +8,7 @@ import { IdentityApi } from '../../auth/identity-api';
 import { SessionProvider } from '../../auth/SessionProvider';
 import { SessionStore } from '../../auth/session-store';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
+import { fakeHardware, type FakeHardware } from '../../data/crypto/fake-hardware.fixture';
 import UnlockScreen from './UnlockScreen';
 
 beforeEach(async () => {
@@ -15,11 +16,12 @@ beforeEach(async () => {
 });
 afterEach(cleanup);
 
-async function tabletWithTwoPeople() {
+async function tabletWithTwoPeople(hardware?: FakeHardware) {
   const server = fakeClinicServer(() => Date.now());
   const store = new SessionStore({
     api: new IdentityApi({ fetch: server.fetch }),
     countOutbox: async () => 0,
+    ...(hardware ? { hardware } : {}),
   });
   await store.load();
   await store.enrol(server.enrolmentCode);
@@ -77,5 +79,39 @@ describe('the person switcher', () => {
     await user.click(screen.getByRole('button', { name: 'Unlock' }));
     await waitFor(() => expect(document.body.textContent).toBe('Home'));
     expect(store.getSnapshot().activeUser?.id).toBe(AMARA.id);
+  });
+
+  it('says in words when the screen lock’s key is gone, offers a password sign-in, and loses nothing', async () => {
+    const hardware = fakeHardware();
+    const store = await tabletWithTwoPeople(hardware);
+    const slotsBefore = await store.keyRing.slotSummary();
+    expect(slotsBefore.hardwareUserIds).toEqual([AMARA.id]);
+    const user = userEvent.setup();
+    // The screen lock was reset: the credential the PIN's slot needs is gone.
+    hardware.remove(hardware.credentialIds()[0]!);
+    await user.click(await screen.findByRole('button', { name: 'Unlock as Amara Lindqvist' }));
+    await user.type(screen.getByLabelText('PIN for Amara Lindqvist'), '515151');
+    await user.click(screen.getByRole('button', { name: 'Unlock' }));
+    await waitFor(() =>
+      expect(screen.getByRole('alert').textContent).toContain(
+        'This tablet’s screen lock did not confirm you',
+      ),
+    );
+    expect(screen.getByRole('alert').textContent).toContain('nothing on this tablet is lost');
+    expect(
+      screen.getByRole('link', { name: 'Sign in with your password' }).getAttribute('href'),
+    ).toBe(`/signin?email=${encodeURIComponent(AMARA.email)}`);
+    // Not counted as a wrong PIN, nobody unlocked, every slot still there.
+    expect(document.body.textContent).toContain('5 PIN attempts left');
+    expect(store.getSnapshot().activeUser).toBeNull();
+    expect(await store.keyRing.slotSummary()).toEqual(slotsBefore);
+    // An online sign-in opens the key with the server's slot.
+    await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
+    expect(store.keyRing.vault.unlocked).toBe(true);
+    // …and offers to set the PIN again, since its screen-lock key did not answer.
+    expect(store.getSnapshot().pinOfferFor).toBe(AMARA.id);
+    expect(store.getSnapshot().people.find((p) => p.user.id === AMARA.id)?.pinHardwareRefused).toBe(
+      true,
+    );
   });
 });

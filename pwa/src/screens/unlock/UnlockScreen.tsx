@@ -8,7 +8,7 @@ import { siteLabel } from '../../auth/site-names';
 import { useAuthActions } from '../../auth/useAuthActions';
 import { Button, Notice, TextField } from '../../auth/ui/controls';
 import { IdentityPage } from '../../auth/ui/IdentityPage';
-import { PIN_RULE, pinSchema } from '../../auth/pin-hash';
+import { PIN_RULE, pinSchema } from '../../auth/pin-schemas';
 
 function whyNoPin(person: KnownPerson): string {
   if (person.signInRequired) return person.signInRequired.reason;
@@ -26,6 +26,8 @@ export default function UnlockScreen() {
   const [chosen, setChosen] = useState<string | null>(null);
   const [pin, setPin] = useState('');
   const [message, setMessage] = useState<string | null>(null);
+  // The screen lock's hardware did not answer: the way in is an online sign-in.
+  const [hardwareFailed, setHardwareFailed] = useState(false);
   const [busy, setBusy] = useState(false);
   const person = people.find((p) => p.user.id === chosen) ?? null;
 
@@ -37,6 +39,7 @@ export default function UnlockScreen() {
       return;
     }
     setBusy(true);
+    setHardwareFailed(false);
     const result = await actions.unlock(person.user.id, pin);
     setBusy(false);
     setPin('');
@@ -44,7 +47,10 @@ export default function UnlockScreen() {
       navigate(from?.startsWith('/') && !from.startsWith('/unlock') ? from : '/', {
         replace: true,
       });
-    else setMessage(result.message);
+    else {
+      setMessage(result.message);
+      setHardwareFailed(result.reason === 'hardware');
+    }
   };
 
   if (!loaded)
@@ -77,6 +83,7 @@ export default function UnlockScreen() {
                   onClick={() => {
                     setChosen(p.user.id);
                     setMessage(null);
+                    setHardwareFailed(false);
                   }}
                   aria-pressed={chosen === p.user.id}
                 >
@@ -109,9 +116,19 @@ export default function UnlockScreen() {
                   onChange={(e) => setPin(e.target.value)}
                   error={message ?? undefined}
                 />
-                <Button type="submit" disabled={busy}>
-                  {busy ? 'Checking…' : 'Unlock'}
-                </Button>
+                <div className="fl-id-row">
+                  <Button type="submit" disabled={busy}>
+                    {busy ? 'Checking…' : 'Unlock'}
+                  </Button>
+                  {hardwareFailed ? (
+                    <Link
+                      className="fl-id-button"
+                      to={`/signin?email=${encodeURIComponent(p.user.email)}`}
+                    >
+                      Sign in with your password
+                    </Link>
+                  ) : null}
+                </div>
               </form>
             ) : null}
           </li>

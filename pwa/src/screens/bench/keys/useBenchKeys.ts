@@ -2,6 +2,7 @@
 // on this tablet), never while a text field is being typed in, and lets every other key do what
 // it does on the page (Tab, Enter and Space still move between and press the buttons).
 import { useEffect, useLayoutEffect, useRef } from 'react';
+import { flushSync } from 'react-dom';
 import {
   type BenchAction,
   type BenchKeyMap,
@@ -41,7 +42,10 @@ export function useBenchKeys(options: {
       event.preventDefault();
       event.stopPropagation();
       if (event.repeat && !REPEATING_ACTIONS.has(action)) return;
-      latest.current.onAction(action);
+      // The control's change is drawn before this key returns. The action reaches the control
+      // as a custom DOM event, which React would otherwise draw later (at default priority), so
+      // a quick second press would step from the value before the first and one press be lost.
+      flushSync(() => latest.current.onAction(action));
     };
     window.addEventListener('keydown', listener, true);
     return () => window.removeEventListener('keydown', listener, true);

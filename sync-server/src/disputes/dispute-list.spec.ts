@@ -5,7 +5,7 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DisputePageView, DisputeRowView, ReviewSummary } from '@fuselight/shared';
-import { sqlRows } from '../records/sql';
+import { sqlRows } from '../database/sql';
 import {
   bearer,
   createSite,

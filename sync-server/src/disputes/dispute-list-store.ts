@@ -6,7 +6,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { BadRequestException } from '@nestjs/common';
 import { DISPUTE_SORTS, type DisputeQuery, type DisputeSort } from '@fuselight/shared';
 import { z } from 'zod';
-import { jsonParam, sqlRows, type SqlBinding } from '../records/sql';
+import { jsonParam, sqlRows, type SqlBinding } from '../database/sql';
 
 const UUID_PATTERN = '^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$';
 

@@ -1,9 +1,8 @@
 // The Disputes table of the Review desk: the open disputes of the supervisor's sites, each with
 // the patient, visit and site it belongs to and its candidates named (people, tablets, times),
-// filtered, sorted, paged and counted in SQL (dispute-list-store.ts); and one dispute with its
-// record and the visit's related records for context. Resolution itself goes through the
-// conflicts module's resolve route; on a Signed visit the review_addendum trigger records an
-// Addendum, which that route then publishes.
+// filtered, sorted, paged and counted in SQL (dispute-list-store.ts); one dispute with its
+// record and the visit's related records for context; and the desk tab's counts. Resolution goes
+// through POST /api/conflicts/:id/resolve (DisputeResolutionService).
 import { IsolationLevel } from '@mikro-orm/core';
 import { EntityManager } from '@mikro-orm/postgresql';
 import { Inject, Injectable, NotFoundException } from '@nestjs/common';
@@ -16,21 +15,11 @@ import {
 import type { AuthUser } from '../auth/auth-user';
 import { assertSiteAccess, sitesOf } from '../auth/scope';
 import { CLOCK, type Clock } from '../common/clock.provider';
+import { NameBook, hlcWallIso, isoOf, patientName, sitesByIds } from '../common/desk-names';
+import { RecordStore } from '../records/record-store';
 import type { StoredRecord } from '../records/stored-record';
-import { countOpenDisputes, pageOfOpenDisputes, tallyOpenDisputes } from './dispute-list-store';
-import {
-  NameBook,
-  countVisitsAwaitingCountersign,
-  disputeById,
-  disputesByIds,
-  hlcWallIso,
-  isoOf,
-  patientName,
-  recordsByIds,
-  sectionsOfVisits,
-  sitesByIds,
-  type StoredDisputeRow,
-} from './review-store';
+import { VisitRecords } from '../records/visit-records';
+import { DisputeStore, type StoredDisputeRow } from './dispute-store';
 import type {
   DisputeDetailView,
   DisputePageView,
@@ -48,14 +37,17 @@ export class DisputeDeskService {
   constructor(
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(CLOCK) private readonly clock: Clock,
+    @Inject(DisputeStore) private readonly disputes: DisputeStore,
+    @Inject(RecordStore) private readonly records: RecordStore,
+    @Inject(VisitRecords) private readonly visits: VisitRecords,
   ) {}
 
   async summary(user: AuthUser): Promise<ReviewSummary> {
     const em = this.em.fork();
     const sites = sitesOf(user);
     return {
-      openDisputes: await countOpenDisputes(em, sites),
-      awaitingCountersign: await countVisitsAwaitingCountersign(em, sites),
+      openDisputes: await this.disputes.countOpen(em, sites),
+      awaitingCountersign: await this.visits.countAwaitingCountersign(em, sites),
     };
   }
 
@@ -68,15 +60,17 @@ export class DisputeDeskService {
     // One snapshot for the page and its counts, so they agree while disputes open and close.
     return this.em.fork().transactional(
       async (em) => {
-        const page = await pageOfOpenDisputes(em, query, { siteIds: sites, openedBy });
-        const found = new Map((await disputesByIds(em, page.ids)).map((row) => [row.id, row]));
+        const page = await this.disputes.pageOfOpen(em, query, { siteIds: sites, openedBy });
+        const found = new Map(
+          (await this.disputes.byIds(em, page.ids)).map((row) => [row.id, row]),
+        );
         const items = await this.describe(
           em,
           page.ids
             .map((id) => found.get(id))
             .filter((row): row is StoredDisputeRow => row !== undefined),
         );
-        const open = await tallyOpenDisputes(em, sites);
+        const open = await this.disputes.tallyOpen(em, sites);
         const siteNames = await sitesByIds(em, open.siteIds);
         return {
           items,
@@ -99,17 +93,17 @@ export class DisputeDeskService {
 
   async detail(user: AuthUser, id: string): Promise<DisputeDetailView> {
     const em = this.em.fork();
-    const dispute = await disputeById(em, id);
+    const dispute = await this.disputes.byId(em, id);
     if (!dispute) throw new NotFoundException(`No dispute has the id ${id}.`);
     assertSiteAccess(user, dispute.site_id);
     const [row] = await this.describe(em, [dispute]);
-    const records = await recordsByIds(em, [dispute.record_id]);
+    const records = await this.records.byIds(em, [dispute.record_id]);
     const record = records.get(dispute.record_id);
     if (!row || !record)
       throw new NotFoundException(`The record of dispute ${id} is not on the server.`);
     const related =
       row.visitId && record.collection !== 'visit'
-        ? (await sectionsOfVisits(em, [row.visitId])).filter(
+        ? (await this.visits.sectionsOf(em, [row.visitId])).filter(
             (s) => s.collection === record.collection && s.id !== record.id,
           )
         : [];
@@ -128,7 +122,7 @@ export class DisputeDeskService {
     disputes: readonly StoredDisputeRow[],
   ): Promise<DisputeRowView[]> {
     if (disputes.length === 0) return [];
-    const records = await recordsByIds(
+    const records = await this.records.byIds(
       em,
       disputes.map((c) => c.record_id),
     );
@@ -136,14 +130,14 @@ export class DisputeDeskService {
       !record ? null : record.collection === 'visit' ? record.id : str(record.fields.visitId);
     const patientIdOf = (record: StoredRecord | undefined): string | null =>
       !record ? null : record.collection === 'patient' ? record.id : str(record.fields.patientId);
-    const visits = await recordsByIds(
+    const visits = await this.records.byIds(
       em,
       [...records.values()].map(visitIdOf).filter((id): id is string => id !== null),
     );
     const patientIds = [...records.values()]
       .map(patientIdOf)
       .filter((id): id is string => id !== null);
-    const patients = await recordsByIds(em, patientIds);
+    const patients = await this.records.byIds(em, patientIds);
     const sites = await sitesByIds(
       em,
       disputes.map((c) => c.site_id),

@@ -12,8 +12,8 @@ import {
   type CollectionName,
   type JsonValue,
 } from '@fuselight/shared';
-import type { ServerWriter } from '../records/server-writer';
-import type { StoredRecord } from '../records/stored-record';
+import type { ServerWriter } from './server-writer';
+import type { StoredRecord } from './stored-record';
 
 export interface ServerChange {
   recordId: string;

@@ -1,9 +1,10 @@
 // Disputes (sync_conflict rows, "conflicts" on the wire) opened by the merge rule, for
-// supervisors of the record's site: the list (paged by dispute id, which sorts by opening time)
-// and the resolution, which writes the chosen value as a new version of the field, stamped by
-// the supervisor, so every device gets it on its next pull. A resolution on a Signed visit also
-// records an Addendum (the review_addendum trigger, in the same transaction); once the
-// transaction has committed, the resolution publishes it for tablets (AddendumPublisher).
+// supervisors of the record's site: the list of GET /api/conflicts (paged by dispute id, which
+// sorts by opening time) and the resolution, which writes the chosen value as a new version of
+// the field, stamped by the supervisor, so every device gets it on its next pull. A resolution on
+// a Signed or Countersigned visit also records an Addendum in the same transaction
+// (AddendumStore); once the transaction has committed, the resolution publishes it for tablets
+// (AddendumPublisher).
 import { EntityManager } from '@mikro-orm/postgresql';
 import {
   BadRequestException,
@@ -30,38 +31,17 @@ import { hasSiteAccess, sitesOf } from '../auth/scope';
 import { CLOCK, type Clock } from '../common/clock.provider';
 import { RecordStore } from '../records/record-store';
 import { ServerWriter } from '../records/server-writer';
-import { jsonParam, sqlRows } from '../records/sql';
-import type { StoredCandidate } from '../records/stored-record';
-import { AddendumPublisher } from '../review/addendum-publisher.service';
+import { AddendumPublisher } from './addendum-publisher.service';
+import { AddendumStore } from './addendum-store';
+import { DisputeStore, type DisputeWithProvisional } from './dispute-store';
 
 export const DISPUTE_PAGE_SIZE = 50;
 
-/** A dispute as the list and the resolution read it, with the field's value on the record. */
-interface DisputeListRow {
-  id: string;
-  collection: CollectionName;
-  record_id: string;
-  site_id: string;
-  field: string;
-  status: 'open' | 'resolved';
-  opened_at: Date | string;
-  candidates: StoredCandidate[];
-  resolved_at: Date | string | null;
-  resolved_by: string | null;
-  resolved_value: JsonValue | null;
-  note: string | null;
-  provisional: JsonValue | null;
-}
-
-const DISPUTE_COLUMNS = `c."id", c."collection", c."record_id", c."site_id", c."field", c."status", c."opened_at",
-  c."candidates", c."resolved_at", c."resolved_by", c."resolved_value", c."note",
-  case when c."field" = '${TOMBSTONE_FIELD}' then to_jsonb(r."deleted") else r."fields" -> c."field" end as "provisional"`;
-
-function itemOf(row: DisputeListRow): ConflictItem {
+function itemOf(row: DisputeWithProvisional): ConflictItem {
   const resolved = row.status === 'resolved';
   return {
     id: row.id,
-    collection: row.collection,
+    collection: row.collection as CollectionName,
     recordId: row.record_id,
     field: row.field,
     status: row.status,
@@ -94,39 +74,27 @@ function decodeCursor(cursor: string): string {
 }
 
 @Injectable()
-export class ConflictsService {
+export class DisputeResolutionService {
   constructor(
     @Inject(EntityManager) private readonly em: EntityManager,
     @Inject(CLOCK) private readonly clock: Clock,
     @Optional() @Inject(AuditService) private readonly audit: AuditService | null,
-    @Inject(AddendumPublisher) private readonly addenda: AddendumPublisher,
-    @Inject(RecordStore) private readonly store: RecordStore,
+    @Inject(AddendumPublisher) private readonly publisher: AddendumPublisher,
+    @Inject(AddendumStore) private readonly addenda: AddendumStore,
+    @Inject(DisputeStore) private readonly disputes: DisputeStore,
+    @Inject(RecordStore) private readonly records: RecordStore,
     @Inject(ServerWriter) private readonly writer: ServerWriter,
   ) {}
 
   async list(user: AuthUser, query: ConflictListQuery): Promise<ConflictListResponse> {
-    const sites = sitesOf(user);
     const after = query.cursor ? decodeCursor(query.cursor) : null;
-    const rows = await sqlRows<DisputeListRow>(
-      this.em.fork(),
-      `select ${DISPUTE_COLUMNS}
-         from "sync_conflict" c join "sync_record" r on r."id" = c."record_id"
-        where c."site_id" in (select jsonb_array_elements_text(?::jsonb)::uuid)
-          and (?::text is null or c."status" = ?::text)
-          and (?::uuid is null or c."record_id" = ?::uuid)
-          and (?::uuid is null or c."id" > ?::uuid)
-        order by c."id" limit ?`,
-      [
-        jsonParam(sites),
-        query.status ?? null,
-        query.status ?? null,
-        query.recordId ?? null,
-        query.recordId ?? null,
-        after,
-        after,
-        DISPUTE_PAGE_SIZE + 1,
-      ],
-    );
+    const rows = await this.disputes.pageWithProvisional(this.em.fork(), {
+      siteIds: sitesOf(user),
+      status: query.status ?? null,
+      recordId: query.recordId ?? null,
+      after,
+      limit: DISPUTE_PAGE_SIZE + 1,
+    });
     const page = rows.slice(0, DISPUTE_PAGE_SIZE);
     const last = page.at(-1);
     return {
@@ -137,27 +105,18 @@ export class ConflictsService {
 
   async resolve(
     user: AuthUser,
-    conflictId: string,
+    disputeId: string,
     body: ResolveConflictRequest,
   ): Promise<ConflictItem> {
     const now = this.clock.now();
-    const resolved = await this.em.fork().transactional(async (em) => {
+    const { item, addendumId } = await this.em.fork().transactional(async (em) => {
       await this.writer.begin(em);
-      const [found] = await sqlRows<{ record_id: string }>(
-        em,
-        `select "record_id" from "sync_conflict" where "id" = ?`,
-        [conflictId],
-      );
-      if (!found) throw new NotFoundException(`No dispute has the id ${conflictId}.`);
+      const recordId = await this.disputes.recordIdOf(em, disputeId);
+      if (!recordId) throw new NotFoundException(`No dispute has the id ${disputeId}.`);
       // Same lock order as a push: the record first, then its dispute.
-      const record = (await this.store.lockForUpdate(em, [found.record_id])).get(found.record_id);
-      const [row] = await sqlRows<DisputeListRow>(
-        em,
-        `select ${DISPUTE_COLUMNS} from "sync_conflict" c join "sync_record" r on r."id" = c."record_id"
-          where c."id" = ? for update of c`,
-        [conflictId],
-      );
-      if (!record || !row) throw new NotFoundException(`No dispute has the id ${conflictId}.`);
+      const record = (await this.records.lockForUpdate(em, [recordId])).get(recordId);
+      const row = await this.disputes.lockForResolution(em, disputeId);
+      if (!record || !row) throw new NotFoundException(`No dispute has the id ${disputeId}.`);
       if (!hasSiteAccess(user, row.site_id) || !hasSiteAccess(user, record.siteId)) {
         throw new ForbiddenException(
           `This dispute belongs to site ${record.siteId}, which is not one of your sites.`,
@@ -168,8 +127,7 @@ export class ConflictsService {
           `This dispute was already resolved at ${new Date(row.resolved_at ?? now).toISOString()}.`,
         );
       }
-      const value = validateResolution(row.collection, row.field, body.value);
-
+      const value = validateResolution(row.collection as CollectionName, row.field, body.value);
       // The supervisor's stamp is later than every candidate and every stamp on the record; the
       // write does not join the dispute it resolves.
       const written = await this.writer.writeFields(em, {
@@ -179,12 +137,12 @@ export class ConflictsService {
         deviceId: user.deviceId,
         now,
         after: row.candidates.map((candidate) => candidate.hlc),
-        resolving: conflictId,
+        resolving: disputeId,
       });
-      if (!written) throw new NotFoundException(`No dispute has the id ${conflictId}.`);
+      if (!written) throw new NotFoundException(`No dispute has the id ${disputeId}.`);
       const { version } = written;
-      await this.store.markResolved(em, {
-        conflictId,
+      await this.disputes.markResolved(em, {
+        disputeId,
         at: now,
         by: user.userId,
         device: written.stamp.device,
@@ -192,6 +150,8 @@ export class ConflictsService {
         version,
         note: body.note,
       });
+      // On a Signed or Countersigned visit the resolution is an Addendum, recorded with it.
+      const addendumId = await this.addenda.recordForResolution(em, disputeId);
       await this.audit?.record(em, {
         kind: 'conflict.resolved',
         actorId: user.userId,
@@ -199,20 +159,28 @@ export class ConflictsService {
         siteId: record.siteId,
         subjectType: record.collection,
         subjectId: record.id,
-        detail: { conflictId, field: row.field, version, candidates: row.candidates.length },
+        detail: {
+          conflictId: disputeId,
+          field: row.field,
+          version,
+          candidates: row.candidates.length,
+        },
       });
-      return itemOf({
-        ...row,
-        status: 'resolved',
-        resolved_at: now,
-        resolved_by: user.userId,
-        resolved_value: value,
-        note: body.note,
-      });
+      return {
+        addendumId,
+        item: itemOf({
+          ...row,
+          status: 'resolved',
+          resolved_at: now,
+          resolved_by: user.userId,
+          resolved_value: value,
+          note: body.note,
+        }),
+      };
     });
-    // Committed: the Addendum a Signed visit's dispute recorded reaches tablets with the value.
-    await this.addenda.publishAfterResolution(conflictId);
-    return resolved;
+    // Committed: the Addendum reaches tablets with the value.
+    if (addendumId) await this.publisher.publishAfterResolution(addendumId, disputeId);
+    return item;
   }
 }
 

@@ -1,0 +1,179 @@
+// The app of a signed-in person: Ionic's shell, tab bar and every screen, with the sync engine.
+// It is its own chunk, loaded once someone is signed in or unlocked (app/App.tsx): sign-in,
+// PIN unlock and enrolment are drawn without Ionic, so a tablet's first screen stays small.
+import './ionic-setup';
+import {
+  IonApp,
+  IonIcon,
+  IonLabel,
+  IonRouterOutlet,
+  IonTabBar,
+  IonTabButton,
+  IonTabs,
+} from '@ionic/react';
+import { IonReactRouter } from '@ionic/react-router';
+import {
+  businessOutline,
+  calendarOutline,
+  cloudUploadOutline,
+  peopleOutline,
+  personCircleOutline,
+  shieldCheckmarkOutline,
+  tabletPortraitOutline,
+} from 'ionicons/icons';
+import type { Role } from '@fuselight/shared';
+import { Suspense, type ReactNode } from 'react';
+import { Route, useLocation } from 'react-router-dom';
+import { canSee } from '../auth/access';
+import { HomeRedirect, RequireArea } from '../auth/IdentityGate';
+import { useSession } from '../auth/session-context';
+import { SignInPrompt } from '../auth/SignInPrompt';
+import { IdentityFrameContext, type IdentityFrameProps } from '../auth/ui/IdentityPage';
+import { NewerRecordsUpdateCheck } from '../components/NewerRecordsUpdateCheck';
+import { IonicIdentityFrame } from './IonicIdentityFrame';
+import { Loading } from './Loading';
+import {
+  BenchScreen,
+  ChartScreen,
+  FleetScreen,
+  OutboxScreen,
+  PeopleScreen,
+  PersonScreen,
+  PinSetupScreen,
+  ReviewDeskScreen,
+  ReviewTabBadge,
+  SitesScreen,
+  SyncDock,
+  SyncRuntime,
+  TodayScreen,
+  VisitScreen,
+} from './signed-in-routes';
+import { EnrolScreen, SignInScreen, UnlockScreen } from './routes';
+
+const screen = (node: ReactNode) => <Suspense fallback={<Loading />}>{node}</Suspense>;
+const clinical = (node: ReactNode) => <RequireArea area="clinical">{screen(node)}</RequireArea>;
+const admin = (node: ReactNode) => <RequireArea area="admin">{screen(node)}</RequireArea>;
+
+function AppTabs() {
+  const role = useSession().user?.role;
+  // The Bench is full screen and carries its own sync indicator.
+  const onBench = useLocation().pathname.startsWith('/bench/');
+  return <AppTabsInner role={role} dock={canSee(role, 'clinical') && !onBench} />;
+}
+
+function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean }) {
+  return (
+    <IonTabs>
+      <IonRouterOutlet>
+        {/* Sign-in, PIN unlock and enrolment: all a tablet shows before someone is signed in. */}
+        <Route path="/signin" element={screen(<SignInScreen />)} />
+        <Route path="/unlock" element={screen(<UnlockScreen />)} />
+        <Route path="/enrol" element={screen(<EnrolScreen />)} />
+        <Route path="/today" element={clinical(<TodayScreen />)} />
+        <Route path="/chart/:patientId" element={clinical(<ChartScreen />)} />
+        <Route path="/visit/:visitId" element={clinical(<VisitScreen />)} />
+        <Route path="/outbox" element={clinical(<OutboxScreen />)} />
+        <Route path="/bench/:visitId" element={clinical(<BenchScreen />)} />
+        <Route
+          path="/review"
+          element={<RequireArea area="review">{screen(<ReviewDeskScreen />)}</RequireArea>}
+        />
+        <Route path="/fleet" element={admin(<FleetScreen />)} />
+        <Route path="/people" element={admin(<PeopleScreen />)} />
+        <Route path="/sites" element={admin(<SitesScreen />)} />
+        <Route
+          path="/person"
+          element={<RequireArea area="self">{screen(<PersonScreen />)}</RequireArea>}
+        />
+        <Route
+          path="/pin"
+          element={<RequireArea area="self">{screen(<PinSetupScreen />)}</RequireArea>}
+        />
+        <Route path="/" element={<HomeRedirect />} />
+        <Route path="*" element={<HomeRedirect />} />
+      </IonRouterOutlet>
+      {dock ? (
+        <Suspense fallback={<div slot="bottom" className="fl-sync-dock" />}>
+          <SyncDock />
+        </Suspense>
+      ) : null}
+      <IonTabBar
+        slot="bottom"
+        aria-label="Fuselight sections"
+        style={role ? undefined : { display: 'none' }}
+      >
+        {canSee(role, 'clinical') ? (
+          <IonTabButton tab="today" href="/today">
+            <IonIcon icon={calendarOutline} aria-hidden="true" />
+            <IonLabel>Today</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'clinical') ? (
+          <IonTabButton tab="outbox" href="/outbox">
+            <IonIcon icon={cloudUploadOutline} aria-hidden="true" />
+            <IonLabel>Outbox</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'review') ? (
+          <IonTabButton tab="review" href="/review">
+            <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
+            <IonLabel>Review desk</IonLabel>
+            <Suspense fallback={null}>
+              <ReviewTabBadge />
+            </Suspense>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'admin') ? (
+          <IonTabButton tab="fleet" href="/fleet">
+            <IonIcon icon={tabletPortraitOutline} aria-hidden="true" />
+            <IonLabel>Fleet</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'admin') ? (
+          <IonTabButton tab="people" href="/people">
+            <IonIcon icon={peopleOutline} aria-hidden="true" />
+            <IonLabel>People</IonLabel>
+          </IonTabButton>
+        ) : null}
+        {canSee(role, 'admin') ? (
+          <IonTabButton tab="sites" href="/sites">
+            <IonIcon icon={businessOutline} aria-hidden="true" />
+            <IonLabel>Sites</IonLabel>
+          </IonTabButton>
+        ) : null}
+        <IonTabButton tab="person" href="/person">
+          <IonIcon icon={personCircleOutline} aria-hidden="true" />
+          <IonLabel>You</IonLabel>
+        </IonTabButton>
+      </IonTabBar>
+    </IonTabs>
+  );
+}
+
+/** The sync engine runs once the tablet is enrolled and someone is signed in. */
+function SignedInSync() {
+  const { user, deviceId } = useSession();
+  if (!user || !deviceId) return null;
+  return (
+    <Suspense fallback={null}>
+      <SyncRuntime />
+      <NewerRecordsUpdateCheck />
+    </Suspense>
+  );
+}
+
+const ionicFrame = (props: IdentityFrameProps) => <IonicIdentityFrame {...props} />;
+
+export default function SignedInApp() {
+  return (
+    <IdentityFrameContext.Provider value={ionicFrame}>
+      <IonApp>
+        <IonReactRouter>
+          <AppTabs />
+          <SignInPrompt />
+          <SignedInSync />
+        </IonReactRouter>
+      </IonApp>
+    </IdentityFrameContext.Provider>
+  );
+}
