@@ -164,6 +164,42 @@ async function openBench(page: Page, visitId: string) {
 }
 
 /** The Bench's scroll area and the page: neither may need scrolling at 1280×800. */
+/**
+ * Starts recording layout shifts inside the Bench that move a control (a button, an answer, a
+ * field): a control that moves after it is drawn can put another under a finger between its
+ * sight and its tap. What moved is kept with how far it moved.
+ */
+async function recordControlShifts(page: Page) {
+  await page.evaluate(() => {
+    const CONTROL = 'button, input, select, textarea, label, a[href], [role="button"]';
+    const shifts: { step: string; moved: string }[] = [];
+    (window as unknown as { benchShifts: typeof shifts }).benchShifts = shifts;
+    type Source = {
+      node: Node | null;
+      previousRect: DOMRectReadOnly;
+      currentRect: DOMRectReadOnly;
+    };
+    new PerformanceObserver((list) => {
+      for (const entry of list.getEntries() as (PerformanceEntry & { sources?: Source[] })[]) {
+        for (const { node, previousRect: was, currentRect: now } of entry.sources ?? []) {
+          if (!(node instanceof Element) || !node.closest('.fl-bench')) continue;
+          if (!node.matches(CONTROL) && !node.querySelector(CONTROL)) continue;
+          const name = node.getAttribute('aria-label') ?? node.textContent?.trim().slice(0, 40);
+          shifts.push({
+            step: document.getElementById('fl-bench-step-title')?.textContent ?? '',
+            moved: `${node.tagName.toLowerCase()}.${[...node.classList].join('.')} “${name}” by (${Math.round(now.x - was.x)}, ${Math.round(now.y - was.y)}) px`,
+          });
+        }
+      }
+    }).observe({ type: 'layout-shift' });
+  });
+}
+
+const controlShifts = (page: Page) =>
+  page.evaluate(
+    () => (window as unknown as { benchShifts: { step: string; moved: string }[] }).benchShifts,
+  );
+
 async function expectFits(page: Page, step: string) {
   const size = await page.locator('.fl-bench').evaluate(async (bench) => {
     const content = bench.closest('ion-content') as HTMLElement & {
@@ -450,6 +486,7 @@ describe('the Bench by keys alone', () => {
     expect(keyPresses).toBeGreaterThan(0);
     const visitId = await startVisit(page, tapped);
     await openBench(page, visitId);
+    await recordControlShifts(page);
     const tap = async (locator: ReturnType<Page['locator']>) => {
       await locator.tap();
       taps += 1;
@@ -549,7 +586,10 @@ describe('the Bench by keys alone', () => {
       const rows = await serverSections(visitId);
       return rows.fusionalRanges?.convergenceRecoveryDeg === 30 ? rows : null;
     });
+    const shifts = await controlShifts(page);
     expect(fieldByField(onServer)).toEqual(expectedLines());
+    // No button, answer or field on the Bench moved under the finger while it was charted.
+    expect(shifts).toEqual([]);
 
     console.log(
       [

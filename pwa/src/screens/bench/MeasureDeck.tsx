@@ -217,12 +217,6 @@ export function MeasureDeck({
             onChange(selected.field, value);
           }}
         />
-        {selected.value === null && running !== null ? (
-          <p className="fl-muted fl-deck__start">
-            Starts at {describeReading(words(selected), selected.unit, running)}: not recorded until
-            you step it or mark it.
-          </p>
-        ) : null}
         {selected.mark ? (
           <div className="fl-deck__marks">
             {(['markLost', 'markBreak', 'markRecovery'] as const)
@@ -243,6 +237,13 @@ export function MeasureDeck({
                 </button>
               ))}
           </div>
+        ) : null}
+        {/* Under the marks, so its coming and going moves none of the buttons above it. */}
+        {selected.value === null && running !== null ? (
+          <p className="fl-muted fl-deck__start">
+            Starts at {describeReading(words(selected), selected.unit, running)}: not recorded until
+            you step it or mark it.
+          </p>
         ) : null}
         {children}
       </div>
