@@ -29,6 +29,7 @@ const clinician = newPerson('Kofi Brandt', 'orthoptist', {
 });
 const keyed = { given: 'Ines', family: `Tarrow${run}`, dob: '2016-09-02', number: `LK-${run}` };
 const tapped = { given: 'Milo', family: `Tarrow${run}`, dob: '2015-01-21', number: `LT-${run}` };
+const full = { given: 'Aster', family: `Tarrow${run}`, dob: '2014-06-30', number: `LF-${run}` };
 
 /** The findings both paths chart (the same as the Bench's other end-to-end file). */
 const EXPECTED: Record<string, Record<string, unknown>> = {
@@ -163,6 +164,42 @@ async function openBench(page: Page, visitId: string) {
 }
 
 /** The Bench's scroll area and the page: neither may need scrolling at 1280×800. */
+/**
+ * Starts recording layout shifts inside the Bench that move a control (a button, an answer, a
+ * field): a control that moves after it is drawn can put another under a finger between its
+ * sight and its tap. What moved is kept with how far it moved.
+ */
+async function recordControlShifts(page: Page) {
+  await page.evaluate(() => {
+    const CONTROL = 'button, input, select, textarea, label, a[href], [role="button"]';
+    const shifts: { step: string; moved: string }[] = [];
+    (window as unknown as { benchShifts: typeof shifts }).benchShifts = shifts;
+    type Source = {
+      node: Node | null;
+      previousRect: DOMRectReadOnly;
+      currentRect: DOMRectReadOnly;
+    };
+    new PerformanceObserver((list) => {
+      for (const entry of list.getEntries() as (PerformanceEntry & { sources?: Source[] })[]) {
+        for (const { node, previousRect: was, currentRect: now } of entry.sources ?? []) {
+          if (!(node instanceof Element) || !node.closest('.fl-bench')) continue;
+          if (!node.matches(CONTROL) && !node.querySelector(CONTROL)) continue;
+          const name = node.getAttribute('aria-label') ?? node.textContent?.trim().slice(0, 40);
+          shifts.push({
+            step: document.getElementById('fl-bench-step-title')?.textContent ?? '',
+            moved: `${node.tagName.toLowerCase()}.${[...node.classList].join('.')} “${name}” by (${Math.round(now.x - was.x)}, ${Math.round(now.y - was.y)}) px`,
+          });
+        }
+      }
+    }).observe({ type: 'layout-shift' });
+  });
+}
+
+const controlShifts = (page: Page) =>
+  page.evaluate(
+    () => (window as unknown as { benchShifts: { step: string; moved: string }[] }).benchShifts,
+  );
+
 async function expectFits(page: Page, step: string) {
   const size = await page.locator('.fl-bench').evaluate(async (bench) => {
     const content = bench.closest('ion-content') as HTMLElement & {
@@ -181,8 +218,35 @@ async function expectFits(page: Page, step: string) {
         .map((part) => `${part.className.split(' ')[0]} ${part.scrollHeight}`)
         .join(', '),
       viewport: window.innerHeight,
+      // Any scroll container inside the Bench (or clipping one) that holds more than it shows.
+      inner: [bench, ...bench.querySelectorAll<HTMLElement>('*')]
+        .filter((el) => {
+          const overflow = getComputedStyle(el).overflowY;
+          // Text for screen readers only is clipped to 1px on purpose.
+          if (el.clientHeight <= 1) return false;
+          return (
+            (overflow === 'auto' || overflow === 'scroll' || overflow === 'hidden') &&
+            el.scrollHeight > el.clientHeight + 1
+          );
+        })
+        .map((el) => `${el.className || el.tagName} ${el.scrollHeight}>${el.clientHeight}`),
+      // Any box of the step whose content spills out of it (drawn over its neighbours).
+      spilling: [...bench.querySelectorAll<HTMLElement>('.fl-bench-step__body *')]
+        .filter((el) => {
+          if (el.closest('svg, input, textarea, select') || el.clientWidth <= 1) return false;
+          return (
+            el.scrollWidth > el.clientWidth + 1 ||
+            (getComputedStyle(el).overflowY === 'visible' && el.scrollHeight > el.clientHeight + 1)
+          );
+        })
+        .map(
+          (el) =>
+            `${el.className || el.tagName} ${el.scrollWidth}×${el.scrollHeight} in ${el.clientWidth}×${el.clientHeight}`,
+        ),
     };
   });
+  expect.soft(size.inner, `${step}: inner scroll containers`).toEqual([]);
+  expect.soft(size.spilling, `${step}: content spilling out of its box`).toEqual([]);
   // Soft: one run reports every step that does not fit.
   expect
     .soft(`${step}: ${size.height}px tall in ${size.visibleHeight}px (${size.parts})`)
@@ -422,6 +486,7 @@ describe('the Bench by keys alone', () => {
     expect(keyPresses).toBeGreaterThan(0);
     const visitId = await startVisit(page, tapped);
     await openBench(page, visitId);
+    await recordControlShifts(page);
     const tap = async (locator: ReturnType<Page['locator']>) => {
       await locator.tap();
       taps += 1;
@@ -467,8 +532,8 @@ describe('the Bench by keys alone', () => {
     // Subjective angle: the horizontal reading is chosen already.
     await heading(page, 'Subjective angle');
     await tap(step('+1° more eso'));
-    await tap(reading('Subjective vertical angle'));
-    await tapTimes(2, step('+1Δ more R/L'));
+    // A reading in the list is stepped by its own buttons: no tap to choose it first.
+    await tapTimes(2, step('+1Δ more, Subjective vertical angle'));
     await next();
     await heading(page, 'Objective angle');
     await tapTimes(3, step('+5° more eso'));
@@ -478,12 +543,9 @@ describe('the Bench by keys alone', () => {
     await heading(page, 'Suppression scotoma');
     await tap(radio('Eye tested', 'Left eye'));
     await tapTimes(4, step('+1° more eso'));
-    await tap(reading('Picture lost, divergent side'));
-    await tapTimes(4, step('−1° less'));
-    await tap(reading('Picture lost, upper'));
-    await tapTimes(3, step('+1° more up'));
-    await tap(reading('Picture lost, lower'));
-    await tapTimes(2, step('+1° more down'));
+    await tapTimes(4, step('−1° less, Picture lost, divergent side'));
+    await tapTimes(3, step('+1° more, Picture lost, upper'));
+    await tapTimes(2, step('+1° more, Picture lost, lower'));
     await page.getByRole('img', { name: /Scotoma of the left eye/ }).waitFor();
     await next();
     await heading(page, 'Fusion');
@@ -524,7 +586,10 @@ describe('the Bench by keys alone', () => {
       const rows = await serverSections(visitId);
       return rows.fusionalRanges?.convergenceRecoveryDeg === 30 ? rows : null;
     });
+    const shifts = await controlShifts(page);
     expect(fieldByField(onServer)).toEqual(expectedLines());
+    // No button, answer or field on the Bench moved under the finger while it was charted.
+    expect(shifts).toEqual([]);
 
     console.log(
       [
@@ -536,5 +601,63 @@ describe('the Bench by keys alone', () => {
       ].join('\n'),
     );
     expect(taps).toBeGreaterThan(0);
+  }, 240_000);
+
+  it('fits the fusional ranges step on one screen with every range recorded, caution in view', async () => {
+    const visitId = await startVisit(page, full);
+    await gotoOnTablet(page, `${baseUrl()}/bench/${visitId}?step=fusional-ranges`);
+    await heading(page, 'Fusional ranges');
+    // No subjective angle recorded: the amplitudes are read from 0° and a note says so.
+    const readings: Array<[string, string]> = [
+      ['Divergence break', '-6'],
+      ['Divergence recovery', '-4'],
+      ['Convergence break', '28'],
+      ['Convergence recovery', '20'],
+      ['Right-up vertical break', '3'],
+      ['Right-up vertical recovery', '1'],
+      ['Left-up vertical break', '-3'],
+      ['Left-up vertical recovery', '-1'],
+      ['Incyclo break', '-8'],
+      ['Incyclo recovery', '-5'],
+      ['Excyclo break', '8'],
+      ['Excyclo recovery', '5'],
+    ];
+    for (const [label, text] of readings) {
+      await page.getByRole('button', { name: new RegExp(`^${label}: `) }).tap();
+      const box = page.getByRole('textbox', { name: `Type ${label}`, exact: true });
+      await box.fill(text);
+      await box.press('Enter');
+    }
+    const result = page.getByTestId('ranges-result');
+    await result.getByRole('rowheader', { name: 'cyclo total' }).waitFor();
+    await savedHere(page);
+    expect(
+      await result.getByRole('row').evaluateAll((rows) => rows.map((row) => row.textContent)),
+    ).toEqual([
+      'Range (distance)BreakRecovery',
+      'divergence6.0° · within 4–6° (memory)4.0° · no norm',
+      'convergence28.0° · within 25–30° (teaching source)20.0° · no norm',
+      'right up3.0Δ · within 2–4Δ (memory)1.0Δ · no norm',
+      'left up3.0Δ · within 2–4Δ (memory)1.0Δ · no norm',
+      'incyclo8.0° · no norm5.0° · no norm',
+      'excyclo8.0° · no norm5.0° · no norm',
+      'vertical total6.0Δ · no norm—',
+      'cyclo total16.0° · within 15–25° (memory)—',
+    ]);
+    await page
+      .getByText(/^No subjective angle is recorded, so these amplitudes are read from 0°/)
+      .waitFor();
+    await screenshot(page, 'bench-keys-fusional-ranges-every-range');
+    await expectFits(page, 'fusional ranges, every range');
+    // The caution is on screen in full, not cut off at the foot of the panel.
+    const caution = await result.getByRole('note').boundingBox();
+    const panel = await result.boundingBox();
+    if (!caution || !panel) throw new Error('The ranges result or its caution is not drawn');
+    expect(await result.getByRole('note').textContent()).toMatch(
+      /supports and does not replace clinical judgement/,
+    );
+    expect(caution.y + caution.height).toBeLessThanOrEqual(panel.y + panel.height);
+    expect(panel.y + panel.height).toBeLessThanOrEqual(800);
+    await axeStep(page, 'fusional ranges, every range');
   }, 240_000);
 });

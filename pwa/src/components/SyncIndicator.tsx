@@ -229,7 +229,8 @@ export function SyncIndicator(props: {
         onClick={syncNow}
         style={{
           minHeight: 48,
-          minWidth: 48,
+          // Wide enough for "Syncing…" and "Sync now" alike: the button keeps its place.
+          minWidth: '8.5rem',
           padding: '0 16px',
           fontSize: '1rem',
           borderRadius: 8,

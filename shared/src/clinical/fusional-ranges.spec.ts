@@ -7,6 +7,7 @@ import {
 } from './fusional-norms';
 import {
   compareWithNorms,
+  describeNorm,
   fusionalRangeAmplitudes,
   type FusionalMeasurement,
 } from './fusional-ranges';
@@ -102,6 +103,20 @@ function amblyoscope(
 ): FusionalMeasurement[] {
   return fusionalRangeAmplitudes(readings).measurements;
 }
+
+describe('describeNorm', () => {
+  const row = (norm: Parameters<typeof describeNorm>[0]['norm'], unit: 'deg' | 'pd') => ({
+    ...AMBLYOSCOPE_FUSIONAL_NORMS.rows[0]!,
+    norm,
+    unit,
+  });
+
+  it('says a range, a mean ± SD and a median with the row unit', () => {
+    expect(describeNorm(row({ kind: 'range', low: 4, high: 6 }, 'deg'))).toBe('4–6°');
+    expect(describeNorm(row({ kind: 'mean-sd', mean: 19, sd: 8 }, 'pd'))).toBe('19 ± 8Δ');
+    expect(describeNorm(row({ kind: 'median', median: 5.5 }, 'pd'))).toBe('median 5.5Δ');
+  });
+});
 
 describe('compareWithNorms on the amblyoscope table', () => {
   it('names the table and version it used', () => {

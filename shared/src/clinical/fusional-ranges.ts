@@ -236,7 +236,8 @@ function groupOf(direction: FusionalDirection): 'horizontal' | 'vertical' | 'cyc
   }
 }
 
-function describeNorm(row: FusionalNormRow): string {
+/** A norms row's value in words, e.g. "4–6°" or "15 ± 4Δ" (as the comparison messages say it). */
+export function describeNorm(row: FusionalNormRow): string {
   const u = UNIT_SIGN[row.unit];
   switch (row.norm.kind) {
     case 'mean-sd':

@@ -1,4 +1,4 @@
-import { cleanup, screen, waitFor } from '@testing-library/react';
+import { cleanup, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { CLINICAL_CAUTION } from '@fuselight/shared';
@@ -164,10 +164,21 @@ describe('the Bench', () => {
       screen.getByRole('textbox', { name: 'Type Convergence break' }),
       'eso 40{Enter}',
     );
+    // One row a direction: the break and recovery amplitudes, each against its norm row.
+    const result = screen.getByTestId('ranges-result');
+    const row = (direction: string) =>
+      within(result)
+        .getAllByRole('cell')
+        .filter((cell) => cell.parentElement?.querySelector('th')?.textContent === direction)
+        .map((cell) => cell.textContent);
     await waitFor(() =>
-      expect(screen.getByTestId('ranges-result').textContent).toContain('divergence: break 6.0°'),
+      expect(row('divergence')).toEqual(['6.0° · within 4–6° (memory)', 'not recorded']),
     );
-    expect(screen.getByTestId('ranges-result').textContent).toContain('convergence: break 38.0°');
+    expect(row('convergence')).toEqual(['38.0° · above 25–30° (teaching source)', 'not recorded']);
+    expect(within(result).getByText(/^Norms: /).textContent).toBe(
+      'Norms: [memory] recalled value, not confirmed against a publication; replace with the clinic’s own; teaching source (no published reference; common practice).',
+    );
+    expect(within(result).getByRole('note').textContent).toBe(CLINICAL_CAUTION);
     expect(screen.getByTestId('proximal-convergence-note').textContent).toContain(
       'proximal convergence often inflates convergence ranges',
     );

@@ -293,6 +293,11 @@ export function Bench({
   }
   const { patient, visit } = bundle.data;
   const locked = visit.fields.status !== 'draft';
+  const patientLine = `${
+    patient
+      ? ` · ${patient.fields.givenName} ${patient.fields.familyName}`
+      : ' · patient not on this tablet'
+  } · ${visit.fields.date}`;
 
   return (
     <ConversionContext.Provider value={conversion}>
@@ -300,14 +305,9 @@ export function Bench({
         <div className="fl-bench" onFocus={onFocusIn}>
           <header className="fl-bench__bar">
             <div>
-              <h1 className="fl-bench__title">
+              <h1 className="fl-bench__title" title={`Bench${patientLine}`}>
                 Bench
-                <span className="fl-bench__patient">
-                  {patient
-                    ? ` · ${patient.fields.givenName} ${patient.fields.familyName}`
-                    : ' · patient not on this tablet'}{' '}
-                  · {visit.fields.date}
-                </span>
+                <span className="fl-bench__patient">{patientLine}</span>
               </h1>
             </div>
             <div className="fl-bench__tools">

@@ -48,6 +48,7 @@ export function MeasureDeck({
   cells,
   onChange,
   children,
+  aside,
 }: {
   /** What the list of readings is, for screen readers ("Scotoma readings"). */
   title: string;
@@ -55,6 +56,11 @@ export function MeasureDeck({
   onChange: (field: string, value: number | null) => void;
   /** Shown under the stepper (live summaries, results). */
   children?: ReactNode;
+  /**
+   * Shown beside the stepper in its own place (under the list of readings, or a column of its
+   * own), for a result too large to sit under the stepper on one screen.
+   */
+  aside?: ReactNode;
 }) {
   const [selectedField, setSelectedField] = useState(cells[0]?.field ?? '');
   const [carry, setCarry] = useState<{ field: string; value: number } | null>(null);
@@ -125,18 +131,61 @@ export function MeasureDeck({
   const groups = [...new Set(cells.map((c) => c.group ?? ''))];
   const shownValue = (cell: DeckCell) =>
     cell.value === null ? '—' : describeReading(words(cell), cell.unit, cell.value);
+  // Touch acts on a reading at once: its own step buttons change it (and make it the current
+  // reading for the keys), with no tap first to choose it.
+  const stepCell = (cell: DeckCell, delta: number) => {
+    const base =
+      cell.value ?? (carry?.field === cell.field ? carry.value : null) ?? cell.start ?? null;
+    const sign: 1 | -1 =
+      base !== null && base !== 0
+        ? base > 0
+          ? 1
+          : -1
+        : (cell.defaultSign ?? (cell.max <= 0 ? -1 : 1));
+    const limit = sign > 0 ? cell.max : -cell.min;
+    const magnitude = Math.min(
+      limit,
+      Math.max(0, Math.round((Math.abs(base ?? 0) + delta) * 2) / 2),
+    );
+    if (cell.field !== selected.field) select(cell);
+    else setCarry(null);
+    onChange(cell.field, sign * magnitude);
+  };
+  const unitSymbol = (cell: DeckCell) => (cell.unit === 'pd' ? 'Δ' : '°');
   const cellButton = (cell: DeckCell) => (
-    <button
+    <div
       key={cell.field}
-      type="button"
-      className="fl-touch fl-deck__cell"
-      aria-pressed={cell.field === selected.field}
-      aria-label={`${cell.label}: ${cell.value === null ? 'not recorded' : shownValue(cell)}`}
-      onClick={() => select(cell)}
+      className="fl-deck__cell-wrap"
+      data-current={cell.field === selected.field || undefined}
     >
-      <span className="fl-deck__cell-label">{cell.short ?? cell.label}</span>
-      <span className="fl-deck__cell-value">{shownValue(cell)}</span>
-    </button>
+      <button
+        type="button"
+        className="fl-touch fl-deck__step"
+        aria-label={`−1${unitSymbol(cell)} less, ${cell.label}`}
+        disabled={(cell.value ?? 0) === 0 && cell.start == null}
+        onClick={() => stepCell(cell, -1)}
+      >
+        −
+      </button>
+      <button
+        type="button"
+        className="fl-touch fl-deck__cell"
+        aria-pressed={cell.field === selected.field}
+        aria-label={`${cell.label}: ${cell.value === null ? 'not recorded' : shownValue(cell)}`}
+        onClick={() => select(cell)}
+      >
+        <span className="fl-deck__cell-label">{cell.short ?? cell.label}</span>
+        <span className="fl-deck__cell-value">{shownValue(cell)}</span>
+      </button>
+      <button
+        type="button"
+        className="fl-touch fl-deck__step"
+        aria-label={`+1${unitSymbol(cell)} more, ${cell.label}`}
+        onClick={() => stepCell(cell, 1)}
+      >
+        +
+      </button>
+    </div>
   );
 
   return (
@@ -168,12 +217,6 @@ export function MeasureDeck({
             onChange(selected.field, value);
           }}
         />
-        {selected.value === null && running !== null ? (
-          <p className="fl-muted fl-deck__start">
-            Starts at {describeReading(words(selected), selected.unit, running)}: not recorded until
-            you step it or mark it.
-          </p>
-        ) : null}
         {selected.mark ? (
           <div className="fl-deck__marks">
             {(['markLost', 'markBreak', 'markRecovery'] as const)
@@ -195,8 +238,16 @@ export function MeasureDeck({
               ))}
           </div>
         ) : null}
+        {/* Under the marks, so its coming and going moves none of the buttons above it. */}
+        {selected.value === null && running !== null ? (
+          <p className="fl-muted fl-deck__start">
+            Starts at {describeReading(words(selected), selected.unit, running)}: not recorded until
+            you step it or mark it.
+          </p>
+        ) : null}
         {children}
       </div>
+      {aside ? <div className="fl-deck__aside">{aside}</div> : null}
     </div>
   );
 }

@@ -4,10 +4,14 @@
 import {
   CLINICAL_CAUTION,
   FUSIONAL_NORMS_TABLE,
+  type FusionalDirection,
+  type NormComparison,
+  describeNorm,
   fieldMeta,
   fusionalRangesOf,
   normsTableName,
 } from '@fuselight/shared';
+import type { ReactNode } from 'react';
 import { type BenchFields, benchFields, useBenchSection } from '../../../data/bench';
 import { type DeckCell, MeasureDeck } from '../MeasureDeck';
 import { Caution, StepFrame } from '../StepFrame';
@@ -131,63 +135,126 @@ export function FusionalRangesStep({ visitId }: { visitId: string }) {
         title="Fusional range readings"
         cells={cells}
         onChange={(field, value) => saveReading(field as RangeField, value)}
+        aside={<RangesResult interpretation={interpretation} tableName={tableName} />}
       >
+        {/* Notes on the result sit under the stepper, where the screen has room for them. */}
         {proximal ? (
           <p className="fl-bench-warning" role="note" data-testid="proximal-convergence-note">
             {proximal.message} Findings on the amblyoscope are distance findings.
           </p>
         ) : null}
-        {/* Takes the height left beside the readings; with many ranges it scrolls on its own. */}
-        <div
-          className="fl-bench-result fl-bench-ranges__result"
-          aria-live="polite"
-          data-testid="ranges-result"
-          role="region"
-          aria-label="Amplitudes and norms"
-          tabIndex={0}
-        >
-          <h3>Amplitudes</h3>
-          <p className="fl-muted">Compared with: {tableName}</p>
-          {interpretation === null ? (
-            <p className="fl-muted">No break recorded yet.</p>
-          ) : interpretation.ok ? (
-            <>
-              {interpretation.value.startNote ? (
-                <p className="fl-bench-warning">{interpretation.value.startNote}</p>
-              ) : null}
-              <ul>
-                {interpretation.value.amplitudes.amplitudes.map((a) => (
-                  <li key={a.direction}>{a.text}</li>
-                ))}
-              </ul>
-              <h4>Against the norms</h4>
-              <ul>
-                {interpretation.value.norms.comparisons.map((c) => (
-                  <li key={`${c.measurement.direction}-${c.measurement.point}`}>{c.message}</li>
-                ))}
-              </ul>
-              {interpretation.value.norms.flags
-                .filter((flag) => flag.kind !== 'proximal convergence')
-                .map((flag) => (
-                  <p
-                    key={`${flag.kind}-${flag.direction}-${flag.point ?? ''}`}
-                    className="fl-bench-warning"
-                  >
-                    {flag.message}
-                  </p>
-                ))}
-              <Caution text={interpretation.value.norms.caution} />
-            </>
-          ) : (
-            <>
-              <p className="fl-field-error" role="alert">
-                {interpretation.problem}
-              </p>
-              <Caution text={CLINICAL_CAUTION} />
-            </>
-          )}
-        </div>
+        {interpretation?.ok && interpretation.value.startNote ? (
+          <p className="fl-bench-warning">{interpretation.value.startNote}</p>
+        ) : null}
+        {interpretation?.ok
+          ? interpretation.value.norms.flags
+              .filter((flag) => flag.kind === 'recovery far from break')
+              .map((flag) => (
+                <p key={`${flag.kind}-${flag.direction}`} className="fl-bench-warning">
+                  {flag.message}
+                </p>
+              ))
+          : null}
       </MeasureDeck>
     </StepFrame>
+  );
+}
+
+const UNIT_SIGN = { deg: '°', pd: 'Δ' } as const;
+const decimal = (value: number) => (Math.round(value * 10) / 10).toFixed(1);
+
+/** One amplitude and where it stands, e.g. "5.0° · within 4–6° (memory)". */
+function standingOf(c: NormComparison): string {
+  const amplitude = `${decimal(c.measurement.value)}${UNIT_SIGN[c.measurement.unit]}`;
+  if (!c.row) return `${amplitude} · no norm`;
+  const converted =
+    c.row.unit === c.measurement.unit || c.valueInRowUnit === null
+      ? ''
+      : ` (${decimal(c.valueInRowUnit)}${UNIT_SIGN[c.row.unit]})`;
+  const evidence = c.row.evidence === 'published' ? '' : ` (${c.row.evidence})`;
+  const standing = c.standing === 'reference only' ? 'compare' : c.standing;
+  return `${amplitude}${converted} · ${standing} ${describeNorm(c.row)}${evidence}`;
+}
+
+/**
+ * The amplitudes against the norms as one small table (a row a direction, break and recovery
+ * side by side), the norms' sources once, and the clinical caution: all of it on screen at
+ * once beside the readings, whatever ranges are recorded.
+ */
+function RangesResult({
+  interpretation,
+  tableName,
+}: {
+  interpretation: ReturnType<typeof fusionalRangesOf>;
+  tableName: string;
+}) {
+  let body: ReactNode;
+  if (interpretation === null) {
+    body = <p className="fl-muted">No break recorded yet.</p>;
+  } else if (!interpretation.ok) {
+    body = (
+      <>
+        <p className="fl-field-error" role="alert">
+          {interpretation.problem}
+        </p>
+        <Caution text={CLINICAL_CAUTION} />
+      </>
+    );
+  } else {
+    const { norms } = interpretation.value;
+    const directions = [...new Set(norms.comparisons.map((c) => c.measurement.direction))];
+    const at = (direction: FusionalDirection, point: 'break' | 'recovery') =>
+      norms.comparisons.find(
+        (c) => c.measurement.direction === direction && c.measurement.point === point,
+      );
+    // A total (vertical, cyclo) has a break only; any other direction may lack its recovery.
+    const cell = (c: NormComparison | undefined, total: boolean) =>
+      c ? (
+        <td className={c.standing === 'below' ? 'fl-bench-ranges__below' : undefined}>
+          {standingOf(c)}
+        </td>
+      ) : (
+        <td className="fl-muted">{total ? '—' : 'not recorded'}</td>
+      );
+    const sources = [...new Set(norms.comparisons.flatMap((c) => (c.row ? [c.row.citation] : [])))];
+    body = (
+      <>
+        <table className="fl-bench-ranges__table">
+          <thead>
+            <tr>
+              <th scope="col">Range (distance)</th>
+              <th scope="col">Break</th>
+              <th scope="col">Recovery</th>
+            </tr>
+          </thead>
+          <tbody>
+            {directions.map((direction) => (
+              <tr key={direction}>
+                <th scope="row">{direction}</th>
+                {cell(at(direction, 'break'), direction.endsWith('total'))}
+                {cell(at(direction, 'recovery'), direction.endsWith('total'))}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+        {sources.length > 0 ? (
+          <p className="fl-muted fl-bench-ranges__sources">Norms: {sources.join('; ')}.</p>
+        ) : null}
+        <Caution text={norms.caution} />
+      </>
+    );
+  }
+  return (
+    <div
+      className="fl-bench-result fl-bench-ranges__result"
+      aria-live="polite"
+      data-testid="ranges-result"
+      role="region"
+      aria-label="Amplitudes and norms"
+    >
+      <h3>Amplitudes</h3>
+      <p className="fl-muted">Compared with: {tableName}</p>
+      {body}
+    </div>
   );
 }

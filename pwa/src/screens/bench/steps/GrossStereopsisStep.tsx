@@ -29,11 +29,13 @@ export function GrossStereopsisStep({
         trials={fields.trials ?? []}
         onRecord={(trials) => void save({ trials })}
         {...(random ? { random } : {})}
-      />
-      <BenchTextField
-        label={fieldMeta.grossStereopsis.slideUsed.label}
-        value={fields.slideUsed}
-        onSave={(value) => void save({ slideUsed: value })}
+        beside={
+          <BenchTextField
+            label={fieldMeta.grossStereopsis.slideUsed.label}
+            value={fields.slideUsed}
+            onSave={(value) => void save({ slideUsed: value })}
+          />
+        }
       />
       <BsvCheck visitId={visitId} overrides={{ grossStereopsis: fields }} />
     </StepFrame>

@@ -105,6 +105,7 @@ export function ScotomaStep({ visitId }: { visitId: string }) {
   ];
   return (
     <StepFrame
+      className="fl-bench-scotoma"
       title="Suppression scotoma"
       section={section}
       instructions={
@@ -127,21 +128,21 @@ export function ScotomaStep({ visitId }: { visitId: string }) {
           onSave={(value) => void save({ slideUsed: value })}
         />
       </div>
-      <div className="fl-bench-split">
-        <MeasureDeck
-          title="Where the picture was lost"
-          cells={cells}
-          onChange={(field, value) => void save({ [field]: value })}
-        />
-        <div>
-          <ScotomaMap region={region} />
-          {problem ? (
-            <p className="fl-field-error" role="alert">
-              {problem}
-            </p>
-          ) : null}
-        </div>
-      </div>
+      <MeasureDeck
+        title="Where the picture was lost"
+        cells={cells}
+        onChange={(field, value) => void save({ [field]: value })}
+        aside={
+          <>
+            <ScotomaMap region={region} />
+            {problem ? (
+              <p className="fl-field-error" role="alert">
+                {problem}
+              </p>
+            ) : null}
+          </>
+        }
+      />
     </StepFrame>
   );
 }

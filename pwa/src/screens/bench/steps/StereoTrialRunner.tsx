@@ -9,7 +9,7 @@ import {
   stereoTrialSequence,
   stereoVerdict,
 } from '@fuselight/shared';
-import { useRef, useState } from 'react';
+import { useRef, useState, type ReactNode } from 'react';
 import { useBenchAction } from '../../../components/controls/bench-action';
 import { Caution } from '../StepFrame';
 
@@ -33,6 +33,8 @@ export interface StereoTrialRunnerProps {
   /** Injected in tests to replay an order; the Bench uses cryptoRandom. */
   random?: () => number;
   alpha?: number;
+  /** Drawn under the answers and Undo (the step's slide-used field). */
+  beside?: ReactNode;
 }
 
 export function StereoTrialRunner({
@@ -40,6 +42,7 @@ export function StereoTrialRunner({
   onRecord,
   random = cryptoRandom,
   alpha,
+  beside,
 }: StereoTrialRunnerProps) {
   // Trials already on the chart were shown from an earlier order; this run's order starts here.
   const [start] = useState(trials.length);
@@ -69,58 +72,73 @@ export function StereoTrialRunner({
 
   return (
     <div className="fl-stereo" ref={root} data-bench-handler>
-      <div className="fl-stereo__next" aria-live="polite" data-testid="stereo-next">
-        {next === null ? (
-          <p>The trial limit is reached.</p>
-        ) : (
-          <>
-            <p className="fl-muted">Trial {trials.length + 1}: show the slide that stands out</p>
-            <p className="fl-stereo__presentation">{WORDS[next]}</p>
-            <p className="fl-muted">Then ask the patient which way the picture stands out.</p>
-          </>
-        )}
+      {/* Two columns that do not share rows: the presentation, the answers, Undo and the slide
+          used on the left never move as the result and the list of trials change on the right. */}
+      <div className="fl-stereo__column">
+        <div className="fl-stereo__next" aria-live="polite" data-testid="stereo-next">
+          {next === null ? (
+            <p>The trial limit is reached.</p>
+          ) : (
+            <>
+              <p className="fl-muted">Trial {trials.length + 1}: show the slide that stands out</p>
+              <p className="fl-stereo__presentation">{WORDS[next]}</p>
+              <p className="fl-muted">Then ask the patient which way the picture stands out.</p>
+            </>
+          )}
+        </div>
+        <div className="fl-stereo__answers" role="group" aria-label="The patient's answer">
+          <button
+            type="button"
+            className="fl-touch fl-button fl-button--primary fl-stereo__answer"
+            disabled={next === null}
+            onClick={() => answer('toward')}
+          >
+            Patient says: toward
+          </button>
+          <button
+            type="button"
+            className="fl-touch fl-button fl-button--primary fl-stereo__answer"
+            disabled={next === null}
+            onClick={() => answer('away')}
+          >
+            Patient says: away
+          </button>
+        </div>
+        <div className="fl-stereo__under">
+          <button
+            type="button"
+            className="fl-touch fl-button fl-button--quiet fl-stereo__undo"
+            disabled={trials.length === 0}
+            onClick={() => onRecord(trials.slice(0, -1))}
+          >
+            Undo last trial
+          </button>
+          {beside}
+        </div>
       </div>
-      <div className="fl-stereo__answers" role="group" aria-label="The patient's answer">
-        <button
-          type="button"
-          className="fl-touch fl-button fl-button--primary fl-stereo__answer"
-          disabled={next === null}
-          onClick={() => answer('toward')}
-        >
-          Patient says: toward
-        </button>
-        <button
-          type="button"
-          className="fl-touch fl-button fl-button--primary fl-stereo__answer"
-          disabled={next === null}
-          onClick={() => answer('away')}
-        >
-          Patient says: away
-        </button>
-      </div>
-      <div className="fl-bench-result" aria-live="polite" data-testid="stereo-verdict">
-        <h3>
-          {verdict.verdict === 'present'
-            ? 'Gross stereopsis shown'
-            : 'Gross stereopsis not shown yet'}
-        </h3>
-        <p>
-          {verdict.correct} of {verdict.total} right. Chance of doing this well by guessing:{' '}
-          <span data-testid="stereo-chance">
-            {String(fraction.numerator)}/{String(fraction.denominator)} = {verdict.chanceTail}
-          </span>{' '}
-          (threshold {verdict.alpha}).
-        </p>
-        {verdict.verdict === 'present' ? null : (
-          <p className="fl-stereo__more" data-testid="stereo-more-needed">
-            {verdict.moreCorrectNeeded} more right answer
-            {verdict.moreCorrectNeeded === 1 ? '' : 's'} in a row needed to show gross stereopsis.
+      <div className="fl-stereo__column">
+        <div className="fl-bench-result" aria-live="polite" data-testid="stereo-verdict">
+          <h3>
+            {verdict.verdict === 'present'
+              ? 'Gross stereopsis shown'
+              : 'Gross stereopsis not shown yet'}
+          </h3>
+          <p>
+            {verdict.correct} of {verdict.total} right. Chance of doing this well by guessing:{' '}
+            <span data-testid="stereo-chance">
+              {String(fraction.numerator)}/{String(fraction.denominator)} = {verdict.chanceTail}
+            </span>{' '}
+            (threshold {verdict.alpha}).
           </p>
-        )}
-        <Caution text={verdict.caution} />
-      </div>
-      {trials.length > 0 ? (
-        <>
+          {verdict.verdict === 'present' ? null : (
+            <p className="fl-stereo__more" data-testid="stereo-more-needed">
+              {verdict.moreCorrectNeeded} more right answer
+              {verdict.moreCorrectNeeded === 1 ? '' : 's'} in a row needed to show gross stereopsis.
+            </p>
+          )}
+          <Caution text={verdict.caution} />
+        </div>
+        {trials.length > 0 ? (
           <ol className="fl-stereo__log" aria-label="Trials so far">
             {trials.map((trial, i) => (
               <li key={i}>
@@ -129,15 +147,8 @@ export function StereoTrialRunner({
               </li>
             ))}
           </ol>
-          <button
-            type="button"
-            className="fl-touch fl-button fl-button--quiet fl-stereo__undo"
-            onClick={() => onRecord(trials.slice(0, -1))}
-          >
-            Undo last trial
-          </button>
-        </>
-      ) : null}
+        ) : null}
+      </div>
     </div>
   );
 }
