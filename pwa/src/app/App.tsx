@@ -13,6 +13,7 @@ import { IdentityGate, SignedOutLanding } from '../auth/IdentityGate';
 import { SessionProvider, useAuthState } from '../auth/SessionProvider';
 import { SignInPrompt } from '../auth/SignInPrompt';
 import { Loading } from './Loading';
+import { useAfterFirstScreen } from './useAfterFirstScreen';
 import {
   EnrolScreen,
   DamagedValuesNote,
@@ -87,18 +88,25 @@ function ShellForPerson() {
   );
 }
 
+/** What the app draws beside its screens, once the first screen is up (useAfterFirstScreen). */
+function AfterFirstScreen({ children }: { children: ReactNode }) {
+  return useAfterFirstScreen() ? children : null;
+}
+
 export function App() {
   return (
     <QueryClientProvider client={queryClient}>
       <SessionProvider>
         {/* The storage warning sits above the app in the flow, on every screen. */}
         <div className="fl-shell">
-          <Suspense fallback={null}>
-            <StorageWarningBanner />
-          </Suspense>
-          <Suspense fallback={null}>
-            <DamagedValuesNote />
-          </Suspense>
+          <AfterFirstScreen>
+            <Suspense fallback={null}>
+              <StorageWarningBanner />
+            </Suspense>
+            <Suspense fallback={null}>
+              <DamagedValuesNote />
+            </Suspense>
+          </AfterFirstScreen>
           <IdentityGate
             loading={<Loading />}
             erased={(note) => (
@@ -109,9 +117,11 @@ export function App() {
           >
             <ShellForPerson />
           </IdentityGate>
-          <Suspense fallback={null}>
-            <UpdatePrompt />
-          </Suspense>
+          <AfterFirstScreen>
+            <Suspense fallback={null}>
+              <UpdatePrompt />
+            </Suspense>
+          </AfterFirstScreen>
         </div>
       </SessionProvider>
     </QueryClientProvider>

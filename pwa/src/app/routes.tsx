@@ -1,22 +1,23 @@
-// Route table of the signed-out shell: each screen is its own chunk so the first screen stays
-// lean (bench:bundle). The signed-in app's screens are in signed-in-routes.tsx.
+// Route table of the signed-out shell. Sign-in, the screen a new tablet opens on, comes with the
+// first chunk (no second round trip before it draws); the others are chunks of their own so the
+// first screen stays lean (bench:bundle). The signed-in app's screens are in signed-in-routes.tsx.
 import { lazy } from 'react';
 
-const loadSignIn = () => import('../screens/signin/SignInScreen');
+export { default as SignInScreen } from '../screens/signin/SignInScreen';
+
 const loadEnrol = () => import('../screens/enrol/EnrolScreen');
 const loadUnlock = () => import('../screens/unlock/UnlockScreen');
 
-export const SignInScreen = lazy(loadSignIn);
 export const EnrolScreen = lazy(loadEnrol);
 export const TabletErasedScreen = lazy(() => import('../screens/enrol/TabletErasedScreen'));
 export const UnlockScreen = lazy(loadUnlock);
 
 /**
- * Starts loading the screen of the address the app opens on (sign-in, unlock, enrolment) at
+ * Starts loading the screen of the address the app opens on (unlock, enrolment) at
  * once, beside the session's own load, rather than after it.
  */
 export function preloadShellScreen(pathname: string): void {
-  const load = { '/signin': loadSignIn, '/unlock': loadUnlock, '/enrol': loadEnrol }[pathname];
+  const load = { '/unlock': loadUnlock, '/enrol': loadEnrol }[pathname];
   void load?.();
 }
 

@@ -15,7 +15,8 @@ import { getAttachmentDb, SEALED_ATTACHMENT_TABLES } from '../attachments/attach
 import { tabletVault } from '../data/crypto/data-key-vault';
 import { webAuthnShare, type HardwareShare } from '../data/crypto/hardware-share';
 import { KeyRing } from '../data/crypto/key-ring';
-import { getDefaultDb, SEALED_TABLES } from '../data/db';
+import { databaseMayExist } from '../data/database-exists';
+import { DEFAULT_DB_NAME, getDefaultDb, SEALED_TABLES } from '../data/db';
 import type { IdentityApi, SignInResponse } from './identity-api';
 import { lazyIdentityApi } from './lazy-identity-api';
 import { countOutboxEntries, type OutboxCounter } from './outbox-count';
@@ -81,6 +82,7 @@ export function tabletKeyRing(hardware: HardwareShare = webAuthnShare()): KeyRin
   return new KeyRing({
     hardware,
     db: getDefaultDb,
+    mayHoldSlots: () => databaseMayExist(DEFAULT_DB_NAME),
     sealed: () => [
       { db: getDefaultDb(), tables: Object.keys(SEALED_TABLES) },
       { db: getAttachmentDb(), tables: Object.keys(SEALED_ATTACHMENT_TABLES) },

@@ -10,6 +10,9 @@ import { sealingMiddleware } from './crypto/sealing-middleware';
 import type { TableSealing } from './crypto/value-codec';
 
 /** Name of the tombstone pseudo-field in `pendingFields` and `serverFields`. */
+
+/** The tablet's records database. */
+export const DEFAULT_DB_NAME = 'fuselight';
 export const TOMBSTONE = 'deleted';
 
 /**
@@ -154,7 +157,7 @@ export class FuselightDb extends Dexie {
   readonly patientDirectory: PatientDirectory;
 
   constructor(
-    name = 'fuselight',
+    name = DEFAULT_DB_NAME,
     readonly vault: DataKeyVault = tabletVault,
   ) {
     super(name);

@@ -6,7 +6,6 @@
 // docs/threat-model.md says what this protects and what it does not.
 import type Dexie from 'dexie';
 import type { FuselightDb } from '../db';
-import { databaseMayExist } from '../database-exists';
 import type { DataKeyVault } from './data-key-vault';
 import { HardwareShareError, noHardwareShare, type HardwareShare } from './hardware-share';
 import {
@@ -56,6 +55,11 @@ export class KeyUnavailableError extends Error {
 export interface KeyRingOptions {
   /** The records database, which keeps the key slots. */
   db: () => FuselightDb;
+  /**
+   * Whether that database may already be on the tablet (default: yes). False lets load() skip it
+   * without making the database, or even its object, on a tablet that has never held records.
+   */
+  mayHoldSlots?: () => Promise<boolean>;
   /** Every database sealed with this key (the records database included). */
   sealed: () => SealedDatabase[];
   vault: DataKeyVault;
@@ -90,10 +94,9 @@ export class KeyRing {
 
   /** Reads whether slots exist: a tablet with slots is protected and starts locked. */
   async load(): Promise<void> {
-    const db = this.options.db();
     // A tablet without the records database has no slot: do not create it to count none.
-    if (!db.isOpen() && !(await databaseMayExist(db.name))) return;
-    const count = await db.keySlots.count();
+    if (this.options.mayHoldSlots && !(await this.options.mayHoldSlots())) return;
+    const count = await this.options.db().keySlots.count();
     if (count > 0) this.options.vault.markProtected();
   }
 

@@ -1,0 +1,18 @@
+// True once the first screen is drawn and the browser has a moment to spare: the app's banners
+// (storage warning, damaged values, update prompt and the service worker's registration) load
+// then, so their code, their reads and the service worker's downloads do not compete with the
+// first screen for the network and the main thread. Never later than `timeoutMs`.
+import { useEffect, useState } from 'react';
+
+export function useAfterFirstScreen(timeoutMs = 1_500): boolean {
+  const [ready, setReady] = useState(false);
+  useEffect(() => {
+    if (typeof requestIdleCallback === 'function') {
+      const handle = requestIdleCallback(() => setReady(true), { timeout: timeoutMs });
+      return () => cancelIdleCallback(handle);
+    }
+    const timer = setTimeout(() => setReady(true), Math.min(timeoutMs, 300));
+    return () => clearTimeout(timer);
+  }, [timeoutMs]);
+  return ready;
+}
