@@ -36,7 +36,17 @@ const queryClient = new QueryClient({
 });
 
 const loadSignedInApp = () => import('./SignedInApp');
-const SignedInApp = lazy(loadSignedInApp);
+// The signed-in app is drawn once its code and what the storage warning above it needs are both
+// there, so the warning never appears after it and pushes it down.
+const SignedInApp = lazy(async () => {
+  const [app] = await Promise.all([
+    loadSignedInApp(),
+    import('../storage/prefetch-storage-warnings').then((m) =>
+      m.prefetchStorageWarnings(queryClient),
+    ),
+  ]);
+  return app;
+});
 
 // Whether someone was signed in when this tablet last ran the app (a flag, nothing about who):
 // if so, the signed-in app's code is fetched at once, beside the session's own load, rather
@@ -55,6 +65,13 @@ const screen = (node: ReactNode) => <Suspense fallback={<Loading />}>{node}</Sus
 function SignedOutShell() {
   return (
     <BrowserRouter>
+      {/* Here the warning waits until the first screen is up (on a new tablet it has nothing to
+          say); the signed-in app draws its own with itself. */}
+      <AfterFirstScreen>
+        <Suspense fallback={null}>
+          <StorageWarningBanner />
+        </Suspense>
+      </AfterFirstScreen>
       <SignInPrompt />
       <div className="fl-shell-app">
         <Routes>
@@ -80,11 +97,12 @@ function ShellForPerson() {
   }, [signedIn]);
   if (!signedIn) return <SignedOutShell />;
   return (
-    <div className="fl-shell-app">
-      <Suspense fallback={<Loading />}>
+    <Suspense fallback={<Loading />}>
+      <StorageWarningBanner />
+      <div className="fl-shell-app">
         <SignedInApp />
-      </Suspense>
-    </div>
+      </div>
+    </Suspense>
   );
 }
 
@@ -97,12 +115,9 @@ export function App() {
   return (
     <QueryClientProvider client={queryClient}>
       <SessionProvider>
-        {/* The storage warning sits above the app in the flow, on every screen. */}
+        {/* The storage warning sits above the app in the flow, on every screen (drawn by each shell). */}
         <div className="fl-shell">
           <AfterFirstScreen>
-            <Suspense fallback={null}>
-              <StorageWarningBanner />
-            </Suspense>
             <Suspense fallback={null}>
               <DamagedValuesNote />
             </Suspense>

@@ -5,6 +5,7 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { SyncEngine } from '../sync/sync-engine';
 import { applyPushResults } from '../sync/local-apply';
 import { FuselightDb, type StoredRecord } from './db';
+import { nextChunkSize } from './patient-directory';
 import { OutboxRepository } from './outbox-repository';
 import { RecordsRepository, type EditContext } from './records-repository';
 import { CLINICIAN_ID, DEVICE_ID, OTHER_SITE_ID, SITE_ID, patientFields } from './test-fixtures';
@@ -52,6 +53,16 @@ function storedPatient(index: number, overrides: Record<string, unknown> = {}): 
 
 const names = (found: Array<{ fields: { familyName: string } }>) =>
   found.map((patient) => patient.fields.familyName);
+
+describe('the load step size', () => {
+  it('halves after a step over its 8 ms budget, grows after a quick one, within 25 to 1,000', () => {
+    expect(nextChunkSize(100, 20)).toBe(50);
+    expect(nextChunkSize(30, 20)).toBe(25);
+    expect(nextChunkSize(100, 2)).toBe(150);
+    expect(nextChunkSize(900, 1)).toBe(1_000);
+    expect(nextChunkSize(100, 6)).toBe(100);
+  });
+});
 
 describe('the patient directory before and while it loads', () => {
   it('answers a search issued before it is loaded with what the database holds', async () => {
