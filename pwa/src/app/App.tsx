@@ -39,12 +39,8 @@ const loadSignedInApp = () => import('./SignedInApp');
 // The signed-in app is drawn once its code and what the storage warning above it needs are both
 // there, so the warning never appears after it and pushes it down.
 const SignedInApp = lazy(async () => {
-  const [app] = await Promise.all([
-    loadSignedInApp(),
-    import('../storage/prefetch-storage-warnings').then((m) =>
-      m.prefetchStorageWarnings(queryClient),
-    ),
-  ]);
+  const app = await loadSignedInApp();
+  await app.prefetchStorageWarnings(queryClient);
   return app;
 });
 

@@ -164,6 +164,9 @@ function SignedInSync() {
 
 const ionicFrame = (props: IdentityFrameProps) => <IonicIdentityFrame {...props} />;
 
+// Read before the app is first drawn, with the storage warning above it (App.tsx).
+export { prefetchStorageWarnings } from '../storage/prefetch-storage-warnings';
+
 export default function SignedInApp() {
   return (
     <IdentityFrameContext.Provider value={ionicFrame}>
