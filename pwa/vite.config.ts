@@ -51,6 +51,12 @@ export default defineConfig({
   ],
   build: {
     target: 'es2022',
+    // index.html preloads the first screen's chunks; a chunk loaded later brings its own imports
+    // as the browser reads it (from the service worker's cache once installed), without the
+    // preload helper adding a link per dependency at every dynamic import on the main thread.
+    modulePreload: {
+      resolveDependencies: (_file, deps, context) => (context.hostType === 'html' ? deps : []),
+    },
     rolldownOptions: {
       // Each Ionic component module defines its custom element at the top level, and the
       // packages declare no `sideEffects`, so without this every component of Ionic would ship
