@@ -15,11 +15,13 @@ export async function oldestOutboxCreatedAt(db: FuselightDb): Promise<number | n
   return typeof first === 'number' ? first : null;
 }
 
+/** The query of the oldest Outbox entry's time (the hook's, and the prefetch before first draw). */
+export const oldestUnsyncedQuery = (db: () => FuselightDb = getDefaultDb) => ({
+  queryKey: queryKeys.outbox.oldest(),
+  queryFn: () => oldestOutboxCreatedAt(db()),
+});
+
 export function useOldestUnsyncedAt(db: () => FuselightDb = getDefaultDb) {
   useDataInvalidation();
-  return useQuery({
-    queryKey: queryKeys.outbox.oldest(),
-    queryFn: () => oldestOutboxCreatedAt(db()),
-    networkMode: 'always',
-  });
+  return useQuery({ ...oldestUnsyncedQuery(db), networkMode: 'always' });
 }

@@ -5,10 +5,15 @@ import { readStorageHealth } from './storage-health';
 
 export const LOOK_AGAIN_MS = 60_000;
 
+/** The query of the browser's word on storage (the hook's, and the prefetch before first draw). */
+export const storageHealthQuery = () => ({
+  queryKey: queryKeys.device.storage(),
+  queryFn: () => readStorageHealth(),
+});
+
 export function useStorageHealth() {
   return useQuery({
-    queryKey: queryKeys.device.storage(),
-    queryFn: () => readStorageHealth(),
+    ...storageHealthQuery(),
     refetchInterval: LOOK_AGAIN_MS,
     networkMode: 'always',
   });

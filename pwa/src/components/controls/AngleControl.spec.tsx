@@ -1,30 +1,8 @@
 import { cleanup, render, screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
-import { useState } from 'react';
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { AngleControl, type AngleControlProps } from './AngleControl';
+import { StatefulAngleControl } from './angle-control.fixture';
 import { ConversionContext } from './conversion-context';
-
-type HarnessProps = Partial<AngleControlProps> & { initial?: number | null };
-
-function Harness({ initial = null, onChange, ...props }: HarnessProps) {
-  const [value, setValue] = useState<number | null>(initial);
-  return (
-    <AngleControl
-      label="Objective horizontal angle"
-      axis="horizontal"
-      unit="deg"
-      min={-90}
-      max={90}
-      {...props}
-      value={value}
-      onChange={(next) => {
-        setValue(next);
-        onChange?.(next);
-      }}
-    />
-  );
-}
 
 const shown = () => screen.getByTestId('angle-value').textContent;
 const otherUnit = () => screen.getByTestId('angle-other-unit').textContent;
@@ -36,7 +14,7 @@ describe('AngleControl', () => {
   it('steps by 0.5°, 1° and 5° and reports each value', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness onChange={onChange} />);
+    render(<StatefulAngleControl onChange={onChange} />);
     expect(shown()).toBe('—');
 
     await user.click(screen.getByRole('button', { name: '+5° more eso' }));
@@ -49,7 +27,7 @@ describe('AngleControl', () => {
 
   it('never steps past the end of the scale and disables the step that would', async () => {
     const user = userEvent.setup();
-    render(<Harness initial={88} />);
+    render(<StatefulAngleControl initial={88} />);
     await user.click(screen.getByRole('button', { name: '+5° more eso' }));
     expect(shown()).toBe('eso 90.0°');
     // tan 90° is unbounded, so no Δ can be shown there.
@@ -61,7 +39,7 @@ describe('AngleControl', () => {
   it('speaks eso and exo for a horizontal angle and flips the sign with the toggle', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness initial={12} onChange={onChange} />);
+    render(<StatefulAngleControl initial={12} onChange={onChange} />);
     expect(
       screen.getByRole('button', { name: 'eso, convergent' }).getAttribute('aria-pressed'),
     ).toEqual('true');
@@ -76,7 +54,7 @@ describe('AngleControl', () => {
   it('steps away from zero in the chosen direction when nothing is recorded', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness onChange={onChange} />);
+    render(<StatefulAngleControl onChange={onChange} />);
     await user.click(screen.getByRole('button', { name: 'exo, divergent' }));
     expect(onChange).not.toHaveBeenCalled();
     await user.click(screen.getByRole('button', { name: '+1° more exo' }));
@@ -86,7 +64,7 @@ describe('AngleControl', () => {
   it('speaks R/L and L/R for a vertical reading stored in prism dioptres', async () => {
     const user = userEvent.setup();
     render(
-      <Harness
+      <StatefulAngleControl
         label="Objective horizontal angle"
         axis="vertical"
         unit="pd"
@@ -103,7 +81,7 @@ describe('AngleControl', () => {
   });
 
   it('speaks incyclo and excyclo for torsion and shows no prism equivalent', () => {
-    render(<Harness axis="torsion" min={-45} max={45} initial={-3} />);
+    render(<StatefulAngleControl axis="torsion" min={-45} max={45} initial={-3} />);
     expect(shown()).toBe('incyclo 3.0°');
     const direction = screen.getByRole('group', { name: 'Objective horizontal angle: direction' });
     expect(
@@ -120,9 +98,9 @@ describe('AngleControl', () => {
 
   it('shows prism dioptres by the exact definition, labelled exact', () => {
     // 10° = 17.633Δ and 20° = 36.397Δ (Δ = 100·tan θ; Millodot, "prism dioptre").
-    const { rerender } = render(<Harness initial={10} />);
+    const { rerender } = render(<StatefulAngleControl initial={10} />);
     expect(otherUnit()).toBe('17.6Δ exact');
-    rerender(<Harness initial={10} key="b" conversion="exact" />);
+    rerender(<StatefulAngleControl initial={10} key="b" conversion="exact" />);
     expect(otherUnit()).toBe('17.6Δ exact');
   });
 
@@ -130,7 +108,7 @@ describe('AngleControl', () => {
     // Rule of thumb 1° ≈ 2Δ (common practice), only stated below 45°.
     render(
       <ConversionContext.Provider value="rule of thumb">
-        <Harness initial={-10} />
+        <StatefulAngleControl initial={-10} />
       </ConversionContext.Provider>,
     );
     expect(otherUnit()).toBe('20.0Δ rule of thumb');
@@ -138,14 +116,14 @@ describe('AngleControl', () => {
 
   it('uses the exact conversion beyond the rule of thumb and says why', () => {
     // 45° = 100Δ exactly (Δ = 100·tan 45°).
-    render(<Harness initial={45} conversion="rule of thumb" />);
+    render(<StatefulAngleControl initial={45} conversion="rule of thumb" />);
     expect(otherUnit()).toBe('100.0Δ exact (rule of thumb only below 45°)');
   });
 
   it('takes a typed value with a sign, a minus sign or the trade word', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness onChange={onChange} />);
+    render(<StatefulAngleControl onChange={onChange} />);
     const box = screen.getByRole('textbox', { name: 'Type Objective horizontal angle' });
     await user.type(box, 'exo 12.5{Enter}');
     expect(onChange).toHaveBeenLastCalledWith(-12.5);
@@ -160,7 +138,7 @@ describe('AngleControl', () => {
   it('gives a bare typed number the direction chosen on the toggle', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness onChange={onChange} />);
+    render(<StatefulAngleControl onChange={onChange} />);
     await user.click(screen.getByRole('button', { name: 'exo, divergent' }));
     await user.type(screen.getByRole('textbox'), '3{Enter}');
     expect(onChange).toHaveBeenLastCalledWith(-3);
@@ -169,7 +147,7 @@ describe('AngleControl', () => {
   it('refuses text that is not a number, names the field and keeps what was typed', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness initial={6} onChange={onChange} />);
+    render(<StatefulAngleControl initial={6} onChange={onChange} />);
     const box = screen.getByRole('textbox');
     await user.type(box, 'twelve{Enter}');
     expect(screen.getByRole('alert').textContent).toContain(
@@ -184,7 +162,7 @@ describe('AngleControl', () => {
   it('refuses a typed value off the scale and says the range', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness onChange={onChange} />);
+    render(<StatefulAngleControl onChange={onChange} />);
     await user.type(screen.getByRole('textbox'), '95{Enter}');
     expect(screen.getByRole('alert').textContent).toContain(
       'Objective horizontal angle must be between −90° and +90° (you typed 95).',
@@ -195,7 +173,7 @@ describe('AngleControl', () => {
   it('undoes the last entry, then the one before, back to not recorded', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness onChange={onChange} />);
+    render(<StatefulAngleControl onChange={onChange} />);
     const undo = () => screen.getByRole('button', { name: /^Undo last entry/ });
     expect(undo()).toHaveProperty('disabled', true);
     await user.click(screen.getByRole('button', { name: '+5° more eso' }));
@@ -213,7 +191,7 @@ describe('AngleControl', () => {
   it('clears to not recorded, and the clear can be undone', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness initial={4} onChange={onChange} />);
+    render(<StatefulAngleControl initial={4} onChange={onChange} />);
     await user.click(screen.getByRole('button', { name: 'Clear Objective horizontal angle' }));
     expect(onChange).toHaveBeenLastCalledWith(null);
     expect(spin().getAttribute('aria-valuetext')).toEqual('not recorded');
@@ -224,7 +202,7 @@ describe('AngleControl', () => {
   it('is operable from the keyboard: arrows, page keys, plus and minus, delete and undo', async () => {
     const user = userEvent.setup();
     const onChange = vi.fn();
-    render(<Harness onChange={onChange} />);
+    render(<StatefulAngleControl onChange={onChange} />);
     spin().focus();
     await user.keyboard('{ArrowUp}'); // +1
     await user.keyboard('{Shift>}{ArrowUp}{/Shift}'); // +5
@@ -247,7 +225,7 @@ describe('AngleControl', () => {
   });
 
   it('offers every button as a large target with no hover needed', () => {
-    render(<Harness initial={1} />);
+    render(<StatefulAngleControl initial={1} />);
     for (const button of screen.getAllByRole('button')) {
       expect(button.className).toMatch(/fl-touch/);
     }

@@ -1,15 +1,11 @@
 // The clinic settings form on the Sites screen: the rule for tablets without security hardware
 // for the PIN (accept PIN only, or a passphrase of a length with kinds of character), checked
 // before it is sent, and sent as the server's setting `unlockWithoutHardware`.
-import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
+import { cleanup, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
-import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
-import { MemoryRouter } from 'react-router-dom';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { PASSWORDS, ROSALIND, fakeClinicServer } from '../../auth/fake-clinic-server.fixture';
-import { IdentityApi } from '../../auth/identity-api';
-import { SessionProvider } from '../../auth/SessionProvider';
-import { SessionStore } from '../../auth/session-store';
+import { fakeClinicServer } from '../../auth/fake-clinic-server.fixture';
+import { renderAsAdmin } from '../../auth/session-screen.fixture';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
 import SitesScreen from './SitesScreen';
 
@@ -35,23 +31,7 @@ async function renderSettings() {
     }
     return null;
   };
-  const store = new SessionStore({
-    api: new IdentityApi({ fetch: server.fetch }),
-    countOutbox: async () => 0,
-  });
-  await store.load();
-  await store.signIn({ email: ROSALIND.email, password: PASSWORDS[ROSALIND.email]! });
-  render(
-    <QueryClientProvider
-      client={new QueryClient({ defaultOptions: { queries: { retry: false } } })}
-    >
-      <SessionProvider store={store} background={false}>
-        <MemoryRouter>
-          <SitesScreen />
-        </MemoryRouter>
-      </SessionProvider>
-    </QueryClientProvider>,
-  );
+  await renderAsAdmin(server, <SitesScreen />);
   return { patches };
 }
 

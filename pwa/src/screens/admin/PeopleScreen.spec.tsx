@@ -1,18 +1,9 @@
-import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
+import { cleanup, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
-import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
-import { MemoryRouter } from 'react-router-dom';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import {
-  PASSWORDS,
-  ROSALIND,
-  SITE_A,
-  fakeClinicServer,
-} from '../../auth/fake-clinic-server.fixture';
+import { SITE_A, fakeClinicServer } from '../../auth/fake-clinic-server.fixture';
 import type { AdminUser } from '@fuselight/shared';
-import { IdentityApi } from '../../auth/identity-api';
-import { SessionProvider } from '../../auth/SessionProvider';
-import { SessionStore } from '../../auth/session-store';
+import { renderAsAdmin } from '../../auth/session-screen.fixture';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
 import PeopleScreen from './PeopleScreen';
 
@@ -70,23 +61,7 @@ async function renderPeople(people: unknown[]) {
     }
     return null;
   };
-  const store = new SessionStore({
-    api: new IdentityApi({ fetch: server.fetch }),
-    countOutbox: async () => 0,
-  });
-  await store.load();
-  await store.signIn({ email: ROSALIND.email, password: PASSWORDS[ROSALIND.email]! });
-  render(
-    <QueryClientProvider
-      client={new QueryClient({ defaultOptions: { queries: { retry: false } } })}
-    >
-      <SessionProvider store={store} background={false}>
-        <MemoryRouter>
-          <PeopleScreen />
-        </MemoryRouter>
-      </SessionProvider>
-    </QueryClientProvider>,
-  );
+  await renderAsAdmin(server, <PeopleScreen />);
   return { seen };
 }
 

@@ -4,7 +4,7 @@ import { cleanup, render, screen } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { useState } from 'react';
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { AngleControl } from '../../components/controls';
+import { StatefulAngleControl } from '../../components/controls/angle-control.fixture';
 import { type DeckCell, MeasureDeck } from './MeasureDeck';
 
 afterEach(cleanup);
@@ -54,24 +54,16 @@ describe('the deck of readings by touch', () => {
     // The path before the keys: the reading's own stepper, +1Δ three times.
     cleanup();
     const old = vi.fn();
-    function Old() {
-      const [value, setValue] = useState<number | null>(null);
-      return (
-        <AngleControl
-          label="Right up recovery"
-          axis="vertical"
-          unit="pd"
-          min={-30}
-          max={30}
-          value={value}
-          onChange={(next) => {
-            setValue(next);
-            old(next);
-          }}
-        />
-      );
-    }
-    render(<Old />);
+    render(
+      <StatefulAngleControl
+        label="Right up recovery"
+        axis="vertical"
+        unit="pd"
+        min={-30}
+        max={30}
+        onChange={old}
+      />,
+    );
     let oldTaps = 0;
     for (let i = 0; i < 3; i += 1) {
       await user.click(screen.getByRole('button', { name: /^\+1Δ more/ }));

@@ -1,21 +1,11 @@
 import { readFileSync } from 'node:fs';
 import { resolve } from 'node:path';
-import { cleanup, render, screen, waitFor, within } from '@testing-library/react';
+import { cleanup, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
-import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
-import { MemoryRouter } from 'react-router-dom';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import {
-  PASSWORDS,
-  ROSALIND,
-  SITE_A,
-  SITE_B,
-  fakeClinicServer,
-} from '../../auth/fake-clinic-server.fixture';
+import { SITE_A, SITE_B, fakeClinicServer } from '../../auth/fake-clinic-server.fixture';
 import type { FleetDevice } from '@fuselight/shared';
-import { IdentityApi } from '../../auth/identity-api';
-import { SessionProvider } from '../../auth/SessionProvider';
-import { SessionStore } from '../../auth/session-store';
+import { renderAsAdmin } from '../../auth/session-screen.fixture';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
 import FleetScreen from './FleetScreen';
 
@@ -78,23 +68,7 @@ async function renderFleet(devices: unknown[]) {
         return null;
     }
   };
-  const store = new SessionStore({
-    api: new IdentityApi({ fetch: server.fetch }),
-    countOutbox: async () => 0,
-  });
-  await store.load();
-  await store.signIn({ email: ROSALIND.email, password: PASSWORDS[ROSALIND.email]! });
-  render(
-    <QueryClientProvider
-      client={new QueryClient({ defaultOptions: { queries: { retry: false } } })}
-    >
-      <SessionProvider store={store} background={false}>
-        <MemoryRouter>
-          <FleetScreen />
-        </MemoryRouter>
-      </SessionProvider>
-    </QueryClientProvider>,
-  );
+  await renderAsAdmin(server, <FleetScreen />);
   return { seen };
 }
 

@@ -2,10 +2,8 @@
 // (passphrase or PIN only, the setting `unlockWithoutHardware` sent with GET /api/devices/me)
 // and names what a secret still lacks; on a tablet with one, a PIN of 6 digits is combined
 // with its hardware share whatever the rule.
-import { cleanup, render, screen, waitFor } from '@testing-library/react';
+import { cleanup, screen, waitFor } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
-import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
-import { MemoryRouter, Route, Routes } from 'react-router-dom';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import {
   AMARA,
@@ -13,9 +11,7 @@ import {
   fakeClinicServer,
   type FakeClinicServer,
 } from '../../auth/fake-clinic-server.fixture';
-import { IdentityApi } from '../../auth/identity-api';
-import { SessionProvider } from '../../auth/SessionProvider';
-import { SessionStore } from '../../auth/session-store';
+import { renderWithSession, storeOn } from '../../auth/session-screen.fixture';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
 import { fakeHardware } from '../../data/crypto/fake-hardware.fixture';
 import type { HardwareShare } from '../../data/crypto/hardware-share';
@@ -35,28 +31,13 @@ const PASSPHRASE_RULE = {
 async function pinScreen(options: { rule?: unknown; hardware?: HardwareShare } = {}) {
   const server: FakeClinicServer = fakeClinicServer(() => Date.now());
   server.unlockWithoutHardware = options.rule;
-  const store = new SessionStore({
-    api: new IdentityApi({ fetch: server.fetch }),
-    countOutbox: async () => 0,
-    ...(options.hardware ? { hardware: options.hardware } : {}),
-  });
+  const store = storeOn(server, options.hardware ? { hardware: options.hardware } : {});
   await store.load();
   await store.enrol(server.enrolmentCode);
   await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
   // The clinic's rule arrives with the tablet's check with the server.
   await store.checkTablet();
-  render(
-    <QueryClientProvider client={new QueryClient()}>
-      <SessionProvider store={store} background={false}>
-        <MemoryRouter initialEntries={['/pin']}>
-          <Routes>
-            <Route path="/pin" element={<PinSetupScreen />} />
-            <Route path="/" element={<p>Home</p>} />
-          </Routes>
-        </MemoryRouter>
-      </SessionProvider>
-    </QueryClientProvider>,
-  );
+  renderWithSession(store, <PinSetupScreen />, { at: '/pin' });
   return store;
 }
 

@@ -1,12 +1,8 @@
-import { cleanup, render, screen, waitFor } from '@testing-library/react';
+import { cleanup, screen, waitFor } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
-import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
-import { MemoryRouter, Route, Routes } from 'react-router-dom';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { AMARA, PASSWORDS, TOMASZ, fakeClinicServer } from '../../auth/fake-clinic-server.fixture';
-import { IdentityApi } from '../../auth/identity-api';
-import { SessionProvider } from '../../auth/SessionProvider';
-import { SessionStore } from '../../auth/session-store';
+import { renderWithSession, storeOn } from '../../auth/session-screen.fixture';
 import { eraseAllDatabases } from '../../auth/tablet-erasure';
 import { fakeHardware, type FakeHardware } from '../../data/crypto/fake-hardware.fixture';
 import UnlockScreen from './UnlockScreen';
@@ -18,11 +14,7 @@ afterEach(cleanup);
 
 async function tabletWithTwoPeople(hardware?: FakeHardware) {
   const server = fakeClinicServer(() => Date.now());
-  const store = new SessionStore({
-    api: new IdentityApi({ fetch: server.fetch }),
-    countOutbox: async () => 0,
-    ...(hardware ? { hardware } : {}),
-  });
+  const store = storeOn(server, hardware ? { hardware } : {});
   await store.load();
   await store.enrol(server.enrolmentCode);
   await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
@@ -30,18 +22,7 @@ async function tabletWithTwoPeople(hardware?: FakeHardware) {
   await store.switchPerson();
   await store.signIn({ email: TOMASZ.email, password: PASSWORDS[TOMASZ.email]! });
   await store.switchPerson();
-  render(
-    <QueryClientProvider client={new QueryClient()}>
-      <SessionProvider store={store} background={false}>
-        <MemoryRouter initialEntries={['/unlock']}>
-          <Routes>
-            <Route path="/unlock" element={<UnlockScreen />} />
-            <Route path="/" element={<p>Home</p>} />
-          </Routes>
-        </MemoryRouter>
-      </SessionProvider>
-    </QueryClientProvider>,
-  );
+  renderWithSession(store, <UnlockScreen />, { at: '/unlock' });
   return store;
 }
 
