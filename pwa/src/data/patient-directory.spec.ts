@@ -5,7 +5,7 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { SyncEngine } from '../sync/sync-engine';
 import { applyPushResults } from '../sync/local-apply';
 import { FuselightDb, type StoredRecord } from './db';
-import { nextChunkSize } from './patient-directory';
+import { nextChunkSize, sortTerms, type PatientEntry } from './patient-directory';
 import { OutboxRepository } from './outbox-repository';
 import { RecordsRepository, type EditContext } from './records-repository';
 import { CLINICIAN_ID, DEVICE_ID, OTHER_SITE_ID, SITE_ID, patientFields } from './test-fixtures';
@@ -55,12 +55,49 @@ const names = (found: Array<{ fields: { familyName: string } }>) =>
   found.map((patient) => patient.fields.familyName);
 
 describe('the load step size', () => {
-  it('halves after a step over its 8 ms budget, grows after a quick one, within 25 to 1,000', () => {
-    expect(nextChunkSize(100, 20)).toBe(50);
-    expect(nextChunkSize(30, 20)).toBe(25);
-    expect(nextChunkSize(100, 2)).toBe(150);
-    expect(nextChunkSize(900, 1)).toBe(1_000);
-    expect(nextChunkSize(100, 6)).toBe(100);
+  it('halves after a step over its 4 ms budget, grows after a quick one, within 25 to 1,000', () => {
+    expect(nextChunkSize(100, 10)).toBe(50);
+    expect(nextChunkSize(30, 10)).toBe(25);
+    expect(nextChunkSize(100, 1)).toBe(150);
+    expect(nextChunkSize(900, 0.5)).toBe(1_000);
+    expect(nextChunkSize(100, 3)).toBe(100);
+  });
+});
+
+describe('the sort that follows the load', () => {
+  const entry = (id: string, terms: string[]): PatientEntry => ({
+    id,
+    siteId: null,
+    terms,
+    record: storedPatient(0),
+  });
+
+  it('orders every (term, patient) pair as one native sort would, a bounded piece at a time', () => {
+    // Terms shared between patients and runs of different lengths: 1,234 entries is four whole
+    // runs and a short fifth, so the last merge takes an odd run.
+    const entries = Array.from({ length: 1234 }, (_, i) =>
+      entry(`id-${(i * 7919) % 1234}`, [`t${i % 37}`, `u${(i * 13) % 101}`, `solo${i}`]),
+    );
+    const sorting = sortTerms(entries);
+    let pieces = 0;
+    let step = sorting.next();
+    while (!step.done) {
+      pieces += 1;
+      step = sorting.next();
+    }
+    // The reference: every pair, sorted at once by JavaScript's own sort.
+    const reference = entries
+      .flatMap((e) => e.terms.map((term) => [term, e.id] as const))
+      .sort(([ta, ia], [tb, ib]) => (ta < tb ? -1 : ta > tb ? 1 : ia < ib ? -1 : ia > ib ? 1 : 0));
+    const { terms, owners } = step.value;
+    expect(terms.map((term, i) => [term, owners[i]?.id])).toEqual(reference);
+    // 3,702 pairs in five runs: more pieces than runs, so no piece did the whole sort.
+    expect(pieces).toBeGreaterThan(10);
+  });
+
+  it('gives empty arrays for no patients', () => {
+    const step = sortTerms([]).next();
+    expect(step).toEqual({ done: true, value: { terms: [], owners: [] } });
   });
 });
 
@@ -97,6 +134,46 @@ describe('the patient directory before and while it loads', () => {
     expect(renamed.map((patient) => patient.id)).toEqual([lastId]);
     expect(await records.searchPatients('family3499')).toEqual([]);
     expect(db.patientDirectory.stats().patients).toBe(3500);
+  });
+
+  it('keeps the writes that commit while the load sorts what it read', async () => {
+    const db = freshDb();
+    await db.records.bulkPut(Array.from({ length: 3000 }, (_, i) => storedPatient(i)));
+    const records = new RecordsRepository(db);
+    // One piece of the sort per slice, so the sort spans many tasks and the writes land in it.
+    db.patientDirectory.sortSliceMs = 0;
+    records.warmPatientSearch();
+    for (let waits = 0; db.patientDirectory.phase !== 'sorting'; waits += 1) {
+      expect(waits).toBeLessThan(10_000);
+      await new Promise((resolve) => setTimeout(resolve, 0));
+    }
+    const renamed = storedPatient(10).id;
+    await records.update('patient', renamed, { familyName: 'Sortwell' }, ctx());
+    await records.remove('patient', storedPatient(20).id, ctx());
+    const created = await records.create('patient', patientFields({ familyName: 'Midsort' }), ctx());
+    expect(db.patientDirectory.phase).toBe('sorting');
+
+    await db.patientDirectory.whenReady();
+    expect((await records.searchPatients('sortwell')).map((p) => p.id)).toEqual([renamed]);
+    // "family10" also finds Family100 to Family1099: the renamed one must not be among them.
+    const family10 = (await records.searchPatients('family10', { limit: 200 })).map((p) => p.id);
+    expect(family10).toHaveLength(110);
+    expect(family10).not.toContain(renamed);
+    const family20 = (await records.searchPatients('family20', { limit: 200 })).map((p) => p.id);
+    expect(family20).toHaveLength(110);
+    expect(family20).not.toContain(storedPatient(20).id);
+    expect((await records.searchPatients('midsort')).map((p) => p.id)).toEqual([created]);
+    expect(db.patientDirectory.stats().patients).toBe(3000);
+    // The same as a directory loaded from scratch afterwards, on another connection.
+    const again = new FuselightDb(db.name);
+    opened.push(again);
+    await again.patientDirectory.whenReady();
+    expect(again.patientDirectory.stats().terms).toBe(db.patientDirectory.stats().terms);
+    for (const query of ['family1', 'given29', 'fl-2', 'midsort']) {
+      const here = await records.searchPatients(query, { limit: 50 });
+      const there = await new RecordsRepository(again).searchPatients(query, { limit: 50 });
+      expect(here.map((p) => p.id)).toEqual(there.map((p) => p.id));
+    }
   });
 
   it('reports a failed load to the search instead of an empty result', async () => {
