@@ -29,11 +29,11 @@ import { HomeRedirect, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
 import { SignInPrompt } from '../auth/SignInPrompt';
 import { IdentityFrameContext, type IdentityFrameProps } from '../auth/ui/IdentityPage';
-import { NewerRecordsUpdateCheck } from '../components/NewerRecordsUpdateCheck';
 import { IonicIdentityFrame } from './IonicIdentityFrame';
 import { Loading } from './Loading';
 import {
   BenchScreen,
+  NewerRecordsUpdateCheck,
   ChartScreen,
   FleetScreen,
   OutboxScreen,

@@ -20,6 +20,8 @@ import {
   type SyncEngine,
   type SyncStatus,
 } from '../sync';
+import { formatCount } from './format-count';
+import './sync-indicator.css';
 
 /** "just now", "3 min ago", "at 09:41", or "on 1 Dec" for an older time. */
 export function describeLastSynced(lastSyncedAt: number | null, nowMs: number): string {
@@ -66,7 +68,7 @@ export function describeRepullForBar(
   if (repull.finishedAt !== null && nowMs - repull.finishedAt > REPULL_DONE_SHOWN_MS) return null;
   if (compact) {
     return repull.finishedAt === null
-      ? `Full re-sync: ${repull.received.toLocaleString()} received`
+      ? `Full re-sync: ${formatCount(repull.received)} received`
       : `Full re-sync done`;
   }
   return describeFullRepull(repull, clockTime);
@@ -95,7 +97,7 @@ function describeProgress(status: SyncStatus): string | null {
   const progress = status.progress;
   if (!progress) return null;
   if (progress.step === 'push') return `Sending ${progress.done} of ${progress.total ?? '?'}`;
-  return `Receiving: ${progress.done.toLocaleString()} records so far`;
+  return `Receiving: ${formatCount(progress.done)} records so far`;
 }
 
 export function SyncIndicator(props: {
@@ -132,19 +134,22 @@ export function SyncIndicator(props: {
   return (
     <section
       aria-label={`Sync status: ${status.online ? 'online' : 'offline'}${live === 'Live' ? ', changes arrive live' : ''}, ${describeOutbox(status)}, ${describeLastSynced(status.lastSyncedAt, nowMs)}${status.error ? `. ${status.error}` : ''}${newer ? `. ${newer}` : ''}`}
-      className="fl-sync-indicator"
-      style={{
-        display: 'flex',
-        flexWrap: 'wrap',
-        alignItems: 'center',
-        gap: 12,
-        padding: props.compact ? '0 8px' : '4px 12px',
-        borderBottom: props.compact ? undefined : '1px solid var(--fl-border)',
-        background: props.compact ? undefined : 'var(--fl-surface)',
-        flex: props.compact ? '1 1 auto' : undefined,
-        justifyContent: props.compact ? 'flex-end' : undefined,
-        fontSize: props.compact ? '0.85rem' : undefined,
-      }}
+      className={
+        props.compact ? 'fl-sync-indicator fl-sync-indicator--compact' : 'fl-sync-indicator'
+      }
+      style={
+        props.compact
+          ? undefined
+          : {
+              display: 'flex',
+              flexWrap: 'wrap',
+              alignItems: 'center',
+              gap: 12,
+              padding: '4px 12px',
+              borderBottom: '1px solid var(--fl-border)',
+              background: 'var(--fl-surface)',
+            }
+      }
     >
       <span
         role="status"
@@ -184,33 +189,15 @@ export function SyncIndicator(props: {
       </span>
       {note ? (
         <span
-          className="fl-muted"
+          className={props.compact ? 'fl-muted fl-sync-indicator__short' : 'fl-muted'}
           title={note}
-          style={
-            props.compact
-              ? {
-                  maxWidth: '16rem',
-                  overflow: 'hidden',
-                  textOverflow: 'ellipsis',
-                  whiteSpace: 'nowrap',
-                }
-              : { flex: '1 1 16rem' }
-          }
+          style={props.compact ? undefined : { flex: '1 1 16rem' }}
         >
           {note}
         </span>
       ) : props.compact ? (
         problem ? (
-          <span
-            role="alert"
-            title={problem}
-            style={{
-              maxWidth: '16rem',
-              overflow: 'hidden',
-              textOverflow: 'ellipsis',
-              whiteSpace: 'nowrap',
-            }}
-          >
+          <span role="alert" title={problem} className="fl-sync-indicator__short">
             {problem}
           </span>
         ) : null

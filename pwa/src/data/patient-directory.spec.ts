@@ -55,12 +55,12 @@ const names = (found: Array<{ fields: { familyName: string } }>) =>
   found.map((patient) => patient.fields.familyName);
 
 describe('the load step size', () => {
-  it('halves after a step over its 4 ms budget, grows after a quick one, within 25 to 1,000', () => {
-    expect(nextChunkSize(100, 10)).toBe(50);
-    expect(nextChunkSize(30, 10)).toBe(25);
-    expect(nextChunkSize(100, 1)).toBe(150);
-    expect(nextChunkSize(900, 0.5)).toBe(1_000);
-    expect(nextChunkSize(100, 3)).toBe(100);
+  it('halves after a step over its 2 ms budget, grows after a quick one, within 25 to 400', () => {
+    expect(nextChunkSize(100, 5)).toBe(50);
+    expect(nextChunkSize(30, 5)).toBe(25);
+    expect(nextChunkSize(100, 0.5)).toBe(150);
+    expect(nextChunkSize(300, 0.2)).toBe(400);
+    expect(nextChunkSize(100, 1.5)).toBe(100);
   });
 });
 
@@ -150,7 +150,11 @@ describe('the patient directory before and while it loads', () => {
     const renamed = storedPatient(10).id;
     await records.update('patient', renamed, { familyName: 'Sortwell' }, ctx());
     await records.remove('patient', storedPatient(20).id, ctx());
-    const created = await records.create('patient', patientFields({ familyName: 'Midsort' }), ctx());
+    const created = await records.create(
+      'patient',
+      patientFields({ familyName: 'Midsort' }),
+      ctx(),
+    );
     expect(db.patientDirectory.phase).toBe('sorting');
 
     await db.patientDirectory.whenReady();

@@ -6,6 +6,7 @@
 import { PULL_RESET_REASONS, type PullResetReason } from '@fuselight/shared';
 import type { FuselightDb } from '../data/db';
 import { CURSOR_KEY } from './local-apply';
+import { formatCount } from '../components/format-count';
 
 export const FULL_REPULL_KEY = 'fullRepull';
 
@@ -115,7 +116,7 @@ export function describeFullRepull(
             : repull.reason === 'damaged'
               ? 'a record stored on this tablet could not be read, so good copies are fetched from the clinic server'
               : 'the clinic server asked this tablet to start over';
-  const count = `${repull.received.toLocaleString()} record${repull.received === 1 ? '' : 's'}`;
+  const count = `${formatCount(repull.received)} record${repull.received === 1 ? '' : 's'}`;
   if (repull.finishedAt === null) {
     return `Full re-sync under way (${why}): ${count} received so far. Your edits and Outbox are kept.`;
   }

@@ -1,0 +1,41 @@
+// The record schemas, built a few at a time before the screens that use them load.
+//
+// Building a zod schema is work on the main thread: every field is a few schema objects, each
+// set up with its methods. The tablet's twenty record schemas take about 50 ms on the
+// benchmark's machine, some 200 ms on a tablet four times slower; built in one go they would be
+// one long task, during which a tap waits. Each import below is its own module graph, run in a
+// task of its own as its chunk arrives, so the building is cut into pieces. Zod and the field
+// builders come with whichever piece runs first. The registry (shared/src/schemas/registry.ts),
+// which ties them together, comes last, once every schema is built.
+let built: Promise<void> | null = null;
+
+const PIECES = [
+  () => import('@fuselight/shared/schemas/patient.schema'),
+  () => import('@fuselight/shared/schemas/visit.schema'),
+  () => import('@fuselight/shared/schemas/amblyoscope.schema'),
+  () => import('@fuselight/shared/schemas/acuity.schema'),
+  () => import('@fuselight/shared/schemas/cover-test.schema'),
+  () => import('@fuselight/shared/schemas/near-vision.schema'),
+  () => import('@fuselight/shared/schemas/motility.schema'),
+  () => import('@fuselight/shared/schemas/plan.schema'),
+  () => import('@fuselight/shared/schemas/attachment.schema'),
+  () => import('@fuselight/shared/schemas/letter.schema'),
+  () => import('@fuselight/shared/schemas/addendum.schema'),
+];
+
+/**
+ * Resolves once every record schema is built; the screens and the sync engine load after it
+ * (signed-in-routes.tsx). A failed load is not kept: the next call tries again.
+ */
+export function buildSchemas(): Promise<void> {
+  built ??= Promise.all(PIECES.map((load) => load()))
+    .then(() => import('@fuselight/shared/schemas/registry'))
+    .then(
+      () => undefined,
+      (error: unknown) => {
+        built = null;
+        throw error;
+      },
+    );
+  return built;
+}
