@@ -122,6 +122,22 @@ describe('the collection registry', () => {
   });
 });
 
+describe('the tables worked out on first read', () => {
+  it('lists every collection, and gives the same table at every read', () => {
+    expect(Object.keys(fieldMeta)).toEqual([...COLLECTIONS]);
+    expect(Object.keys(sectionDefaults)).toEqual([...SECTION_COLLECTIONS]);
+    const first = fieldMeta.fusionalRanges;
+    expect(fieldMeta.fusionalRanges).toBe(first);
+    expect(sectionDefaults.coverTest).toBe(sectionDefaults.coverTest);
+    expect(requiredFields('patient')).toBe(requiredFields('patient'));
+    // Once read, a table cannot be replaced.
+    expect(() => {
+      (fieldMeta as Record<string, unknown>).fusionalRanges = {};
+    }).toThrow(TypeError);
+    expect(fieldMeta.fusionalRanges).toBe(first);
+  });
+});
+
 describe('section defaults', () => {
   it('exist for every section and are accepted as a change', () => {
     for (const collection of SECTION_COLLECTIONS) {

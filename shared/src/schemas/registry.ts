@@ -107,25 +107,43 @@ function buildFieldMeta(collection: CollectionName): Record<string, FieldMeta> {
   return Object.fromEntries(entries);
 }
 
-/** Label (the trade's words), unit and kind of every field, for screens and the review desk. */
-export const fieldMeta = Object.fromEntries(
-  COLLECTIONS.map((collection) => [collection, buildFieldMeta(collection)]),
-) as { readonly [C in CollectionName]: Readonly<Record<FieldName<C>, FieldMeta>> };
+/**
+ * An object with one property per key, each worked out by `build` when first read and kept. The
+ * tables below are read a collection at a time, so a tablet works out only those its screens
+ * show, and none while this module loads (a start that built every table was one long task).
+ */
+function lazyTable<K extends string, V>(keys: readonly K[], build: (key: K) => V): Record<K, V> {
+  const table = {} as Record<K, V>;
+  for (const key of keys) {
+    Object.defineProperty(table, key, {
+      enumerable: true,
+      configurable: true,
+      get() {
+        const value = build(key);
+        Object.defineProperty(table, key, { value, enumerable: true, writable: false });
+        return value;
+      },
+    });
+  }
+  return table;
+}
 
-const requiredByCollection = new Map<CollectionName, readonly string[]>(
-  COLLECTIONS.map((collection) => [
-    collection,
-    Object.freeze(
-      Object.entries(fieldMeta[collection] as Record<string, FieldMeta>)
-        .filter(([, meta]) => meta.required)
-        .map(([field]) => field),
-    ),
-  ]),
+/** Label (the trade's words), unit and kind of every field, for screens and the review desk. */
+export const fieldMeta = lazyTable(COLLECTIONS, buildFieldMeta) as {
+  readonly [C in CollectionName]: Readonly<Record<FieldName<C>, FieldMeta>>;
+};
+
+const requiredByCollection = lazyTable(COLLECTIONS, (collection) =>
+  Object.freeze(
+    Object.entries(fieldMeta[collection] as Record<string, FieldMeta>)
+      .filter(([, meta]) => meta.required)
+      .map(([field]) => field),
+  ),
 );
 
 /** Field names a full record of the collection must carry (worked out once per collection). */
 export function requiredFields(collection: CollectionName): readonly string[] {
-  return requiredByCollection.get(collection) ?? [];
+  return requiredByCollection[collection] ?? [];
 }
 
 export type SectionDefaults<C extends SectionCollectionName> = Omit<
@@ -146,9 +164,9 @@ function buildSectionDefaults(collection: SectionCollectionName): Record<string,
 }
 
 /** Default form values per section (placement keys siteId, visitId, patientId left to the caller). */
-export const sectionDefaults = Object.fromEntries(
-  SECTION_COLLECTIONS.map((collection) => [collection, buildSectionDefaults(collection)]),
-) as { readonly [C in SectionCollectionName]: Readonly<SectionDefaults<C>> };
+export const sectionDefaults = lazyTable(SECTION_COLLECTIONS, buildSectionDefaults) as {
+  readonly [C in SectionCollectionName]: Readonly<SectionDefaults<C>>;
+};
 
 export interface FieldError {
   field: string;
