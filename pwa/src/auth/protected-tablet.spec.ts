@@ -18,6 +18,7 @@ import {
   type FakeClinicServer,
 } from './fake-clinic-server.fixture';
 import { oldestOutboxCreatedAt } from '../storage/useOldestUnsyncedAt';
+import { AUTH_DB_NAME } from './auth-db';
 import { IdentityApi } from './identity-api';
 import { SessionStore } from './session-store';
 import { eraseAllDatabases } from './tablet-erasure';
@@ -129,16 +130,21 @@ describe('a protected tablet', () => {
     expect((await records.list('patient')).map((p) => p.fields.familyName)).toEqual(['Okafor']);
   });
 
-  it('opens a fresh tablet’s first screen without creating the records database', async () => {
+  it('opens a fresh tablet’s first screen without creating the records or session database', async () => {
     const { store, server } = setUp();
     const names = async () => (await indexedDB.databases()).map((database) => database.name);
     await store.load();
     expect(await oldestOutboxCreatedAt(getDefaultDb())).toBeNull();
     expect(store.getSnapshot().loaded).toBe(true);
+    expect(store.getSnapshot().tablet).toBeNull();
+    expect(store.getSnapshot().people).toEqual([]);
     expect(tabletVault.isProtected).toBe(false);
     expect(await names()).not.toContain('fuselight');
-    // Signing in and setting a PIN makes it, with the slot, as before.
+    expect(await names()).not.toContain(AUTH_DB_NAME);
+    // Enrolling makes the session database; signing in and setting a PIN the records database,
+    // with the slot, as before.
     await store.enrol(server.enrolmentCode);
+    expect(await names()).toContain(AUTH_DB_NAME);
     await store.signIn({ email: AMARA.email, password: PASSWORDS[AMARA.email]! });
     await store.setPin('482913');
     expect(await names()).toContain('fuselight');

@@ -186,13 +186,17 @@ export class SessionStore {
     const state = this.state;
     state.erasure = readErasureNote();
     const db = state.db;
+    // A tablet that was never enrolled nor signed in on has no session database, and reading it
+    // would create it: every table, on the first visit's sign-in screen. Its first write
+    // (enrolment, sign-in) creates it instead.
+    const held = db.isOpen() || (await databaseMayExist(db.name));
     const [tablet, people, active, sites, colleagues] = await Promise.all([
-      db.tablet.get('tablet'),
-      db.people.toArray(),
-      db.settings.get(ACTIVE_KEY),
-      db.sites.toArray(),
-      db.colleagues.toArray(),
-      this.pinLock.load(),
+      held ? db.tablet.get('tablet') : undefined,
+      held ? db.people.toArray() : [],
+      held ? db.settings.get(ACTIVE_KEY) : undefined,
+      held ? db.sites.toArray() : [],
+      held ? db.colleagues.toArray() : [],
+      held ? this.pinLock.load() : undefined,
       this.keyRing.load(),
     ]);
     state.sites = new Map(sites.map((site) => [site.id, site]));
