@@ -514,9 +514,10 @@ const comparePairs = (a: TermPair, b: TermPair) => compare(a[0], a[1].id, b[0], 
 
 /**
  * The sorted term and owner arrays of the given entries, made a little at a time: each `next()`
- * does a bounded piece (a run of RUN_ENTRIES entries sorted natively, or up to 1,024 elements of
- * a merge), so the caller can give the screen the main thread back between slices. The runs are
- * merged pairwise, bottom up: O(n log n) in all.
+ * does a bounded piece (a run of RUN_ENTRIES entries sorted natively, up to 1,024 compared
+ * elements of a merge, the copy of what is left of a merge's longer run, or 4,096 elements of
+ * the final arrays), so the caller can give the screen the main thread back between slices. The
+ * runs are merged pairwise, bottom up: O(n log n) in all.
  */
 export function* sortTerms(
   entries: readonly PatientEntry[],
