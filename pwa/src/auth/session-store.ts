@@ -15,7 +15,7 @@ import { getAttachmentDb, SEALED_ATTACHMENT_TABLES } from '../attachments/attach
 import { tabletVault } from '../data/crypto/data-key-vault';
 import { webAuthnShare, type HardwareShare } from '../data/crypto/hardware-share';
 import { KeyRing } from '../data/crypto/key-ring';
-import { databaseMayExist } from '../data/database-exists';
+import { databaseMayExist, databaseMayHoldData } from '../data/database-exists';
 import { DEFAULT_DB_NAME, getDefaultDb, SEALED_TABLES } from '../data/db';
 import type { IdentityApi, SignInResponse } from './identity-api';
 import { lazyIdentityApi } from './lazy-identity-api';
@@ -189,7 +189,7 @@ export class SessionStore {
     // A tablet that was never enrolled nor signed in on has no session database, and reading it
     // would create it: every table, on the first visit's sign-in screen. Its first write
     // (enrolment, sign-in) creates it instead.
-    const held = db.isOpen() || (await databaseMayExist(db.name));
+    const held = await databaseMayHoldData(db);
     const [tablet, people, active, sites, colleagues] = await Promise.all([
       held ? db.tablet.get('tablet') : undefined,
       held ? db.people.toArray() : [],

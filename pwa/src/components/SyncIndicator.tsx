@@ -20,7 +20,7 @@ import {
   type SyncEngine,
   type SyncStatus,
 } from '../sync';
-import { formatCount } from './format-count';
+import { formatCount } from '../sync/format-count';
 import './sync-indicator.css';
 
 /** "just now", "3 min ago", "at 09:41", or "on 1 Dec" for an older time. */

@@ -15,3 +15,15 @@ export async function databaseMayExist(name: string): Promise<boolean> {
     return true;
   }
 }
+
+/**
+ * Whether reading the given database could find anything: true when it is open here, otherwise
+ * as `databaseMayExist`. A caller that would only read skips the read when false, so that
+ * reading does not create the database.
+ */
+export async function databaseMayHoldData(db: {
+  readonly name: string;
+  isOpen(): boolean;
+}): Promise<boolean> {
+  return db.isOpen() || databaseMayExist(db.name);
+}

@@ -3,14 +3,14 @@
 // needs none of the repositories' code). The app-wide storage warning runs it on every screen,
 // the signed-out shell included, so it stays this light.
 import { useQuery } from '@tanstack/react-query';
-import { databaseMayExist } from '../data/database-exists';
+import { databaseMayHoldData } from '../data/database-exists';
 import { getDefaultDb, type FuselightDb } from '../data/db';
 import { useDataInvalidation } from '../data/hooks/useDataInvalidation';
 import { queryKeys } from '../data/query-keys';
 
 export async function oldestOutboxCreatedAt(db: FuselightDb): Promise<number | null> {
   // A tablet without the records database has nothing waiting: do not create it here.
-  if (!db.isOpen() && !(await databaseMayExist(db.name))) return null;
+  if (!(await databaseMayHoldData(db))) return null;
   const [first] = await db.outbox.orderBy('createdAt').limit(1).keys();
   return typeof first === 'number' ? first : null;
 }

@@ -6,7 +6,7 @@
 import { PULL_RESET_REASONS, type PullResetReason } from '@fuselight/shared';
 import type { FuselightDb } from '../data/db';
 import { CURSOR_KEY } from './local-apply';
-import { formatCount } from '../components/format-count';
+import { formatCount } from './format-count';
 
 export const FULL_REPULL_KEY = 'fullRepull';
 
