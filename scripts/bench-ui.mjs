@@ -17,7 +17,7 @@
 // The tablet's session and the patients are written straight into IndexedDB with Dexie (its
 // UMD build injected into the page), in the shapes the app's own stores use.
 //   node scripts/bench-ui.mjs [--no-build] [--no-lighthouse] [--no-unlock] [--patients 20000] [--runs 7]
-//                             [--searches 15]
+//                             [--searches 15] [--lighthouse-runs 3] [--lighthouse-pages signin,today]
 /* global window, document, HTMLInputElement, MutationObserver, requestAnimationFrame -- code run inside the page */
 import { spawn, spawnSync } from 'node:child_process';
 import {
@@ -32,6 +32,7 @@ import { createServer } from 'node:http';
 import { tmpdir } from 'node:os';
 import { extname, join, normalize, resolve } from 'node:path';
 import { createGzip } from 'node:zlib';
+import { computeMedianRun } from 'lighthouse/core/lib/median-run.js';
 import { chromium } from 'playwright-core';
 import { chromiumPath } from './lib.mjs';
 
@@ -45,6 +46,14 @@ const option = (name, fallback) => {
 const PATIENTS = option('--patients', 20_000);
 const RUNS = option('--runs', 7);
 const SEARCHES = option('--searches', 15);
+// Lighthouse's figures vary from run to run; each page is measured this many times and the run
+// Lighthouse's own computeMedianRun picks (nearest the median first paint and interactive) is
+// printed, with every run's performance score beside it.
+const LIGHTHOUSE_RUNS = option('--lighthouse-runs', 3);
+// --lighthouse-pages today (or signin) measures one page only, for comparing builds.
+const LIGHTHOUSE_PAGES = args.includes('--lighthouse-pages')
+  ? args[args.indexOf('--lighthouse-pages') + 1].split(',')
+  : ['signin', 'today'];
 
 if (!args.includes('--no-build')) {
   const built = spawnSync('npm', ['run', 'build', '-w', 'pwa', '--silent'], {
@@ -522,6 +531,8 @@ const TIMINGS = [
   ['cumulative-layout-shift', 'layout shift'],
 ];
 
+let keptReports = 0;
+
 async function lighthouseRun(url, { profile } = {}) {
   const out = join(mkdtempSync(join(tmpdir(), 'fl-lighthouse-')), 'report.json');
   const chromeFlags = [
@@ -558,9 +569,10 @@ async function lighthouseRun(url, { profile } = {}) {
   }
   // FUSELIGHT_LIGHTHOUSE_REPORTS=<dir> keeps each full report there, to read its audits.
   if (process.env.FUSELIGHT_LIGHTHOUSE_REPORTS) {
+    keptReports += 1;
     const kept = join(
       process.env.FUSELIGHT_LIGHTHOUSE_REPORTS,
-      `${new URL(url).pathname.slice(1)}.json`,
+      `${new URL(url).pathname.slice(1)}-${keptReports}.json`,
     );
     copyFileSync(out, kept);
     console.log(`  (report kept: ${kept})`);
@@ -568,20 +580,32 @@ async function lighthouseRun(url, { profile } = {}) {
   return JSON.parse(readFileSync(out, 'utf8'));
 }
 
-function printLighthouse(name, report) {
+async function lighthousePage(name, url, options) {
+  const reports = [];
+  for (let i = 0; i < LIGHTHOUSE_RUNS; i += 1) reports.push(await lighthouseRun(url, options));
+  printLighthouse(name, computeMedianRun(reports), reports);
+}
+
+function printLighthouse(name, report, reports) {
   console.log(
-    `  Lighthouse ${report.lighthouseVersion} on ${name} (mobile, simulated throttling):`,
+    `  Lighthouse ${report.lighthouseVersion} on ${name} (mobile, simulated throttling; ` +
+      `the median of ${reports.length} run${reports.length === 1 ? '' : 's'}):`,
   );
+  const score = (r, id) => Math.round((r.categories[id]?.score ?? 0) * 100);
   for (const [id, aim] of Object.entries(AIMS)) {
-    const score = Math.round((report.categories[id]?.score ?? 0) * 100);
+    const runs = reports.length > 1 ? `; runs: ${reports.map((r) => score(r, id)).join(', ')}` : '';
     console.log(
-      `    ${report.categories[id]?.title ?? id}: ${score} (aim ${aim === 100 ? '100' : `≥ ${aim}`}: ${score >= aim ? 'met' : 'NOT met'})`,
+      `    ${report.categories[id]?.title ?? id}: ${score(report, id)} (aim ${aim === 100 ? '100' : `≥ ${aim}`}: ${score(report, id) >= aim ? 'met' : 'NOT met'}${runs})`,
     );
   }
   console.log(
     `    ${TIMINGS.map(([id, label]) => `${label} ${report.audits[id]?.displayValue ?? '?'}`).join(', ')}, ` +
       `${((report.audits['total-byte-weight']?.numericValue ?? 0) / 1024).toFixed(0)} KiB transferred`,
   );
+  if (reports.length > 1) {
+    const tbt = reports.map((r) => Math.round(r.audits['total-blocking-time']?.numericValue ?? 0));
+    console.log(`    total blocking time per run: ${tbt.map((ms) => `${ms} ms`).join(', ')}`);
+  }
   const failing = Object.values(report.audits)
     .filter((audit) => audit.scoreDisplayMode === 'binary' && audit.score === 0)
     .map((audit) => audit.id);
@@ -649,11 +673,14 @@ async function protectedUnlock() {
 try {
   if (!args.includes('--no-lighthouse')) {
     apiUnreachable = true;
-    printLighthouse('/signin (first visit)', await lighthouseRun(`${origin}/signin`));
-    printLighthouse(
-      '/today (enrolled tablet, signed in)',
-      await lighthouseRun(`${origin}/today`, { profile: profileDir }),
-    );
+    if (LIGHTHOUSE_PAGES.includes('signin')) {
+      await lighthousePage('/signin (first visit)', `${origin}/signin`);
+    }
+    if (LIGHTHOUSE_PAGES.includes('today')) {
+      await lighthousePage('/today (enrolled tablet, signed in)', `${origin}/today`, {
+        profile: profileDir,
+      });
+    }
     apiUnreachable = false;
   }
   // After Lighthouse, which measures the tablet unprotected.
