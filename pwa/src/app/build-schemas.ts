@@ -3,13 +3,16 @@
 // Building a zod schema is work on the main thread: every field is a few schema objects, each
 // set up with its methods. The tablet's twenty record schemas take about 50 ms on the
 // benchmark's machine, some 200 ms on a tablet four times slower; built in one go they would be
-// one long task, during which a tap waits. Each import below is its own module graph, run in a
-// task of its own as its chunk arrives, so the building is cut into pieces. Zod and the field
-// builders come with whichever piece runs first. The registry (shared/src/schemas/registry.ts),
-// which ties them together, comes last, once every schema is built.
+// one long task, during which a tap waits. So the pieces below are imported one after another,
+// each in a task of its own: zod, then the field builders, then one schema module at a time.
+// (Imported together, they would all wait for zod and then all run in the task it arrives in.)
+// The registry (shared/src/schemas/registry.ts), which ties them together, comes last.
 let built: Promise<void> | null = null;
 
 const PIECES = [
+  () => import('zod'),
+  () => import('@fuselight/shared/schemas/field-types.schema'),
+  () => import('@fuselight/shared/schemas/section.schema'),
   () => import('@fuselight/shared/schemas/patient.schema'),
   () => import('@fuselight/shared/schemas/visit.schema'),
   () => import('@fuselight/shared/schemas/amblyoscope.schema'),
@@ -28,14 +31,22 @@ const PIECES = [
  * (signed-in-routes.tsx). A failed load is not kept: the next call tries again.
  */
 export function buildSchemas(): Promise<void> {
-  built ??= Promise.all(PIECES.map((load) => load()))
-    .then(() => import('@fuselight/shared/schemas/registry'))
-    .then(
-      () => undefined,
-      (error: unknown) => {
-        built = null;
-        throw error;
-      },
-    );
+  built ??= buildInPieces().catch((error: unknown) => {
+    built = null;
+    throw error;
+  });
   return built;
+}
+
+async function buildInPieces(): Promise<void> {
+  for (const load of PIECES) {
+    await load();
+    await nextTask();
+  }
+  await import('@fuselight/shared/schemas/registry');
+}
+
+/** Resolves in a later task, after whatever the browser has due (a frame, input). */
+function nextTask(): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, 0));
 }
