@@ -11,8 +11,8 @@ import {
   type ReactNode,
 } from 'react';
 import { version as appVersion } from '../../package.json';
-// The sync engine itself is started by pwa/src/sync/SyncRuntime.tsx with SessionSyncAuth; it is
-// reached here through a dynamic import so that sign-in does not load it (bench:bundle).
+// The sync engine is started by pwa/src/sync/SyncRuntime.tsx with SessionSyncAuth, which also
+// sends a heartbeat after each sync; sign-in loads neither (bench:bundle).
 import { IdleTimer } from './session/idle-lock';
 import { SessionContext, type TabletSession } from './session-context';
 import { SessionStore, type AuthSnapshot } from './session-store';
@@ -101,41 +101,6 @@ export function SessionProvider({
     }, RETIREMENT_CHECK_EVERY_MS);
     return () => clearInterval(timer);
   }, [store, background, retired]);
-
-  // Heartbeat after each sync, with the Outbox size the sync engine just counted. The engine
-  // runs only while someone is signed in, so the signed-out shell does not load it.
-  useEffect(() => {
-    if (!background || !someoneActive) return;
-    let lastSyncedAt: number | null = null;
-    let unsubscribeStatus: (() => void) | null = null;
-    let unsubscribeEngine: (() => void) | null = null;
-    let ended = false;
-    void import('../sync/sync-runtime').then(({ getSyncEngine, subscribeSyncEngine }) => {
-      if (ended) return;
-      const watch = () => {
-        unsubscribeStatus?.();
-        const engine = getSyncEngine();
-        unsubscribeStatus =
-          engine?.status.subscribe(() => {
-            const status = engine.status.getSnapshot();
-            if (status.lastSyncedAt !== null && status.lastSyncedAt !== lastSyncedAt) {
-              lastSyncedAt = status.lastSyncedAt;
-              store.heartbeat(appVersion).catch(() => undefined);
-              if (store.getSnapshot().tablet?.state === 'retired') {
-                store.continueRetirement().catch(() => undefined);
-              }
-            }
-          }) ?? null;
-      };
-      watch();
-      unsubscribeEngine = subscribeSyncEngine(watch);
-    });
-    return () => {
-      ended = true;
-      unsubscribeEngine?.();
-      unsubscribeStatus?.();
-    };
-  }, [store, background, someoneActive]);
 
   const session = useMemo<TabletSession>(
     () => ({
