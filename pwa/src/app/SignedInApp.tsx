@@ -31,6 +31,7 @@ import { SignInPrompt } from '../auth/SignInPrompt';
 import { IdentityFrameContext, type IdentityFrameProps } from '../auth/ui/IdentityPage';
 import { IonicIdentityFrame } from './IonicIdentityFrame';
 import { Loading } from './Loading';
+import { useAfterFirstCommit } from './useAfterFirstScreen';
 import {
   BenchScreen,
   NewerRecordsUpdateCheck,
@@ -97,56 +98,79 @@ function AppTabsInner({ role, dock }: { role: Role | undefined; dock: boolean })
           <SyncDock />
         </Suspense>
       ) : null}
-      <IonTabBar
-        slot="bottom"
-        aria-label="Fuselight sections"
-        style={role ? undefined : { display: 'none' }}
-      >
-        {canSee(role, 'clinical') ? (
-          <IonTabButton tab="today" href="/today">
-            <IonIcon icon={calendarOutline} aria-hidden="true" />
-            <IonLabel>Today</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'clinical') ? (
-          <IonTabButton tab="outbox" href="/outbox">
-            <IonIcon icon={cloudUploadOutline} aria-hidden="true" />
-            <IonLabel>Outbox</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'review') ? (
-          <IonTabButton tab="review" href="/review">
-            <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
-            <IonLabel>Review desk</IonLabel>
-            <Suspense fallback={null}>
-              <ReviewTabBadge />
-            </Suspense>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'admin') ? (
-          <IonTabButton tab="fleet" href="/fleet">
-            <IonIcon icon={tabletPortraitOutline} aria-hidden="true" />
-            <IonLabel>Fleet</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'admin') ? (
-          <IonTabButton tab="people" href="/people">
-            <IonIcon icon={peopleOutline} aria-hidden="true" />
-            <IonLabel>People</IonLabel>
-          </IonTabButton>
-        ) : null}
-        {canSee(role, 'admin') ? (
-          <IonTabButton tab="sites" href="/sites">
-            <IonIcon icon={businessOutline} aria-hidden="true" />
-            <IonLabel>Sites</IonLabel>
-          </IonTabButton>
-        ) : null}
-        <IonTabButton tab="person" href="/person">
-          <IonIcon icon={personCircleOutline} aria-hidden="true" />
-          <IonLabel>You</IonLabel>
-        </IonTabButton>
-      </IonTabBar>
+      <AppTabBar role={role} />
     </IonTabs>
+  );
+}
+
+/**
+ * The tab bar (a dozen Ionic elements) is drawn a task after the shell and the screen, in a strip
+ * of its own size until then, so that neither first task is long on a slow tablet. Its own
+ * component, so that drawing it re-renders nothing else; IonTabs reaches it through its context.
+ */
+function AppTabBar({ role }: { role: Role | undefined }) {
+  const tabBarReady = useAfterFirstCommit();
+  return (
+    <>
+      {tabBarReady ? null : (
+        <div
+          slot="bottom"
+          className="fl-tab-bar-pending"
+          style={role ? undefined : { display: 'none' }}
+        />
+      )}
+      {tabBarReady ? (
+        <IonTabBar
+          slot="bottom"
+          aria-label="Fuselight sections"
+          style={role ? undefined : { display: 'none' }}
+        >
+          {canSee(role, 'clinical') ? (
+            <IonTabButton tab="today" href="/today">
+              <IonIcon icon={calendarOutline} aria-hidden="true" />
+              <IonLabel>Today</IonLabel>
+            </IonTabButton>
+          ) : null}
+          {canSee(role, 'clinical') ? (
+            <IonTabButton tab="outbox" href="/outbox">
+              <IonIcon icon={cloudUploadOutline} aria-hidden="true" />
+              <IonLabel>Outbox</IonLabel>
+            </IonTabButton>
+          ) : null}
+          {canSee(role, 'review') ? (
+            <IonTabButton tab="review" href="/review">
+              <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
+              <IonLabel>Review desk</IonLabel>
+              <Suspense fallback={null}>
+                <ReviewTabBadge />
+              </Suspense>
+            </IonTabButton>
+          ) : null}
+          {canSee(role, 'admin') ? (
+            <IonTabButton tab="fleet" href="/fleet">
+              <IonIcon icon={tabletPortraitOutline} aria-hidden="true" />
+              <IonLabel>Fleet</IonLabel>
+            </IonTabButton>
+          ) : null}
+          {canSee(role, 'admin') ? (
+            <IonTabButton tab="people" href="/people">
+              <IonIcon icon={peopleOutline} aria-hidden="true" />
+              <IonLabel>People</IonLabel>
+            </IonTabButton>
+          ) : null}
+          {canSee(role, 'admin') ? (
+            <IonTabButton tab="sites" href="/sites">
+              <IonIcon icon={businessOutline} aria-hidden="true" />
+              <IonLabel>Sites</IonLabel>
+            </IonTabButton>
+          ) : null}
+          <IonTabButton tab="person" href="/person">
+            <IonIcon icon={personCircleOutline} aria-hidden="true" />
+            <IonLabel>You</IonLabel>
+          </IonTabButton>
+        </IonTabBar>
+      ) : null}
+    </>
   );
 }
 

@@ -16,3 +16,17 @@ export function useAfterFirstScreen(timeoutMs = 1_500): boolean {
   }, [timeoutMs]);
   return ready;
 }
+
+/**
+ * False for a component's first commit, true from the next task on: a part of a screen drawn one
+ * task after the rest, so that its work (Ionic renders each new element within the task that
+ * attached it) is not added to the same long task as everything around it.
+ */
+export function useAfterFirstCommit(): boolean {
+  const [ready, setReady] = useState(false);
+  useEffect(() => {
+    const timer = setTimeout(() => setReady(true), 0);
+    return () => clearTimeout(timer);
+  }, []);
+  return ready;
+}
