@@ -55,11 +55,12 @@ const names = (found: Array<{ fields: { familyName: string } }>) =>
   found.map((patient) => patient.fields.familyName);
 
 describe('the load step size', () => {
-  it('halves after a step over its 1 ms budget, grows after a quick one, within 25 to 200', () => {
+  it('halves after a step over its 1 ms budget, grows after a quick one, within 25 to 100', () => {
     expect(nextChunkSize(100, 3)).toBe(50);
     expect(nextChunkSize(30, 3)).toBe(25);
-    expect(nextChunkSize(100, 0.2)).toBe(150);
-    expect(nextChunkSize(150, 0.1)).toBe(200);
+    expect(nextChunkSize(50, 0.2)).toBe(75);
+    expect(nextChunkSize(75, 0.1)).toBe(100);
+    expect(nextChunkSize(100, 0.1)).toBe(100);
     expect(nextChunkSize(100, 0.8)).toBe(100);
   });
 });

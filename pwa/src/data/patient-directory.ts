@@ -39,15 +39,17 @@ import { patientSiteId, patientTerms } from './patient-terms';
  * Patient records read per load step; each step is one IndexedDB read and the making of its
  * entries, then the screen gets the main thread back. The step's size follows the time the last
  * step's entries took to make (from the read's reply on: the wait for IndexedDB blocks nothing).
- * The browser's decoding of the records read and Dexie's own work come on top, two to three
- * times as long again, unmeasured; so the budget is 1 ms and a step at most 200 records: a
- * step's task stays near 5 ms on the benchmark's machine, and on a tablet four times slower
- * well under a 50 ms long task (a long task delays a tap; Lighthouse counts it).
- * bench:ui prints the load's longest task; Lighthouse counts each long one in its blocking time.
+ * The browser's decoding of the records read (in the task that delivers them) and Dexie's own
+ * work come on top, unmeasured, and dominate: in a trace of the benchmark's 20,000 patients, a
+ * step of 200 records was a task of about 20 ms, nearly all of it outside JavaScript. So the
+ * budget is 1 ms and a step at most 100 records:
+ * a step's task stays near 10 ms on the benchmark's machine, under the 50 ms of a long task on a
+ * tablet four times slower (a long task delays a tap; Lighthouse counts it).
+ * bench:ui prints the load's time and its long tasks; Lighthouse counts each in blocking time.
  */
-const FIRST_CHUNK = 100;
+const FIRST_CHUNK = 50;
 const MIN_CHUNK = 25;
-const MAX_CHUNK = 200;
+const MAX_CHUNK = 100;
 const STEP_BUDGET_MS = 1;
 /** Main-thread time of one slice of the sorting that follows the reads. */
 const SORT_SLICE_MS = 4;
