@@ -2,15 +2,7 @@
 // It is its own chunk, loaded once someone is signed in or unlocked (app/App.tsx): sign-in,
 // PIN unlock and enrolment are drawn without Ionic, so a tablet's first screen stays small.
 import './ionic-setup';
-import {
-  IonApp,
-  IonIcon,
-  IonLabel,
-  IonRouterOutlet,
-  IonTabBar,
-  IonTabButton,
-  IonTabs,
-} from '@ionic/react';
+import { IonApp, IonLabel, IonRouterOutlet, IonTabBar, IonTabButton, IonTabs } from '@ionic/react';
 import { IonReactRouter } from '@ionic/react-router';
 import {
   businessOutline,
@@ -25,6 +17,7 @@ import type { Role } from '@fuselight/shared';
 import { Suspense, type ReactNode } from 'react';
 import { Route, useLocation } from 'react-router-dom';
 import { canSee } from '../auth/access';
+import { Glyph } from '../components/Glyph';
 import { HomeRedirect, RequireArea } from '../auth/IdentityGate';
 import { useSession } from '../auth/session-context';
 import { SignInPrompt } from '../auth/SignInPrompt';
@@ -127,19 +120,19 @@ function AppTabBar({ role }: { role: Role | undefined }) {
         >
           {canSee(role, 'clinical') ? (
             <IonTabButton tab="today" href="/today">
-              <IonIcon icon={calendarOutline} aria-hidden="true" />
+              <Glyph icon={calendarOutline} />
               <IonLabel>Today</IonLabel>
             </IonTabButton>
           ) : null}
           {canSee(role, 'clinical') ? (
             <IonTabButton tab="outbox" href="/outbox">
-              <IonIcon icon={cloudUploadOutline} aria-hidden="true" />
+              <Glyph icon={cloudUploadOutline} />
               <IonLabel>Outbox</IonLabel>
             </IonTabButton>
           ) : null}
           {canSee(role, 'review') ? (
             <IonTabButton tab="review" href="/review">
-              <IonIcon icon={shieldCheckmarkOutline} aria-hidden="true" />
+              <Glyph icon={shieldCheckmarkOutline} />
               <IonLabel>Review desk</IonLabel>
               <Suspense fallback={null}>
                 <ReviewTabBadge />
@@ -148,24 +141,24 @@ function AppTabBar({ role }: { role: Role | undefined }) {
           ) : null}
           {canSee(role, 'admin') ? (
             <IonTabButton tab="fleet" href="/fleet">
-              <IonIcon icon={tabletPortraitOutline} aria-hidden="true" />
+              <Glyph icon={tabletPortraitOutline} />
               <IonLabel>Fleet</IonLabel>
             </IonTabButton>
           ) : null}
           {canSee(role, 'admin') ? (
             <IonTabButton tab="people" href="/people">
-              <IonIcon icon={peopleOutline} aria-hidden="true" />
+              <Glyph icon={peopleOutline} />
               <IonLabel>People</IonLabel>
             </IonTabButton>
           ) : null}
           {canSee(role, 'admin') ? (
             <IonTabButton tab="sites" href="/sites">
-              <IonIcon icon={businessOutline} aria-hidden="true" />
+              <Glyph icon={businessOutline} />
               <IonLabel>Sites</IonLabel>
             </IonTabButton>
           ) : null}
           <IonTabButton tab="person" href="/person">
-            <IonIcon icon={personCircleOutline} aria-hidden="true" />
+            <Glyph icon={personCircleOutline} />
             <IonLabel>You</IonLabel>
           </IonTabButton>
         </IonTabBar>

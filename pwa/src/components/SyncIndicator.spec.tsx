@@ -35,7 +35,7 @@ function engineWith(options: { online: boolean; fetch?: typeof fetch }) {
 
 /** Which of the bar's icons is drawn (cloud done, cloud, cloud offline, warning). */
 const shownIcon = () =>
-  document.querySelector('.fl-sync-indicator ion-icon')?.getAttribute('data-look');
+  document.querySelector('.fl-sync-indicator [data-look]')?.getAttribute('data-look');
 
 describe('the sync indicator', () => {
   it('shows offline, what waits in the Outbox, and never-synced, in words', async () => {

@@ -1,7 +1,7 @@
 // Always visible: whether the tablet is online, what waits in the Outbox, when it last synced,
 // a long pull's progress and any problem in words, with a "Sync now" button; and that an update
 // of the app is available when it holds records from a newer build (sync/newer-records.ts).
-import { IonIcon, IonSpinner } from '@ionic/react';
+import { IonSpinner } from '@ionic/react';
 import {
   cloudDoneOutline,
   cloudOfflineOutline,
@@ -21,6 +21,7 @@ import {
   type SyncStatus,
 } from '../sync';
 import { formatCount } from '../sync/format-count';
+import { Glyph } from './Glyph';
 import './sync-indicator.css';
 
 /** "just now", "3 min ago", "at 09:41", or "on 1 Dec" for an older time. */
@@ -156,7 +157,7 @@ export function SyncIndicator(props: {
         aria-live="polite"
         style={{ display: 'flex', alignItems: 'center', gap: 6 }}
       >
-        <IonIcon aria-hidden="true" icon={LOOK_ICONS[look]} data-look={look} />
+        <Glyph icon={LOOK_ICONS[look]} data-look={look} />
         <strong>{status.online ? 'Online' : 'Offline'}</strong>
         {live ? (
           <span
@@ -223,11 +224,7 @@ export function SyncIndicator(props: {
           borderRadius: 8,
         }}
       >
-        {busy ? (
-          <IonSpinner name="crescent" aria-hidden="true" />
-        ) : (
-          <IonIcon icon={syncOutline} aria-hidden="true" slot="start" />
-        )}
+        {busy ? <IonSpinner name="crescent" aria-hidden="true" /> : <Glyph icon={syncOutline} />}
         {busy ? 'Syncing…' : 'Sync now'}
       </button>
     </section>
