@@ -1,12 +1,39 @@
+import { fileURLToPath } from 'node:url';
 import react from '@vitejs/plugin-react';
-import { defineConfig } from 'vite';
+import { defineConfig, type Plugin } from 'vite';
 import { VitePWA } from 'vite-plugin-pwa';
+
+/**
+ * Zod's `z` namespace re-exports every locale's messages (`z.locales`, `z.core.locales`). The
+ * app reaches `z` from many chunks, so the bundler keeps the whole namespace, and the zod chunk
+ * was 386 kB minified, most of it some sixty languages no screen uses (the field builders write
+ * every message in English themselves, and zod's own default is its English locale, imported
+ * directly). This points zod's locale index at a module with English alone.
+ */
+function zodEnglishOnly(): Plugin {
+  const englishOnly = fileURLToPath(new URL('./src/zod-locales-english.ts', import.meta.url));
+  return {
+    name: 'fuselight-zod-english-only',
+    enforce: 'pre',
+    resolveId(source, importer) {
+      if (
+        importer &&
+        /[\\/]node_modules[\\/]zod[\\/]/.test(importer) &&
+        /(^|\/)locales\/index\.js$/.test(source)
+      ) {
+        return englishOnly;
+      }
+      return null;
+    },
+  };
+}
 
 // The app shell (HTML, JS, CSS, fonts, icons) is precached by the service worker so the tablet
 // opens with the network off. API calls are never cached: Dexie is the device's source of truth.
 export default defineConfig({
   publicDir: '../icons/generated-public',
   plugins: [
+    zodEnglishOnly(),
     react(),
     VitePWA({
       registerType: 'prompt',
