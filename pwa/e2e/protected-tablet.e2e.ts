@@ -148,6 +148,10 @@ describe('a protected tablet in Chromium', () => {
     await page.getByLabel(`PIN for ${reading.name}`).fill('918273');
     await page.getByRole('button', { name: 'Unlock', exact: true }).click();
     await page.getByRole('heading', { name: 'Today' }).first().waitFor();
+    // The tab bar comes a task after the screen (app/SignedInApp.tsx), with Today's tab selected.
+    await page.locator('ion-tab-button[tab="today"].tab-selected').waitFor();
+    expect(await page.locator('.fl-tab-bar-pending').count()).toBe(0);
+    expect(await page.locator('ion-tab-button.tab-selected').count()).toBe(1);
 
     // The first tablet pushes in the background; search until this tablet has pulled it.
     const search = page.getByLabel('Name, clinic number or date of birth');
